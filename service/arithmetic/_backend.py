@@ -1,0 +1,161 @@
+"""The one interface through which the rest of quadcert does rigorous arithmetic.
+
+Derivative enclosures and quadrature only call methods of an
+:class:`Arithmetic`; a second rigorous backend (for example ball arithmetic
+in C) can be added by implementing this protocol, without touching them.
+An instance fixes its precision at construction: there is no global state to
+change, so instances are safe to use from concurrent callers.
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+from typing import Any, Callable, Protocol
+
+from ..errors import InvalidInput
+from . import _kernels as K
+from ._interval import ZERO, Interval, to_fraction
+
+MIN_PRECISION = 53
+MAX_PRECISION = 4096
+
+
+class Arithmetic(Protocol):
+    """Outward-rounded arithmetic on enclosures of one fixed precision."""
+
+    prec: int
+    zero: Any
+    one: Any
+
+    def exact(self, value: Fraction) -> Any: ...
+    def constant(self, name: str) -> Any: ...
+    def add(self, a: Any, b: Any) -> Any: ...
+    def sub(self, a: Any, b: Any) -> Any: ...
+    def mul(self, a: Any, b: Any) -> Any: ...
+    def div(self, a: Any, b: Any) -> Any: ...
+    def neg(self, a: Any) -> Any: ...
+    def sqr(self, a: Any) -> Any: ...
+    def scale(self, a: Any, factor: Fraction) -> Any: ...
+    def pow_int(self, a: Any, n: int) -> Any: ...
+    def pow_real(self, a: Any, b: Any) -> Any: ...
+    def function(self, name: str, a: Any) -> Any: ...
+    def minimum(self, a: Any, b: Any) -> Any: ...
+    def maximum(self, a: Any, b: Any) -> Any: ...
+    def hull(self, a: Any, b: Any) -> Any: ...
+    def intersect(self, a: Any, b: Any) -> Any: ...
+    def sign(self, a: Any) -> int: ...
+    def is_exact_integer(self, a: Any) -> int | None: ...
+    def bounds(self, a: Any) -> tuple[float, float]: ...
+    def bounds_exact(self, a: Any) -> tuple[Fraction, Fraction]: ...
+    def width(self, a: Any) -> float: ...
+    def split_point(self, a: Any, b: Any) -> Any: ...
+
+
+_FUNCTIONS: dict[str, Callable[[Interval, int], Interval]] = {
+    "sqrt": K.sqrt, "exp": K.exp, "log": K.log, "log10": K.log10, "sin": K.sin, "cos": K.cos,
+    "tan": K.tan, "asin": K.asin, "acos": K.acos, "atan": K.atan, "sinh": K.sinh, "cosh": K.cosh,
+    "tanh": K.tanh, "erf": K.erf, "abs": lambda a, _prec: K.abs_(a),
+}
+_CONSTANTS = {"pi": K.pi, "e": K.e}
+
+
+class MpmathArithmetic:
+    """Reference backend: mpmath's raw floats with guarded elementary functions.
+
+    >>> ar = MpmathArithmetic(80)
+    >>> third = ar.exact(Fraction(1, 3))
+    >>> lo, hi = ar.bounds(ar.mul(third, ar.exact(Fraction(3))))
+    >>> lo <= 1.0 <= hi
+    True
+    """
+
+    __slots__ = ("prec", "zero", "one", "_constants")
+
+    def __init__(self, prec: int) -> None:
+        if not MIN_PRECISION <= prec <= MAX_PRECISION:
+            raise InvalidInput(f"precision {prec} is outside [{MIN_PRECISION}, {MAX_PRECISION}] bits",
+                               code="invalid_precision")
+        self.prec = prec
+        self.zero = K.from_int(0)
+        self.one = K.from_int(1)
+        self._constants: dict[str, Interval] = {}
+
+    def exact(self, value: Fraction) -> Interval:
+        return K.from_fraction(Fraction(value), self.prec)
+
+    def constant(self, name: str) -> Interval:
+        if name not in self._constants:
+            self._constants[name] = _CONSTANTS[name](self.prec)
+        return self._constants[name]
+
+    def add(self, a: Interval, b: Interval) -> Interval:
+        return K.add(a, b, self.prec)
+
+    def sub(self, a: Interval, b: Interval) -> Interval:
+        return K.sub(a, b, self.prec)
+
+    def mul(self, a: Interval, b: Interval) -> Interval:
+        return K.mul(a, b, self.prec)
+
+    def div(self, a: Interval, b: Interval) -> Interval:
+        return K.div(a, b, self.prec)
+
+    def neg(self, a: Interval) -> Interval:
+        return K.neg(a)
+
+    def sqr(self, a: Interval) -> Interval:
+        return K.sqr(a, self.prec)
+
+    def scale(self, a: Interval, factor: Fraction) -> Interval:
+        return K.mul_fraction(a, factor, self.prec)
+
+    def pow_int(self, a: Interval, n: int) -> Interval:
+        return K.pow_int(a, n, self.prec)
+
+    def pow_real(self, a: Interval, b: Interval) -> Interval:
+        return K.pow_real(a, b, self.prec)
+
+    def function(self, name: str, a: Interval) -> Interval:
+        return _FUNCTIONS[name](a, self.prec)
+
+    def minimum(self, a: Interval, b: Interval) -> Interval:
+        return K.minimum(a, b)
+
+    def maximum(self, a: Interval, b: Interval) -> Interval:
+        return K.maximum(a, b)
+
+    def hull(self, a: Interval, b: Interval) -> Interval:
+        return K.hull(a, b)
+
+    def intersect(self, a: Interval, b: Interval) -> Interval:
+        return K.intersect(a, b)
+
+    def sign(self, a: Interval) -> int:
+        """+1 if a > 0 throughout, -1 if a < 0 throughout, 0 if a reaches zero."""
+        if a.lo[0] == 0 and a.lo != ZERO:
+            return 1
+        if a.hi[0] == 1:
+            return -1
+        return 0
+
+    def is_exact_integer(self, a: Interval) -> int | None:
+        if a.is_point:
+            value = to_fraction(a.lo)
+            if value.denominator == 1:
+                return value.numerator
+        return None
+
+    def bounds(self, a: Interval) -> tuple[float, float]:
+        return a.floats()
+
+    def bounds_exact(self, a: Interval) -> tuple[Fraction, Fraction]:
+        return to_fraction(a.lo), to_fraction(a.hi)
+
+    def width(self, a: Interval) -> float:
+        lo, hi = self.bounds(K.sub(Interval.point(a.hi), Interval.point(a.lo), 53))
+        return hi
+
+    def split_point(self, a: Interval, b: Interval) -> Interval:
+        """An exactly representable point between the centres of a and b."""
+        left, right = K.midpoint(a), K.midpoint(b)
+        return Interval.point(K.midpoint(Interval(left, right)))

@@ -1,0 +1,158 @@
+"""A formula compiled for one arithmetic: enclosures of values and Taylor coefficients.
+
+Constant subtrees (numbers, pi, parameters and anything built only from
+them) are enclosed once at compile time, so a panel evaluation only does
+the work that depends on the variable.
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+from typing import Any, Callable, Mapping
+
+from ..arithmetic import Arithmetic
+from ..errors import InvalidInput
+from ..formula import Binary, Call, Constant, Formula, Negate, Node, Number, Parameter, Variable
+from . import _series as S
+
+_UNARY: dict[str, Callable[[Arithmetic, S.Series], S.Series]] = {
+    "sqrt": S.sqrt, "exp": S.exp, "log": S.log, "log10": S.log10, "sin": S.sin, "cos": S.cos,
+    "tan": S.tan, "asin": S.asin, "acos": S.acos, "atan": S.atan, "sinh": S.sinh, "cosh": S.cosh,
+    "tanh": S.tanh, "erf": S.erf, "abs": S.abs_,
+}
+
+# A compiled node is either ("const", enclosure) or ("series", function of (x series) -> series).
+Compiled = tuple[str, Any]
+
+
+class Program:
+    """Evaluates one formula over intervals, for values (order 0) or Taylor coefficients.
+
+    >>> from service.formula import parse
+    >>> from service.arithmetic import MpmathArithmetic
+    >>> ar = MpmathArithmetic(64)
+    >>> program = Program(parse("x^3"), ar)
+    >>> [ar.bounds(c) for c in program.taylor(ar.exact(Fraction(2)), 3)]
+    [(8.0, 8.0), (12.0, 12.0), (6.0, 6.0), (1.0, 1.0)]
+    """
+
+    def __init__(self, formula: Formula, ar: Arithmetic, parameters: Mapping[str, Fraction] | None = None) -> None:
+        self.formula = formula
+        self.ar = ar
+        values = dict(parameters or {})
+        missing = [name for name in formula.parameters if name not in values]
+        if missing:
+            raise InvalidInput(f"no value given for parameter {missing[0]!r}", code="missing_parameter",
+                               field="parameters")
+        self._parameters = {name: ar.exact(Fraction(value)) for name, value in values.items()}
+        self._root = self._compile(formula.root)
+
+    @property
+    def is_constant(self) -> bool:
+        return self._root[0] == "const"
+
+    def value(self, x: Any) -> Any:
+        """Enclosure of f over the interval x."""
+        return self.taylor(x, 0)[0]
+
+    def taylor(self, x: Any, order: int) -> S.Series:
+        """Enclosures of f⁽ᵏ⁾(X)/k! for k = 0..order, cut short where f is not that smooth."""
+        kind, payload = self._root
+        if kind == "const":
+            return [payload, *([self.ar.zero] * order)]
+        return payload(S.variable(self.ar, x, order))
+
+    # -- compilation -------------------------------------------------------------------------
+    def _compile(self, node: Node) -> Compiled:
+        ar = self.ar
+        if isinstance(node, Number):
+            return ("const", ar.exact(node.value))
+        if isinstance(node, Constant):
+            return ("const", ar.constant(node.name))
+        if isinstance(node, Parameter):
+            return ("const", self._parameters[node.name])
+        if isinstance(node, Variable):
+            return ("series", lambda xs: xs)
+        if isinstance(node, Negate):
+            kind, inner = self._compile(node.operand)
+            if kind == "const":
+                return ("const", ar.neg(inner))
+            return ("series", lambda xs: S.neg(ar, inner(xs)))
+        if isinstance(node, Call):
+            return self._call(node)
+        assert isinstance(node, Binary)
+        return self._binary(node)
+
+    def _call(self, node: Call) -> Compiled:
+        ar = self.ar
+        args = [self._compile(a) for a in node.args]
+        if all(kind == "const" for kind, _ in args):
+            values = [[payload] for _, payload in args]
+            return ("const", self._apply(node.function, values)[0])
+        lifted = [self._lift(a) for a in args]
+        function = node.function
+        return ("series", lambda xs: self._apply(function, [f(xs) for f in lifted]))
+
+    def _apply(self, function: str, values: list[S.Series]) -> S.Series:
+        if function in ("min", "max"):
+            return S.extremum(self.ar, values, largest=function == "max")
+        return _UNARY[function](self.ar, values[0])
+
+    def _lift(self, compiled: Compiled) -> Callable[[S.Series], S.Series]:
+        kind, payload = compiled
+        if kind == "series":
+            return payload
+        ar = self.ar
+        return lambda xs: [payload, *([ar.zero] * (len(xs) - 1))]
+
+    def _binary(self, node: Binary) -> Compiled:
+        ar = self.ar
+        (lk, left), (rk, right) = self._compile(node.left), self._compile(node.right)
+        op = node.op
+        if op == "^":
+            return self._power(node, (lk, left), (rk, right))
+        if lk == "const" and rk == "const":
+            scalar = {"+": ar.add, "-": ar.sub, "*": ar.mul, "/": ar.div}[op]
+            return ("const", scalar(left, right))
+        if op == "+":
+            if lk == "const":
+                return ("series", lambda xs: S.add_constant(ar, right(xs), left))
+            if rk == "const":
+                return ("series", lambda xs: S.add_constant(ar, left(xs), right))
+            return ("series", lambda xs: S.add(ar, left(xs), right(xs)))
+        if op == "-":
+            if rk == "const":
+                negated = ar.neg(right)
+                return ("series", lambda xs: S.add_constant(ar, left(xs), negated))
+            if lk == "const":
+                return ("series", lambda xs: S.add_constant(ar, S.neg(ar, right(xs)), left))
+            return ("series", lambda xs: S.sub(ar, left(xs), right(xs)))
+        if op == "*":
+            if lk == "const":
+                return ("series", lambda xs: S.mul_constant(ar, right(xs), left))
+            if rk == "const":
+                return ("series", lambda xs: S.mul_constant(ar, left(xs), right))
+            if node.left == node.right:
+                return ("series", lambda xs: S.square(ar, left(xs)))
+            return ("series", lambda xs: S.mul(ar, left(xs), right(xs)))
+        # division
+        if rk == "const":
+            inverse = ar.div(ar.one, right)
+            return ("series", lambda xs: S.mul_constant(ar, left(xs), inverse))
+        if lk == "const":
+            return ("series", lambda xs: S.reciprocal_constant(ar, left, right(xs)))
+        return ("series", lambda xs: S.div(ar, left(xs), right(xs)))
+
+    def _power(self, node: Binary, base: Compiled, exponent: Compiled) -> Compiled:
+        ar = self.ar
+        (bk, b), (ek, e) = base, exponent
+        integer = ar.is_exact_integer(e) if ek == "const" else None
+        if bk == "const" and ek == "const":
+            if integer is not None and abs(integer) <= 1024:
+                return ("const", ar.pow_int(b, integer))
+            return ("const", ar.pow_real(b, e))
+        if integer is not None and abs(integer) <= 1024:
+            n = integer
+            return ("series", lambda xs: S.pow_int(ar, b(xs), n))
+        lifted_base, lifted_exponent = self._lift(base), self._lift(exponent)
+        return ("series", lambda xs: S.pow_real(ar, lifted_base(xs), lifted_exponent(xs)))

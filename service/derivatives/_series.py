@@ -1,0 +1,288 @@
+"""Taylor-mode automatic differentiation over intervals (Moore's recurrences).
+
+A series ``s`` over an interval X is a list of enclosures with
+``s[k] ⊇ {f⁽ᵏ⁾(t)/k! : t ∈ X}``.  Its length is the number of orders known:
+where f is not smooth enough on X (``abs`` at a zero of its argument, a
+kink of ``min``/``max``, ``sqrt`` at zero) the series is cut short, which
+means "no information above this order" and never a wrong number.
+
+A series of length L certifies that f⁽ᴸ⁻²⁾ is Lipschitz on X and that its
+derivative f⁽ᴸ⁻¹⁾, which exists almost everywhere, lies in (L−1)!·s[L−1].
+That is exactly what the Peano-kernel error bounds of the quadrature need.
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+from typing import Any
+
+from ..arithmetic import Arithmetic
+
+Series = list[Any]
+
+
+def variable(ar: Arithmetic, x: Any, order: int) -> Series:
+    return [x, ar.one, *([ar.zero] * (order - 1))][: order + 1]
+
+
+def add(ar: Arithmetic, a: Series, b: Series) -> Series:
+    return [ar.add(x, y) for x, y in zip(a, b)]
+
+
+def sub(ar: Arithmetic, a: Series, b: Series) -> Series:
+    return [ar.sub(x, y) for x, y in zip(a, b)]
+
+
+def neg(ar: Arithmetic, a: Series) -> Series:
+    return [ar.neg(x) for x in a]
+
+
+def add_constant(ar: Arithmetic, a: Series, c: Any) -> Series:
+    return [ar.add(a[0], c), *a[1:]]
+
+
+def mul_constant(ar: Arithmetic, a: Series, c: Any) -> Series:
+    return [ar.mul(x, c) for x in a]
+
+
+def _dot(ar: Arithmetic, a: Series, b: Series, k: int, start: int = 0) -> Any:
+    """Σ_{j=start..k} a_j·b_{k−j}."""
+    total = ar.mul(a[start], b[k - start])
+    for j in range(start + 1, k + 1):
+        total = ar.add(total, ar.mul(a[j], b[k - j]))
+    return total
+
+
+def mul(ar: Arithmetic, a: Series, b: Series) -> Series:
+    n = min(len(a), len(b))
+    return [_dot(ar, a, b, k) for k in range(n)]
+
+
+def square(ar: Arithmetic, a: Series) -> Series:
+    out = [ar.sqr(a[0])]
+    for k in range(1, len(a)):
+        total = None
+        for j in range((k + 1) // 2):
+            term = ar.mul(a[j], a[k - j])
+            total = term if total is None else ar.add(total, term)
+        total = ar.scale(total, Fraction(2))
+        if k % 2 == 0:
+            total = ar.add(total, ar.sqr(a[k // 2]))
+        out.append(total)
+    return out
+
+
+def div(ar: Arithmetic, a: Series, b: Series) -> Series:
+    """a/b; raises when b's value reaches zero (the quotient itself is then unbounded)."""
+    n = min(len(a), len(b))
+    out = [ar.div(a[0], b[0])]
+    for k in range(1, n):
+        acc = a[k]
+        for j in range(1, k + 1):
+            acc = ar.sub(acc, ar.mul(b[j], out[k - j]))
+        out.append(ar.div(acc, b[0]))
+    return out
+
+
+def reciprocal_constant(ar: Arithmetic, c: Any, b: Series) -> Series:
+    return div(ar, [c, *([ar.zero] * (len(b) - 1))], b)
+
+
+def derivative(ar: Arithmetic, a: Series) -> Series:
+    return [ar.scale(a[k], Fraction(k)) for k in range(1, len(a))]
+
+
+def integrate(ar: Arithmetic, value: Any, d: Series, length: int) -> Series:
+    """The series whose value is ``value`` and whose derivative series is ``d``."""
+    out = [value]
+    for k in range(1, length):
+        out.append(ar.scale(d[k - 1], Fraction(1, k)))
+    return out
+
+
+def _driven(ar: Arithmetic, u: Series, value: Any, slope_of: Any) -> Series:
+    """f(u) where f' = g(f): f_k = (1/k) Σ_{j=1..k} j·u_j·g_{k−j}, g built on the fly."""
+    out = [value]
+    g: Series = []
+    for k in range(1, len(u)):
+        g.append(slope_of(out, k - 1))
+        acc = ar.mul(u[1], g[k - 1])
+        for j in range(2, k + 1):
+            acc = ar.add(acc, ar.scale(ar.mul(u[j], g[k - j]), Fraction(j)))
+        out.append(ar.scale(acc, Fraction(1, k)))
+    return out
+
+
+def exp(ar: Arithmetic, u: Series) -> Series:
+    return _driven(ar, u, ar.function("exp", u[0]), lambda f, m: f[m])
+
+
+def _one_plus_square(ar: Arithmetic, f: Series, m: int, sign: int) -> Any:
+    """Coefficient m of 1 ± f² (sign +1 or −1)."""
+    sq = _dot(ar, f, f, m)
+    if m == 0:
+        return ar.add(ar.one, sq) if sign > 0 else ar.sub(ar.one, sq)
+    return sq if sign > 0 else ar.neg(sq)
+
+
+def tan(ar: Arithmetic, u: Series) -> Series:
+    return _driven(ar, u, ar.function("tan", u[0]), lambda f, m: _one_plus_square(ar, f, m, +1))
+
+
+def tanh(ar: Arithmetic, u: Series) -> Series:
+    return _driven(ar, u, ar.function("tanh", u[0]), lambda f, m: _one_plus_square(ar, f, m, -1))
+
+
+def _pair(ar: Arithmetic, u: Series, s0: Any, c0: Any, sign: int) -> tuple[Series, Series]:
+    """sin/cos (sign −1) or sinh/cosh (sign +1) together: s' = c·u', c' = ±s·u'."""
+    s, c = [s0], [c0]
+    for k in range(1, len(u)):
+        acc_s = acc_c = None
+        for j in range(1, k + 1):
+            ts = ar.scale(ar.mul(u[j], c[k - j]), Fraction(j))
+            tc = ar.scale(ar.mul(u[j], s[k - j]), Fraction(j))
+            acc_s = ts if acc_s is None else ar.add(acc_s, ts)
+            acc_c = tc if acc_c is None else ar.add(acc_c, tc)
+        s.append(ar.scale(acc_s, Fraction(1, k)))
+        c.append(ar.scale(acc_c if sign > 0 else ar.neg(acc_c), Fraction(1, k)))
+    return s, c
+
+
+def sin(ar: Arithmetic, u: Series) -> Series:
+    return _pair(ar, u, ar.function("sin", u[0]), ar.function("cos", u[0]), -1)[0]
+
+
+def cos(ar: Arithmetic, u: Series) -> Series:
+    return _pair(ar, u, ar.function("sin", u[0]), ar.function("cos", u[0]), -1)[1]
+
+
+def sinh(ar: Arithmetic, u: Series) -> Series:
+    return _pair(ar, u, ar.function("sinh", u[0]), ar.function("cosh", u[0]), +1)[0]
+
+
+def cosh(ar: Arithmetic, u: Series) -> Series:
+    return _pair(ar, u, ar.function("sinh", u[0]), ar.function("cosh", u[0]), +1)[1]
+
+
+def log(ar: Arithmetic, u: Series) -> Series:
+    value = ar.function("log", u[0])
+    if len(u) == 1:
+        return [value]
+    return integrate(ar, value, div(ar, derivative(ar, u), u[:-1]), len(u))
+
+
+def log10(ar: Arithmetic, u: Series) -> Series:
+    value = ar.function("log10", u[0])
+    if len(u) == 1:
+        return [value]
+    ln10 = ar.function("log", ar.exact(Fraction(10)))
+    slope = div(ar, derivative(ar, u), mul_constant(ar, u[:-1], ln10))
+    return integrate(ar, value, slope, len(u))
+
+
+def sqrt(ar: Arithmetic, u: Series) -> Series:
+    s0 = ar.function("sqrt", u[0])
+    if len(u) == 1 or ar.sign(s0) <= 0:  # at zero the slope is unbounded: value only
+        return [s0]
+    twice = ar.scale(s0, Fraction(2))
+    out = [s0]
+    for k in range(1, len(u)):
+        acc = u[k]
+        for j in range(1, k):
+            acc = ar.sub(acc, ar.mul(out[j], out[k - j]))
+        out.append(ar.div(acc, twice))
+    return out
+
+
+def atan(ar: Arithmetic, u: Series) -> Series:
+    value = ar.function("atan", u[0])
+    if len(u) == 1:
+        return [value]
+    denominator = add_constant(ar, square(ar, u[:-1]), ar.one)
+    return integrate(ar, value, div(ar, derivative(ar, u), denominator), len(u))
+
+
+def asin(ar: Arithmetic, u: Series, sign: int = 1) -> Series:
+    value = ar.function("asin" if sign > 0 else "acos", u[0])
+    if len(u) == 1:
+        return [value]
+    root = sqrt(ar, add_constant(ar, neg(ar, square(ar, u[:-1])), ar.one))
+    if len(root) < len(u) - 1:  # |u| reaches 1: slope unbounded
+        return [value]
+    slope = div(ar, derivative(ar, u), root)
+    return integrate(ar, value, slope if sign > 0 else neg(ar, slope), len(u))
+
+
+def acos(ar: Arithmetic, u: Series) -> Series:
+    return asin(ar, u, sign=-1)
+
+
+def erf(ar: Arithmetic, u: Series) -> Series:
+    value = ar.function("erf", u[0])
+    if len(u) == 1:
+        return [value]
+    two_over_root_pi = ar.div(ar.exact(Fraction(2)), ar.function("sqrt", ar.constant("pi")))
+    gauss = exp(ar, neg(ar, square(ar, u[:-1])))
+    slope = mul_constant(ar, mul(ar, gauss, derivative(ar, u)), two_over_root_pi)
+    return integrate(ar, value, slope, len(u))
+
+
+def _lipschitz_cut(ar: Arithmetic, value: Any, slopes: list[Any], length: int) -> Series:
+    """Value plus an a.e. slope enclosure: for kinks of abs, min and max."""
+    if length == 1:
+        return [value]
+    slope = slopes[0]
+    for other in slopes[1:]:
+        slope = ar.hull(slope, other)
+    return [value, slope]
+
+
+def abs_(ar: Arithmetic, u: Series) -> Series:
+    side = ar.sign(u[0])
+    if side > 0:
+        return u
+    if side < 0:
+        return neg(ar, u)
+    slopes = [u[1], ar.neg(u[1])] if len(u) > 1 else []
+    return _lipschitz_cut(ar, ar.function("abs", u[0]), slopes, min(len(u), 2))
+
+
+def extremum(ar: Arithmetic, args: list[Series], largest: bool) -> Series:
+    """min or max of several series; smooth where one argument is strictly the extremum."""
+    best = args[0]
+    for other in args[1:]:
+        gap = ar.sign(ar.sub(other[0], best[0]))
+        if gap != 0 and (gap > 0) == largest:
+            best = other
+        elif gap == 0:
+            length = min(len(best), len(other), 2)
+            combine = ar.maximum if largest else ar.minimum
+            best = _lipschitz_cut(ar, combine(best[0], other[0]), [best[1], other[1]] if length > 1 else [],
+                                  length)
+    return best
+
+
+def pow_int(ar: Arithmetic, u: Series, n: int) -> Series:
+    """u^n for a constant integer n, by squaring; the value is kept tight."""
+    if n < 0:
+        return reciprocal_constant(ar, ar.one, pow_int(ar, u, -n))
+    if n == 0:
+        return [ar.one, *([ar.zero] * (len(u) - 1))]
+    result: Series | None = None
+    base = u
+    m = n
+    while m:
+        if m & 1:
+            result = base if result is None else mul(ar, result, base)
+        m >>= 1
+        if m:
+            base = square(ar, base)
+    assert result is not None
+    return [ar.intersect(result[0], ar.pow_int(u[0], n)), *result[1:]]
+
+
+def pow_real(ar: Arithmetic, u: Series, v: Series) -> Series:
+    """u^v = exp(v·log u) for u > 0; with u reaching 0 only the value is known."""
+    if ar.sign(u[0]) > 0:
+        return exp(ar, mul(ar, v, log(ar, u)))
+    return [ar.pow_real(u[0], v[0])]

@@ -1,0 +1,97 @@
+"""Every error quadcert raises, in one hierarchy.
+
+Each error carries a stable machine-readable ``code``; the HTTP layer maps
+codes to RFC 9457 problem details in one place, so routes never invent
+ad-hoc strings.
+
+    QuadcertError
+    ├── FormulaError            the formula text cannot be read (has a column)
+    ├── InvalidInput            a limit, tolerance, parameter or budget is unusable
+    ├── ArithmeticFault         raised inside interval arithmetic
+    │   ├── DomainViolation     a function's argument leaves its domain
+    │   ├── Unbounded           division by an interval that reaches zero, a pole
+    │   └── MagnitudeExceeded   a value too large to compute with safely
+    └── NotCertifiable          the engine cannot certify, with reason and location
+"""
+
+from __future__ import annotations
+
+
+class QuadcertError(Exception):
+    """Base of all quadcert errors; ``code`` is stable, ``message`` is for people."""
+
+    code: str = "quadcert_error"
+
+    def __init__(self, message: str, *, code: str | None = None) -> None:
+        super().__init__(message)
+        self.message = message
+        if code is not None:
+            self.code = code
+
+    def __str__(self) -> str:
+        return self.message
+
+
+class FormulaError(QuadcertError):
+    """The formula cannot be read; ``column`` is 1-based and points at the culprit."""
+
+    code = "formula_syntax"
+
+    def __init__(self, message: str, *, code: str, column: int | None = None) -> None:
+        self.column = column
+        if column is not None:
+            message = f"{message} (at column {column})"
+        super().__init__(message, code=code)
+
+
+class InvalidInput(QuadcertError):
+    """A request value other than the formula is unusable; ``field`` names it."""
+
+    code = "invalid_input"
+
+    def __init__(self, message: str, *, code: str = "invalid_input", field: str | None = None,
+                 column: int | None = None) -> None:
+        super().__init__(message, code=code)
+        self.field = field
+        self.column = column
+
+
+class ArithmeticFault(QuadcertError):
+    """Raised by interval kernels; the engine turns it into refinement or a refusal.
+
+    ``certain`` is True when the fault holds at every point of the argument
+    interval (so refining cannot help) and False when it may be an artefact
+    of overestimation.
+    """
+
+    code = "arithmetic_fault"
+
+    def __init__(self, message: str, *, certain: bool, code: str | None = None) -> None:
+        super().__init__(message, code=code)
+        self.certain = certain
+
+
+class DomainViolation(ArithmeticFault):
+    code = "outside_domain"
+
+
+class Unbounded(ArithmeticFault):
+    code = "unbounded"
+
+
+class MagnitudeExceeded(ArithmeticFault):
+    code = "magnitude_exceeded"
+
+    def __init__(self, message: str) -> None:
+        super().__init__(message, certain=True)
+
+
+class NotCertifiable(QuadcertError):
+    """The engine refuses to certify; ``location`` is where (an x value or an interval)."""
+
+    code = "not_certifiable"
+
+    def __init__(self, message: str, *, code: str,
+                 location: tuple[float, float] | None = None) -> None:
+        super().__init__(message, code=code)
+        self.location = location

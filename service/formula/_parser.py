@@ -1,0 +1,263 @@
+"""Recursive-descent parser for textbook formulas.
+
+Grammar (``^`` binds tightest and is right-associative; ``-x^2`` is ``-(x^2)``)::
+
+    expression := term (("+" | "-") term)*
+    term       := unary (("*" | "/") unary)*
+    unary      := ("+" | "-") unary | power
+    power      := primary ("^" unary)?
+    primary    := NUMBER | NAME | NAME "(" expression ("," expression)* ")" | "(" expression ")"
+"""
+
+from __future__ import annotations
+
+import difflib
+from dataclasses import dataclass, field
+from fractions import Fraction
+
+from ..errors import FormulaError
+from . import _limits
+from ._nodes import Binary, Call, Constant, Negate, Node, Number, Parameter, Variable, canonical_text
+from ._tokenizer import Kind, Token, tokenize
+
+#: function name -> (minimum, maximum) number of arguments
+FUNCTIONS: dict[str, tuple[int, int]] = {
+    **{name: (1, 1) for name in (
+        "sqrt", "exp", "log", "log10", "sin", "cos", "tan", "asin", "acos", "atan",
+        "sinh", "cosh", "tanh", "abs", "erf")},
+    "min": (2, _limits.MAX_ARGUMENTS),
+    "max": (2, _limits.MAX_ARGUMENTS),
+}
+ALIASES = {"ln": "log", "arcsin": "asin", "arccos": "acos", "arctan": "atan"}
+CONSTANTS = ("pi", "e")
+RESERVED = frozenset(FUNCTIONS) | frozenset(ALIASES) | frozenset(CONSTANTS)
+
+
+@dataclass(frozen=True)
+class Formula:
+    """A parsed formula in one variable, with named parameters still symbolic."""
+
+    root: Node
+    variable: str
+    parameters: tuple[str, ...] = ()
+    node_count: int = field(default=0, compare=False)
+
+    @property
+    def text(self) -> str:
+        """Canonical text, stable across spellings (for caching and echoing)."""
+        return canonical_text(self.root)
+
+
+def _suggest(name: str, candidates: list[str]) -> str:
+    close = difflib.get_close_matches(name, candidates, n=1, cutoff=0.6)
+    return f"; did you mean {close[0]!r}?" if close else ""
+
+
+class _Parser:
+    def __init__(self, text: str, variable: str, parameters: tuple[str, ...]) -> None:
+        self.tokens: list[Token] = tokenize(text)
+        self.index = 0
+        self.depth = 0
+        self.nodes = 0
+        self.variable = variable
+        self.parameters = parameters
+
+    # -- helpers -----------------------------------------------------------------------------
+    @property
+    def current(self) -> Token:
+        return self.tokens[self.index]
+
+    def advance(self) -> Token:
+        token = self.tokens[self.index]
+        self.index += 1
+        return token
+
+    def count(self, node: Node, column: int) -> Node:
+        self.nodes += 1
+        if self.nodes > _limits.MAX_NODES:
+            raise FormulaError(f"formula has more than {_limits.MAX_NODES} parts", code="formula_too_large",
+                               column=column)
+        return node
+
+    def enter(self, column: int) -> None:
+        self.depth += 1
+        if self.depth > _limits.MAX_DEPTH:
+            raise FormulaError(f"formula nests deeper than {_limits.MAX_DEPTH} levels", code="nesting_too_deep",
+                               column=column)
+
+    def unexpected(self, expected: str) -> FormulaError:
+        token = self.current
+        if token.kind is Kind.END:
+            return FormulaError(f"formula ends early; expected {expected}", code="unexpected_end",
+                                column=token.column)
+        if token.kind is Kind.RPAREN:
+            return FormulaError(f"unexpected ')'; expected {expected}", code="unbalanced_parenthesis",
+                                column=token.column)
+        return FormulaError(f"unexpected {token.text!r}; expected {expected}", code="unexpected_token",
+                            column=token.column)
+
+    # -- grammar -----------------------------------------------------------------------------
+    def parse(self) -> Node:
+        if self.current.kind is Kind.END:
+            raise FormulaError("formula is empty", code="empty_formula", column=1)
+        node = self.expression()
+        token = self.current
+        if token.kind is Kind.END:
+            return node
+        if token.kind in (Kind.NUMBER, Kind.NAME, Kind.LPAREN):
+            previous = self.tokens[self.index - 1].text
+            raise FormulaError(f"missing operator between {previous!r} and {token.text!r}; implicit "
+                               f"multiplication is not read, write {previous}*{token.text}",
+                               code="implicit_multiplication", column=token.column)
+        if token.kind is Kind.RPAREN:
+            raise FormulaError("')' has no matching '('", code="unbalanced_parenthesis", column=token.column)
+        raise self.unexpected("an operator")
+
+    def expression(self) -> Node:
+        node = self.term()
+        while self.current.kind is Kind.OPERATOR and self.current.text in "+-":
+            token = self.advance()
+            node = self.count(Binary(token.text, node, self.term()), token.column)
+        return node
+
+    def term(self) -> Node:
+        node = self.unary()
+        while self.current.kind is Kind.OPERATOR and self.current.text in "*/":
+            token = self.advance()
+            node = self.count(Binary(token.text, node, self.unary()), token.column)
+        return node
+
+    def unary(self) -> Node:
+        token = self.current
+        if token.kind is Kind.OPERATOR and token.text in "+-":
+            self.advance()
+            self.enter(token.column)
+            operand = self.unary()
+            self.depth -= 1
+            if token.text == "+":
+                return operand
+            return self.count(Negate(operand), token.column)
+        return self.power()
+
+    def power(self) -> Node:
+        base = self.primary()
+        if self.current.kind is Kind.OPERATOR and self.current.text == "^":
+            token = self.advance()
+            self.enter(token.column)
+            exponent_column = self.current.column
+            exponent = self.unary()
+            self.depth -= 1
+            literal = exponent.operand if isinstance(exponent, Negate) else exponent
+            if isinstance(literal, Number) and abs(literal.value) > _limits.MAX_CONSTANT_POWER:
+                raise FormulaError(f"exponent {literal.text} is larger than {_limits.MAX_CONSTANT_POWER}",
+                                   code="power_too_large", column=exponent_column)
+            return self.count(Binary("^", base, exponent), token.column)
+        return base
+
+    def primary(self) -> Node:
+        token = self.current
+        if token.kind is Kind.NUMBER:
+            self.advance()
+            return self.count(Number(_read_number(token)), token.column)
+        if token.kind is Kind.LPAREN:
+            self.advance()
+            self.enter(token.column)
+            node = self.expression()
+            self.depth -= 1
+            if self.current.kind is not Kind.RPAREN:
+                if self.current.kind is Kind.END:
+                    raise FormulaError("'(' is never closed", code="unbalanced_parenthesis", column=token.column)
+                raise self.unexpected("')'")
+            self.advance()
+            return node
+        if token.kind is Kind.NAME:
+            self.advance()
+            if self.current.kind is Kind.LPAREN:
+                return self.call(token)
+            return self.count(self.name(token), token.column)
+        raise self.unexpected("a number, a name or '('")
+
+    def call(self, name: Token) -> Node:
+        function = ALIASES.get(name.text, name.text)
+        if function not in FUNCTIONS:
+            hint = _suggest(name.text, sorted(FUNCTIONS))
+            if name.text in (self.variable, *self.parameters, *CONSTANTS):
+                hint = f"; write {name.text}*(...) to multiply"
+            raise FormulaError(f"unknown function {name.text!r}{hint}", code="unknown_function", column=name.column)
+        opening = self.advance()
+        self.enter(opening.column)
+        args = [self.expression()]
+        while self.current.kind is Kind.COMMA:
+            self.advance()
+            args.append(self.expression())
+        self.depth -= 1
+        if self.current.kind is not Kind.RPAREN:
+            if self.current.kind is Kind.END:
+                raise FormulaError("'(' is never closed", code="unbalanced_parenthesis", column=opening.column)
+            raise self.unexpected("',' or ')'")
+        self.advance()
+        low, high = FUNCTIONS[function]
+        if not low <= len(args) <= high:
+            wanted = str(low) if low == high else f"{low} to {high}"
+            raise FormulaError(f"{function} takes {wanted} argument{'s' if high > 1 else ''}, got {len(args)}",
+                               code="wrong_argument_count", column=name.column)
+        return self.count(Call(function, tuple(args)), name.column)
+
+    def name(self, token: Token) -> Node:
+        text = token.text
+        if text == self.variable:
+            return Variable(text)
+        if text in self.parameters:
+            return Parameter(text)
+        if text in CONSTANTS:
+            return Constant(text)
+        if text in FUNCTIONS or text in ALIASES:
+            raise FormulaError(f"{text!r} is a function; write {text}(...)", code="missing_arguments",
+                               column=token.column)
+        hint = _suggest(text, [self.variable, *self.parameters, *CONSTANTS])
+        if not hint and len(text) > 1 and all(c == self.variable or c in CONSTANTS for c in text):
+            hint = f"; implicit multiplication is not read, write {'*'.join(text)}"
+        raise FormulaError(f"unknown name {text!r}{hint}; the variable is {self.variable!r}",
+                           code="unknown_name", column=token.column)
+
+
+def _read_number(token: Token) -> Fraction:
+    mantissa, _, exponent = token.text.lower().partition("e")
+    digits = mantissa.replace(".", "").lstrip("0")
+    if len(digits) > _limits.MAX_LITERAL_DIGITS:
+        raise FormulaError(f"number has {len(digits)} significant digits; the limit is "
+                           f"{_limits.MAX_LITERAL_DIGITS}", code="literal_too_long", column=token.column)
+    if exponent and (len(exponent) > 8 or abs(int(exponent)) > _limits.MAX_LITERAL_EXPONENT):
+        raise FormulaError(f"exponent of {token.text[:20]!r} is beyond ±{_limits.MAX_LITERAL_EXPONENT}",
+                           code="literal_out_of_range", column=token.column)
+    return Fraction(token.text)
+
+
+def _check_identifier(name: str, role: str) -> None:
+    if not name.isascii() or not name.isidentifier():
+        raise FormulaError(f"{role} name {name!r} must be ASCII letters, digits and '_'", code="invalid_name")
+    if name in RESERVED:
+        raise FormulaError(f"{role} name {name!r} is reserved for a function or constant", code="reserved_name")
+
+
+def parse(text: str, variable: str = "x", parameters: tuple[str, ...] | list[str] = ()) -> Formula:
+    """Read ``text`` into a :class:`Formula`; raises :class:`FormulaError` with a column.
+
+    >>> parse("-x^2 + 2*x").text
+    '-x^2 + 2*x'
+    >>> parse("sinn(x)")
+    Traceback (most recent call last):
+    ...
+    service.errors.FormulaError: unknown function 'sinn'; did you mean 'sin'? (at column 1)
+    """
+    if not isinstance(text, str):
+        raise FormulaError("formula must be text", code="invalid_formula")
+    parameters = tuple(parameters)
+    _check_identifier(variable, "variable")
+    for name in parameters:
+        _check_identifier(name, "parameter")
+        if name == variable:
+            raise FormulaError(f"parameter {name!r} has the variable's name", code="reserved_name")
+    parser = _Parser(text, variable, parameters)
+    root = parser.parse()
+    return Formula(root=root, variable=variable, parameters=parameters, node_count=parser.nodes)

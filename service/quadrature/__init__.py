@@ -1,0 +1,6 @@
+"""Certified quadrature: adaptive composite Simpson and the a priori planner."""
+
+from ._integrate import integrate
+from ._result import IntegralResult, PanelReport, Plan, RulePlan
+
+__all__ = ["IntegralResult", "PanelReport", "Plan", "RulePlan", "integrate"]

@@ -1,0 +1,23 @@
+"""Turning an enclosure into the float64 figures a caller sees, without losing rigor."""
+
+from __future__ import annotations
+
+import math
+from fractions import Fraction
+
+
+def round_up(value: Fraction) -> float:
+    result = float(value)
+    if Fraction(result) < value:
+        result = math.nextafter(result, math.inf)
+    return result
+
+
+def error_bound(low: float, high: float) -> tuple[float, float]:
+    """(value, bound) with bound >= max(value − low, high − value), exactly."""
+    if not (math.isfinite(low) and math.isfinite(high)):
+        return math.nan, math.inf
+    value = low / 2 + high / 2
+    value = min(max(value, low), high)
+    exact = Fraction(value)
+    return value, round_up(max(exact - Fraction(low), Fraction(high) - exact))

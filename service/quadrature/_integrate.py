@@ -1,0 +1,121 @@
+"""The engine's front door: validate, read limits exactly, refine, report."""
+
+from __future__ import annotations
+
+import math
+import time
+from fractions import Fraction
+from typing import Callable, Mapping
+
+from ..arithmetic import Arithmetic, MpmathArithmetic
+from ..derivatives import Program
+from ..errors import ArithmeticFault, InvalidInput, NotCertifiable
+from ..formula import Formula, parse
+from . import _inputs
+from ._finish import error_bound
+from ._limits import LimitValue, enclose_limit, parse_limit
+from ._result import IntegralResult, PanelReport
+from ._simpson import Refiner
+
+DEFAULT_PRECISION = 96
+ArithmeticFactory = Callable[[int], Arithmetic]
+
+
+def choose_precision(tolerance: float) -> int:
+    """Enough bits that rounding stays far below the tolerance for integrals of ordinary size."""
+    return max(DEFAULT_PRECISION, min(4096, int(-math.log2(tolerance)) + 48))
+
+
+def prepare(integrand: str | Formula, variable: str, parameters: Mapping[str, object] | None
+            ) -> tuple[Formula, dict[str, Fraction]]:
+    values = _inputs.check_parameters(parameters)
+    if isinstance(integrand, Formula):
+        formula = integrand
+    else:
+        formula = parse(integrand, variable=variable, parameters=tuple(values))
+    return formula, values
+
+
+def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: LimitValue,
+              tolerance: float = 1e-8, *, variable: str = "x", parameters: Mapping[str, object] | None = None,
+              relative_tolerance: float | None = None, max_nodes: int = _inputs.DEFAULT_MAX_NODES,
+              deadline_seconds: float | None = None, include_mesh: bool = False,
+              precision_bits: int | None = None, arithmetic: ArithmeticFactory = MpmathArithmetic
+              ) -> IntegralResult:
+    """Certified ∫ integrand d(variable) from lower_limit to upper_limit.
+
+    >>> r = integrate("4/(1+x^2)", 0, 1, 1e-10)
+    >>> r.enclosure[0] <= 3.141592653589793 <= r.enclosure[1], r.error_bound <= 1e-10
+    (True, True)
+    """
+    started = time.perf_counter()
+    tolerance = _inputs.check_tolerance(tolerance)  # type: ignore[assignment]
+    relative = _inputs.check_tolerance(relative_tolerance, "relative_tolerance", optional=True)  # type: ignore[arg-type]
+    max_nodes = _inputs.check_max_nodes(max_nodes)
+    if deadline_seconds is not None and not (math.isfinite(deadline_seconds) and deadline_seconds > 0):
+        raise InvalidInput("deadline_seconds must be a positive number", code="invalid_deadline",
+                           field="deadline_seconds")
+    formula, values = prepare(integrand, variable, parameters)
+    lower_formula = parse_limit(lower_limit, "lower_limit", tuple(values))
+    upper_formula = parse_limit(upper_limit, "upper_limit", tuple(values))
+    deadline = None if deadline_seconds is None else time.monotonic() + deadline_seconds
+    prec = precision_bits or choose_precision(tolerance)
+
+    def target(low: float, high: float) -> float:
+        if relative is None or low <= 0 <= high:
+            return tolerance
+        return max(tolerance, relative * min(abs(low), abs(high)))
+
+    attempts = 0
+    while True:
+        ar = arithmetic(prec)
+        program = Program(formula, ar, values)
+        a = enclose_limit(lower_formula, ar, values, "lower_limit")
+        b = enclose_limit(upper_formula, ar, values, "upper_limit")
+        outcome = _run(program, ar, a, b, lower_formula.text == upper_formula.text, max_nodes, deadline,
+                       target, arithmetic, values, formula)
+        attempts += 1
+        if outcome[1] != "resolution_limit" or attempts >= 3 or prec * 2 > 4096:
+            break
+        prec *= 2
+    enclosure, stop, nodes, panels, mesh, bounds_used = outcome
+    low, high = ar.bounds(enclosure)
+    value, bound = error_bound(low, high)
+    if not math.isfinite(bound):
+        raise NotCertifiable("the integral is beyond the float64 range", code="result_out_of_range")
+    met = bound <= target(low, high)
+    return IntegralResult(
+        value=value, enclosure=(low, high), error_bound=bound, tolerance=tolerance, tolerance_met=met,
+        stop_reason="tolerance_met" if met else (stop if stop != "tolerance_met" else "resolution_limit"),
+        nodes=nodes, panels=panels, integrand=formula.text, lower_limit=lower_formula.text,
+        upper_limit=upper_formula.text, precision_bits=prec,
+        compute_seconds=time.perf_counter() - started, mesh=mesh if include_mesh else None,
+        bounds_used=bounds_used)
+
+
+def _run(program: Program, ar: Arithmetic, a: object, b: object, same_text: bool, max_nodes: int,
+         deadline: float | None, target: Callable[[float, float], float], arithmetic: ArithmeticFactory,
+         values: dict[str, Fraction], formula: Formula
+         ) -> tuple[object, str, int, int, tuple[PanelReport, ...], dict[str, int]]:
+    if same_text:
+        return ar.zero, "tolerance_met", 0, 0, (), {}
+    a_lo, a_hi = ar.bounds_exact(a)
+    b_lo, b_hi = ar.bounds_exact(b)
+    if a_hi < b_lo:
+        sign = 1
+    elif b_hi < a_lo:
+        sign, a, b = -1, b, a
+    else:  # the limits are too close to order: enclose (b − a)·f(hull) directly
+        region = ar.hull(a, b)
+        try:
+            values_on = program.value(region)
+        except ArithmeticFault as fault:
+            raise NotCertifiable(f"the integrand cannot be bounded between the limits: {fault.message}",
+                                 code="unbounded_near", location=ar.bounds(region)) from None
+        return ar.mul(ar.sub(b, a), values_on), "tolerance_met", 0, 1, (), {"range": 1}
+    refiner = Refiner(program, ar, max_nodes=max_nodes, deadline=deadline,
+                      retry=lambda p: Program(formula, arithmetic(p), values))
+    outcome = refiner.run(a, b, target)
+    enclosure = outcome.enclosure if sign > 0 else ar.neg(outcome.enclosure)
+    return (enclosure, outcome.stop_reason, outcome.nodes, len(outcome.panels),
+            refiner.mesh(outcome.panels, sign), refiner.bounds_used)

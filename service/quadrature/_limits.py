@@ -1,0 +1,61 @@
+"""Limits of integration, read exactly: 0.1 is one tenth and pi/2 is an enclosure of π/2."""
+
+from __future__ import annotations
+
+import math
+from fractions import Fraction
+from typing import Any
+
+from ..arithmetic import Arithmetic
+from ..derivatives import Program
+from ..errors import FormulaError, InvalidInput, QuadcertError
+from ..formula import Formula, parse
+
+_INFINITE = {"inf", "+inf", "-inf", "infinity", "+infinity", "-infinity", "oo", "-oo"}
+LimitValue = str | int | float | Fraction
+
+
+def limit_text(value: LimitValue, field: str) -> str:
+    """The decimal text a limit spells; a float is read as its shortest round-trip decimal."""
+    if isinstance(value, bool):
+        raise InvalidInput(f"{field} must be a number or text", code="invalid_limit", field=field)
+    if isinstance(value, float):
+        if math.isinf(value):
+            raise InvalidInput(f"{field} is infinite; infinite limits are not supported, "
+                               "split off or transform the tail", code="infinite_limit", field=field)
+        if math.isnan(value):
+            raise InvalidInput(f"{field} is not a number", code="invalid_limit", field=field)
+        return repr(value)
+    if isinstance(value, Fraction):
+        return f"{value.numerator}/{value.denominator}" if value.denominator != 1 else str(value.numerator)
+    if isinstance(value, int):
+        return str(value)
+    if isinstance(value, str):
+        if value.strip().lower() in _INFINITE:
+            raise InvalidInput(f"{field} is infinite; infinite limits are not supported, "
+                               "split off or transform the tail", code="infinite_limit", field=field)
+        return value
+    raise InvalidInput(f"{field} must be a number or text", code="invalid_limit", field=field)
+
+
+def parse_limit(value: LimitValue, field: str, parameters: tuple[str, ...] = ()) -> Formula:
+    text = limit_text(value, field)
+    try:
+        formula = parse(text, variable="_", parameters=parameters)
+    except FormulaError as error:
+        raise InvalidInput(f"{field}: {error.message}", code=error.code, field=field,
+                           column=error.column) from None
+    return formula
+
+
+def enclose_limit(formula: Formula, ar: Arithmetic, parameters: dict[str, Fraction], field: str) -> Any:
+    try:
+        program = Program(formula, ar, parameters)
+        if not program.is_constant:
+            raise InvalidInput(f"{field} must be a constant", code="invalid_limit", field=field)
+        return program.value(ar.zero)
+    except QuadcertError as error:
+        if isinstance(error, InvalidInput):
+            raise
+        raise InvalidInput(f"{field} cannot be evaluated: {error.message}", code="invalid_limit",
+                           field=field) from None

@@ -1,0 +1,231 @@
+"""Certified adaptive composite Simpson quadrature.
+
+Each panel [p, q] gets an enclosure of its exact integral from the best of
+several rigorous bounds (see ``_peano``): Simpson's sum plus the signed
+f⁗ remainder, Simpson's sum plus an absolute f‴, f″ or f′ bound, or the
+plain range H·f([p, q]).  They are intersected, so a less smooth integrand
+is still certified, only with more nodes.  The worst panel is bisected until
+the summed enclosure meets the tolerance or a budget runs out; nodes are
+enclosures too (limits like 0.1 or pi/2 are not binary numbers) and every
+function value is computed once.
+"""
+
+from __future__ import annotations
+
+import heapq
+import math
+import time
+from dataclasses import dataclass
+from fractions import Fraction
+from typing import Any, Callable
+
+from ..arithmetic import Arithmetic
+from ..derivatives import Program
+from ..errors import ArithmeticFault, MagnitudeExceeded, NotCertifiable
+from . import _peano
+from ._finish import error_bound
+from ._result import PanelReport
+
+MAX_DEPTH = 60
+_HALF, _SIXTH = Fraction(1, 2), Fraction(1, 6)
+
+
+@dataclass
+class _Panel:
+    p: Any
+    m: Any
+    q: Any
+    fp: Any
+    fm: Any
+    fq: Any
+    depth: int
+    enclosure: Any = None      # None: not bounded yet on this panel
+    order: int = -1            # the bound that gave the narrowest enclosure
+    width: float = math.inf
+    fault: str = ""
+
+
+@dataclass
+class Outcome:
+    enclosure: Any
+    panels: list[_Panel]
+    nodes: int
+    stop_reason: str
+
+
+class Refiner:
+    """One adaptive run over [a, b] with a < b; not shared between threads."""
+
+    def __init__(self, program: Program, ar: Arithmetic, *, max_nodes: int, deadline: float | None,
+                 retry: Callable[[int], Program] | None = None) -> None:
+        self.program = program
+        self.ar = ar
+        self.max_nodes = max_nodes
+        self.deadline = deadline
+        self.retry = retry
+        self.values: dict[Any, Any] = {}
+        self.bounds_used: dict[str, int] = {}
+
+    # -- function values at nodes --------------------------------------------------------------
+    def value_at(self, node: Any) -> Any:
+        if node in self.values:
+            return self.values[node]
+        try:
+            value = self.program.value(node)
+        except ArithmeticFault as fault:
+            value = self._retry_value(node, fault)
+        self.values[node] = value
+        return value
+
+    def _retry_value(self, node: Any, fault: ArithmeticFault) -> Any:
+        where = self._where(node)
+        if not fault.certain and self.retry is not None:
+            for factor in (2, 4):
+                try:
+                    return self.retry(self.ar.prec * factor).value(node)
+                except ArithmeticFault as again:
+                    fault = again
+                    if again.certain:
+                        break
+        code = "magnitude_exceeded" if isinstance(fault, MagnitudeExceeded) else "undefined_at_point"
+        raise NotCertifiable(f"the integrand cannot be evaluated at x = {where}: {fault.message}", code=code,
+                             location=self.ar.bounds(node)) from None
+
+    def _where(self, node: Any) -> str:
+        lo, hi = self.ar.bounds(node)
+        return f"{lo:.17g}" if lo == hi else f"{(lo + hi) / 2:.17g}"
+
+    # -- panels ------------------------------------------------------------------------------
+    def panel(self, p: Any, q: Any, fp: Any, fq: Any, depth: int) -> _Panel:
+        ar = self.ar
+        m = ar.scale(ar.add(p, q), _HALF)
+        panel = _Panel(p, m, q, fp, self.value_at(m), fq, depth)
+        self._certify(panel)
+        return panel
+
+    def _certify(self, panel: _Panel) -> None:
+        ar = self.ar
+        region = ar.hull(panel.p, panel.q)
+        try:
+            series = self.program.taylor(region, 4)
+        except MagnitudeExceeded as fault:
+            panel.fault = fault.message
+            return
+        except ArithmeticFault as fault:
+            if fault.certain:
+                lo, hi = ar.bounds(region)
+                raise NotCertifiable(f"the integrand is undefined on [{lo:.17g}, {hi:.17g}]: {fault.message}",
+                                     code="undefined_on_interval", location=(lo, hi)) from None
+            panel.fault = fault.message
+            return
+        width = ar.sub(panel.q, panel.p)
+        simpson = ar.mul(ar.scale(width, _SIXTH),
+                         ar.add(ar.add(panel.fp, panel.fq), ar.scale(panel.fm, Fraction(4))))
+        candidates: list[tuple[int, Any]] = [(0, ar.mul(width, series[0]))]
+        if len(series) == 5:
+            remainder = ar.mul(ar.scale(ar.pow_int(width, 5), _peano.SIGNED_4 * 24), series[4])
+            candidates.append((4, ar.add(simpson, remainder)))
+        for k in (3, 2, 1):
+            if len(series) > k:
+                size = ar.function("abs", series[k])
+                radius = ar.mul(ar.scale(ar.pow_int(width, k + 1), _peano.ABSOLUTE[k] * _peano.FACTORIAL[k]),
+                                size)
+                radius = ar.hull(ar.neg(radius), radius)
+                candidates.append((k, ar.add(simpson, radius)))
+        best_order, best = min(candidates, key=lambda c: ar.width(c[1]))
+        enclosure = best
+        for _, other in candidates:
+            enclosure = ar.intersect(enclosure, other)
+        panel.enclosure, panel.order, panel.width = enclosure, best_order, ar.width(enclosure)
+
+    def split(self, panel: _Panel) -> tuple[_Panel, _Panel]:
+        return (self.panel(panel.p, panel.m, panel.fp, panel.fm, panel.depth + 1),
+                self.panel(panel.m, panel.q, panel.fm, panel.fq, panel.depth + 1))
+
+    # -- the loop ----------------------------------------------------------------------------
+    def run(self, a: Any, b: Any, target: Callable[[float, float], float]) -> Outcome:
+        """Refine until ``error_bound(total) <= target(low, high)`` of the summed enclosure."""
+        first = self.panel(a, b, self.value_at(a), self.value_at(b), 0)
+        heap: list[tuple[float, int, _Panel]] = []
+        counter = 0
+        unresolved = 0
+        width_sum = centre_sum = 0.0
+        next_check = math.inf  # check exactly once the estimate drops below this
+
+        def push(panel: _Panel) -> None:
+            nonlocal counter, unresolved, width_sum, centre_sum
+            heapq.heappush(heap, (-panel.width, counter, panel))
+            counter += 1
+            if panel.enclosure is None:
+                unresolved += 1
+            else:
+                width_sum += panel.width
+                centre_sum += sum(self.ar.bounds(panel.enclosure)) / 2
+
+        def pop() -> _Panel:
+            nonlocal unresolved, width_sum, centre_sum
+            panel = heapq.heappop(heap)[2]
+            if panel.enclosure is None:
+                unresolved -= 1
+            else:
+                width_sum -= panel.width
+                centre_sum -= sum(self.ar.bounds(panel.enclosure)) / 2
+            return panel
+
+        push(first)
+        stop = "tolerance_met"
+        while True:
+            if not unresolved:
+                half = width_sum / 2
+                if half <= target(centre_sum - half, centre_sum + half) * 1.01 and width_sum < next_check:
+                    low, high = self.ar.bounds(self.total(p for _, _, p in heap))
+                    if error_bound(low, high)[1] <= target(low, high):
+                        break
+                    next_check = width_sum * 0.95
+            if len(self.values) + 2 > self.max_nodes:
+                stop = "node_budget"
+                break
+            if self.deadline is not None and time.monotonic() > self.deadline:
+                stop = "deadline"
+                break
+            worst = heap[0][2]
+            if worst.depth >= MAX_DEPTH:
+                if worst.enclosure is None:
+                    raise self._unbounded(worst)
+                stop = "resolution_limit"
+                break
+            pop()
+            for child in self.split(worst):
+                push(child)
+        panels = [p for _, _, p in heap]
+        stuck = [p for p in panels if p.enclosure is None]
+        if stuck:
+            raise self._unbounded(stuck[0], budget=True)
+        for panel in panels:
+            name = _peano.BOUND_NAMES[panel.order]
+            self.bounds_used[name] = self.bounds_used.get(name, 0) + 1
+        return Outcome(self.total(panels), panels, len(self.values), stop)
+
+    def _unbounded(self, panel: _Panel, budget: bool = False) -> NotCertifiable:
+        lo, hi = self.ar.bounds(self.ar.hull(panel.p, panel.q))
+        when = " before the budget ran out" if budget else ""
+        return NotCertifiable(f"cannot bound the integrand near x = {(lo + hi) / 2:.17g}{when}; it may be "
+                              f"unbounded or undefined there ({panel.fault})", code="unbounded_near",
+                              location=(lo, hi))
+
+    def total(self, panels: Any) -> Any:
+        ar = self.ar
+        total = ar.zero
+        for panel in panels:
+            total = ar.add(total, panel.enclosure)
+        return total
+
+    def mesh(self, panels: list[_Panel], sign: int) -> tuple[PanelReport, ...]:
+        ar = self.ar
+        ordered = sorted(panels, key=lambda p: ar.bounds(p.p)[0])
+        reports = []
+        for panel in ordered:
+            low, high = ar.bounds(panel.enclosure if sign > 0 else ar.neg(panel.enclosure))
+            reports.append(PanelReport(ar.bounds(panel.p)[0], ar.bounds(panel.q)[1], (low, high),
+                                       _peano.BOUND_NAMES[panel.order]))
+        return tuple(reports)
