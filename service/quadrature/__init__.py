@@ -1,6 +1,7 @@
 """Certified quadrature: adaptive composite Simpson and the a priori planner."""
 
 from ._integrate import integrate
+from ._planner import plan
 from ._result import IntegralResult, PanelReport, Plan, RulePlan
 
-__all__ = ["IntegralResult", "PanelReport", "Plan", "RulePlan", "integrate"]
+__all__ = ["IntegralResult", "PanelReport", "Plan", "RulePlan", "integrate", "plan"]

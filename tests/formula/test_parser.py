@@ -1,0 +1,118 @@
+"""The formula language: grammar, canonical text, coded errors with columns, hard limits."""
+
+from fractions import Fraction
+
+import pytest
+
+from service.errors import FormulaError
+from service.formula import Binary, Negate, Number, parse
+
+
+@pytest.mark.parametrize("text, canonical", [
+    ("-x^2", "-x^2"),
+    ("2^3^2", "2^3^2"),
+    ("(2^3)^2", "(2^3)^2"),
+    ("(-x)^2", "(-x)^2"),
+    ("a - (b - c)", "a - (b - c)"),
+    ("x/2/3", "x/2/3"),
+    ("x/(2/3)", "x/(2/3)"),
+    ("2^-x", "2^(-x)"),
+    ("  sin( x )*  cos(x)", "sin(x)*cos(x)"),
+    ("1e-3*x", "0.001*x"),
+    ("ln(x) + arctan(x)", "log(x) + atan(x)"),
+    ("+x", "x"),
+    ("min(x, 1, 2)", "min(x, 1, 2)"),
+])
+def test_canonical_text_round_trips(text: str, canonical: str) -> None:
+    formula = parse(text, parameters=("a", "b", "c"))
+    assert formula.text == canonical
+    assert parse(canonical, parameters=("a", "b", "c")).root == formula.root
+
+
+def test_power_is_right_associative_and_binds_tighter_than_unary_minus() -> None:
+    root = parse("-x^2").root
+    assert isinstance(root, Negate) and isinstance(root.operand, Binary) and root.operand.op == "^"
+    tower = parse("2^3^2").root
+    assert isinstance(tower, Binary) and isinstance(tower.right, Binary)
+
+
+def test_decimal_literals_are_exact() -> None:
+    root = parse("0.1").root
+    assert isinstance(root, Number) and root.value == Fraction(1, 10)
+
+
+def test_other_variable_name_and_parameters() -> None:
+    formula = parse("k*t^2", variable="t", parameters=["k"])
+    assert formula.text == "k*t^2"
+    with pytest.raises(FormulaError) as info:
+        parse("k*x", variable="t", parameters=["k"])
+    assert info.value.code == "unknown_name" and info.value.column == 3
+
+
+@pytest.mark.parametrize("text, code, column", [
+    ("sinn(x)", "unknown_function", 1),
+    ("2x", "implicit_multiplication", 2),
+    ("2(x+1)", "implicit_multiplication", 2),
+    ("x y", "implicit_multiplication", 3),
+    ("(x+1", "unbalanced_parenthesis", 1),
+    ("x+1)", "unbalanced_parenthesis", 4),
+    ("x**2", "unsupported_operator", 2),
+    ("x +* 2", "unexpected_token", 4),
+    ("", "empty_formula", 1),
+    ("   ", "empty_formula", 1),
+    ("2*", "unexpected_end", 3),
+    ("x.real", "unexpected_character", 2),
+    ("x; 1", "unexpected_character", 2),
+    ("sin", "missing_arguments", 1),
+    ("atan(x, 1)", "wrong_argument_count", 1),
+    ("max(x)", "wrong_argument_count", 1),
+    ("y", "unknown_name", 1),
+    ("x(2)", "unknown_function", 1),
+])
+def test_errors_carry_code_and_column(text: str, code: str, column: int) -> None:
+    with pytest.raises(FormulaError) as info:
+        parse(text)
+    assert info.value.code == code
+    assert info.value.column == column
+    assert f"(at column {column})" in str(info.value)
+
+
+def test_unknown_function_suggests_the_near_name() -> None:
+    with pytest.raises(FormulaError, match=r"unknown function 'sinn'; did you mean 'sin'\? \(at column 1\)"):
+        parse("sinn(x)")
+
+
+def test_look_alike_unicode_is_named() -> None:
+    with pytest.raises(FormulaError, match="CYRILLIC SMALL LETTER HA") as info:
+        parse("\u0445^2")
+    assert info.value.code == "unexpected_character"
+    with pytest.raises(FormulaError, match="write '\\*' instead"):
+        parse("2\u00d7x")
+
+
+@pytest.mark.parametrize("text, code", [
+    ("(" * 65 + "x" + ")" * 65, "nesting_too_deep"),
+    ("(" * 10000 + "x" + ")" * 10000, "formula_too_long"),
+    ("x" + "+x" * 1200, "formula_too_large"),
+    ("1" * 61, "literal_too_long"),
+    ("1e100000000", "literal_out_of_range"),
+    ("x^1001", "power_too_large"),
+    ("-" * 70 + "x", "nesting_too_deep"),
+])
+def test_hard_limits(text: str, code: str) -> None:
+    with pytest.raises(FormulaError) as info:
+        parse(text)
+    assert info.value.code == code
+
+
+def test_python_is_unreachable() -> None:
+    for text in ["__import__('os').system('id')", "lambda: 1", "x.__class__", "[x]", "{x}", "x if x else 1",
+                 "getattr(x, 'y')", "open('f')"]:
+        with pytest.raises(FormulaError):
+            parse(text)
+
+
+def test_reserved_parameter_names_are_refused() -> None:
+    for bad in ["sin", "pi", "x", "2a", "a-b"]:
+        with pytest.raises(FormulaError):
+            parse("x", parameters=[bad])

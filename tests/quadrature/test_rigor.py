@@ -1,0 +1,121 @@
+"""Certification beyond C^4, signed vs absolute remainders, budgets, and refusals."""
+
+from __future__ import annotations
+
+import math
+from fractions import Fraction
+
+import pytest
+import scipy.integrate
+
+from service import integrate
+from service.arithmetic import MpmathArithmetic
+from service.derivatives import Program
+from service.errors import InvalidInput, NotCertifiable
+from service.formula import parse
+from service.quadrature import _peano
+from tests.conftest import HP, encloses
+
+
+@pytest.mark.parametrize("integrand, a, b, exact, source", [
+    ("sqrt(x)", 0, 1, HP.mpf(2) / 3, "closed form 2/3"),
+    ("abs(x - 0.3)", -1, 1, (HP.mpf("1.3") ** 2 + HP.mpf("0.7") ** 2) / 2, "closed form (1.3^2 + 0.7^2)/2"),
+    ("x^1.5", 0, 1, HP.mpf(2) / 5, "closed form 2/5"),
+    ("max(sin(x), cos(x))", 0, "pi", 1 + HP.sqrt(2), "closed form 1 + sqrt(2)"),
+    ("sqrt(1 - x^2)", -1, 1, HP.pi / 2, "closed form pi/2 (half disc)"),
+])
+def test_non_c4_integrands_are_certified(integrand, a, b, exact, source) -> None:
+    result = integrate(integrand, a, b, 1e-8)
+    assert result.tolerance_met, (source, result.stop_reason)
+    assert encloses(result.enclosure, exact), source
+    assert set(result.bounds_used) - {"simpson-f4-signed"}, "a lower-order bound must have been needed"
+
+
+def test_signed_remainder_is_tighter_than_absolute() -> None:
+    """On exp over [0, 1/4] the signed −H⁵/2880·f⁗ enclosure is far narrower than ±H⁵/2880·max|f⁗|."""
+    ar = MpmathArithmetic(96)
+    p, q = ar.zero, ar.exact(Fraction(1, 4))
+    series = Program(parse("exp(x)"), ar).taylor(ar.hull(p, q), 4)
+    h5 = ar.pow_int(ar.sub(q, p), 5)
+    signed = ar.mul(ar.scale(h5, _peano.SIGNED_4 * 24), series[4])
+    size = ar.bounds(ar.function("abs", series[4]))[1] * 24
+    absolute_width = 2 * ar.bounds(h5)[1] / 2880 * size
+    assert ar.width(signed) < absolute_width / 5
+    # both contain the true remainder: exact integral minus Simpson's sum (closed form)
+    exact = HP.exp(HP.mpf(1) / 4) - 1
+    simpson = HP.mpf(1) / 24 * (1 + 4 * HP.exp(HP.mpf(1) / 8) + HP.exp(HP.mpf(1) / 4))
+    remainder = exact - simpson
+    assert HP.make_mpf(signed.lo) <= remainder <= HP.make_mpf(signed.hi)
+    assert abs(remainder) <= absolute_width / 2
+
+
+def test_budget_exhaustion_still_returns_a_rigorous_enclosure() -> None:
+    result = integrate("sin(50*x)^2", 0, 3, 1e-14, max_nodes=41)
+    assert not result.tolerance_met and result.stop_reason == "node_budget" and result.nodes <= 41
+    exact = HP.mpf(3) / 2 - HP.sin(300) / 200  # closed form
+    assert encloses(result.enclosure, exact)
+
+
+def test_deadline_returns_partial_enclosure() -> None:
+    result = integrate("sin(1/(x+0.001))", 0, 1, 1e-13, deadline_seconds=0.3)
+    assert result.stop_reason in ("deadline", "tolerance_met")
+    if not result.tolerance_met:
+        assert result.error_bound > 1e-13
+
+
+def test_scipy_quad_is_confidently_wrong_where_we_are_certified() -> None:
+    """A narrow peak far from scipy's first Gauss-Kronrod nodes: quad misses it and reports a tiny error.
+
+    Exact value: the Gaussian's integral over the real line is sqrt(pi)/10 (closed form); the tails
+    outside [0, 1000] are below 1e-1000, far under any tolerance here.
+    """
+    def peak(x: float) -> float:
+        return math.exp(-100 * (x - 537.3) ** 2)
+
+    value, claimed_error = scipy.integrate.quad(peak, 0, 1000)
+    exact = HP.sqrt(HP.pi) / 10
+    assert claimed_error < 1e-6 and abs(value - exact) > 0.1, "scipy is expected to miss the peak"
+    ours = integrate("exp(-100*(x - 537.3)^2)", 0, 1000, 1e-8)
+    assert ours.tolerance_met and encloses(ours.enclosure, exact)
+
+
+@pytest.mark.parametrize("integrand, a, b, code", [
+    ("log(x)", -1, 1, "undefined_at_point"),
+    ("1/x", -1, 1, "undefined_at_point"),
+    ("1/(x - 0.3)", 0, 1, "unbounded_near"),
+    ("1/sqrt(x)", 0, 1, "undefined_at_point"),
+    ("sqrt(x - 2)", 0, 1, "undefined_at_point"),
+    ("tan(x)", 0, 3, "unbounded_near"),
+    ("1/abs(x - 1/3)", 0, 1, "unbounded_near"),
+    ("log(x - 2)", 0, 1, "undefined_at_point"),
+])
+def test_refusals_are_coded_with_location(integrand, a, b, code) -> None:
+    with pytest.raises(NotCertifiable) as info:
+        integrate(integrand, a, b, 1e-6)
+    assert info.value.code == code
+    assert info.value.location is not None
+
+
+def test_refusal_of_singularity_points_at_it() -> None:
+    with pytest.raises(NotCertifiable) as info:
+        integrate("1/(x - 0.3)", 0, 1, 1e-6)
+    low, high = info.value.location
+    assert low <= 0.3 <= high and high - low < 1e-9
+
+
+@pytest.mark.parametrize("kwargs, code", [
+    ({"tolerance": 0.0}, "invalid_tolerance"),
+    ({"tolerance": math.nan}, "invalid_tolerance"),
+    ({"tolerance": math.inf}, "invalid_tolerance"),
+    ({"tolerance": 1e-300}, "tolerance_out_of_range"),
+    ({"max_nodes": 10**12}, "budget_out_of_range"),
+    ({"upper_limit": "inf"}, "infinite_limit"),
+    ({"upper_limit": math.inf}, "infinite_limit"),
+    ({"upper_limit": "x+1"}, "unknown_name"),
+    ({"upper_limit": "2x"}, "implicit_multiplication"),
+])
+def test_bad_inputs_are_coded(kwargs, code) -> None:
+    args = {"integrand": "x", "lower_limit": 0, "upper_limit": 1, "tolerance": 1e-6, **kwargs}
+    with pytest.raises(InvalidInput) as info:
+        integrate(**args)
+    assert info.value.code == code
