@@ -84,7 +84,7 @@ def canonical_text(node: Node) -> str:
 
     >>> from service.formula import parse
     >>> canonical_text(parse("((2*x))^(2) +  sin( x )").root)
-    '2*x^2 + sin(x)'
+    '(2*x)^2 + sin(x)'
     """
     if isinstance(node, Number):
         return node.text
