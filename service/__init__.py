@@ -14,8 +14,8 @@ True
 from ._version import ENGINE_VERSION, __version__
 from .errors import (ArithmeticFault, FormulaError, InvalidInput, NotCertifiable, QuadcertError)
 from .formula import Formula, parse
-from .quadrature import IntegralResult, PanelReport, Plan, RulePlan, integrate, plan
+from .quadrature import CheckResult, IntegralResult, PanelReport, Plan, RulePlan, check, integrate, plan
 
-__all__ = ["ENGINE_VERSION", "ArithmeticFault", "Formula", "FormulaError", "IntegralResult", "InvalidInput",
-           "NotCertifiable", "PanelReport", "Plan", "QuadcertError", "RulePlan", "__version__", "integrate",
+__all__ = ["ENGINE_VERSION", "ArithmeticFault", "CheckResult", "Formula", "FormulaError", "IntegralResult", "InvalidInput",
+           "NotCertifiable", "PanelReport", "Plan", "QuadcertError", "RulePlan", "__version__", "check", "integrate",
            "parse", "plan"]

@@ -1,7 +1,8 @@
 """Certified quadrature: adaptive composite Simpson and the a priori planner."""
 
+from ._check import CheckResult, check
 from ._integrate import integrate
 from ._planner import plan
 from ._result import IntegralResult, PanelReport, Plan, RulePlan
 
-__all__ = ["IntegralResult", "PanelReport", "Plan", "RulePlan", "integrate", "plan"]
+__all__ = ["CheckResult", "IntegralResult", "PanelReport", "Plan", "RulePlan", "check", "integrate", "plan"]

@@ -1,0 +1,154 @@
+"""Between routes and workers: validate cheaply in-process, consult the cache, run in the pool.
+
+Every method answers ``(status, body)`` where body is a response dict or a
+problem dict, so routes and the batch endpoint share one path and nothing
+raises past here.
+"""
+
+from __future__ import annotations
+
+import logging
+import time
+from fractions import Fraction
+from typing import Any
+
+from .._version import ENGINE_VERSION
+from ..errors import QuadcertError
+from ..formula import parse
+from ..quadrature._inputs import check_parameters
+from ..quadrature._limits import parse_limit
+from ._cache import ResultCache, cache_key
+from ._jobs import _error
+from ._metrics import Metrics
+from ._pool import PoolError, WorkerPool
+from ._problems import from_engine_error, problem_body
+from ._settings import Settings
+
+log = logging.getLogger("quadcert.computation")
+
+Answer = tuple[int, dict[str, Any]]
+
+
+def _fraction_text(value: Fraction) -> str:
+    return f"{value.numerator}/{value.denominator}"
+
+
+class Computation:
+    def __init__(self, settings: Settings, pool: WorkerPool, cache: ResultCache, metrics: Metrics) -> None:
+        self.settings = settings
+        self.pool = pool
+        self.cache = cache
+        self.metrics = metrics
+
+    # -- shared pieces -----------------------------------------------------------------------
+    def canonical(self, body: dict[str, Any]) -> dict[str, Any]:
+        """Parse formula, limits and parameters in-process: coded errors come back fast, without a worker."""
+        values = check_parameters(body.get("parameters"))
+        formula = parse(body["integrand"], variable=body.get("variable", "x"), parameters=tuple(values))
+        lower = parse_limit(body["lower_limit"], "lower_limit", tuple(values))
+        upper = parse_limit(body["upper_limit"], "upper_limit", tuple(values))
+        return {"integrand": formula.text, "variable": formula.variable, "lower": lower.text, "upper": upper.text,
+                "parameters": {k: _fraction_text(v) for k, v in sorted(values.items())},
+                **{k: body.get(k) for k in ("tolerance", "relative_tolerance", "max_nodes", "include_mesh",
+                                             "claimed_value") if k in body}}
+
+    def _engine_request(self, kind: str, body: dict[str, Any], deadline: float) -> dict[str, Any]:
+        request = {k: v for k, v in body.items() if v is not None}
+        if kind != "plan":
+            request.setdefault("max_nodes", self.settings.default_max_nodes)
+            request["deadline_seconds"] = deadline * 0.8
+        return request
+
+    async def _run(self, kind: str, body: dict[str, Any], deadline: float, wait: float, context: dict[str, Any]
+                   ) -> tuple[Answer, str | None]:
+        try:
+            canonical = self.canonical(body)
+        except QuadcertError as error:
+            return (0, problem_body(**_problem_args(_error(error)), **context)), None
+        key = cache_key(kind, canonical)
+        cached = self.cache.get(key)
+        if cached is not None:
+            return (200, {**cached, "cached": True, "compute_seconds": 0.0}), key
+        started = time.perf_counter()
+        try:
+            answer = await self.pool.run(kind, self._engine_request(kind, body, deadline), deadline + 1.0, wait)
+        except PoolError as error:
+            self.metrics.results.labels(error.code).inc()
+            return (0, problem_body(error.code, str(error), **context)), key
+        self.metrics.engine_seconds.observe(time.perf_counter() - started)
+        if "error" in answer:
+            self.metrics.results.labels("refused").inc()
+            if answer["error"]["code"] == "internal_error":
+                log.error("engine failure", extra={"detail": answer["error"]["detail"],
+                                                   "trace": answer["error"].get("trace")})
+                answer["error"].pop("trace", None)
+            return (0, from_engine_error(answer["error"], **context)), key
+        result = answer["ok"]
+        self.metrics.results.labels("certified").inc()
+        return (200, result), key
+
+    # -- integrals ---------------------------------------------------------------------------
+    async def integral(self, body: dict[str, Any], context: dict[str, Any], wait: float = 0.0,
+                       deadline: float | None = None) -> tuple[Answer, str | None]:
+        deadline = deadline or self.settings.request_deadline_seconds
+        (status, result), key = await self._run("integral", body, deadline, wait, context)
+        if status != 200 or result.get("cached"):
+            return (_status(status, result), result), key
+        response = _integral_response(result, body.get("variable", "x"))
+        if key is not None and result["stop_reason"] != "deadline":
+            self.cache.put(key, response)
+        return (200, {**response, "cached": False}), key
+
+    async def check(self, body: dict[str, Any], context: dict[str, Any]) -> Answer:
+        (status, result), key = await self._run("check", body, self.settings.request_deadline_seconds, 0.0, context)
+        if status != 200 or result.get("cached"):
+            return _status(status, result), result
+        integral = result["integral"]
+        response = {
+            "verdict": result["verdict"], "claimed_value": result["claimed_value"], "tolerance": result["tolerance"],
+            "distance": list(result["distance"]), "enclosure": list(integral["enclosure"]),
+            "value": integral["value"], "error_bound": integral["error_bound"], "nodes": integral["nodes"],
+            "integrand": integral["integrand"], "compute_seconds": integral["compute_seconds"],
+            "engine_version": ENGINE_VERSION,
+        }
+        if key is not None and result["verdict"] != "undecided":
+            self.cache.put(key, response)
+        return 200, response
+
+    async def plan(self, body: dict[str, Any], context: dict[str, Any]) -> Answer:
+        body = {**body}
+        (status, result), key = await self._run("plan", body, self.settings.request_deadline_seconds, 0.0, context)
+        if status != 200 or result.get("cached"):
+            return _status(status, result), result
+        response = {**result, "engine_version": ENGINE_VERSION}
+        if key is not None:
+            self.cache.put(key, response)
+        return 200, response
+
+
+def _problem_args(error: dict[str, Any]) -> dict[str, Any]:
+    args = {"code": error["code"], "detail": error["detail"], "kind": error.get("kind")}
+    for name in ("column", "field"):
+        if error.get(name) is not None:
+            args[name] = error[name]
+    if error.get("location"):
+        args["location"] = tuple(error["location"])
+    return args
+
+
+def _status(status: int, body: dict[str, Any]) -> int:
+    return body["status"] if status == 0 else status
+
+
+def _integral_response(result: dict[str, Any], variable: str) -> dict[str, Any]:
+    mesh = result.get("mesh")
+    return {
+        "value": result["value"], "enclosure": list(result["enclosure"]), "error_bound": result["error_bound"],
+        "tolerance": result["tolerance"], "tolerance_met": result["tolerance_met"],
+        "stop_reason": result["stop_reason"], "nodes": result["nodes"], "panels": result["panels"],
+        "integrand": result["integrand"], "variable": variable, "lower_limit": result["lower_limit"],
+        "upper_limit": result["upper_limit"], "precision_bits": result["precision_bits"],
+        "compute_seconds": result["compute_seconds"], "engine_version": ENGINE_VERSION,
+        "bounds_used": result["bounds_used"],
+        "mesh": [{**p, "contribution": list(p["contribution"])} for p in mesh] if mesh else None,
+    }

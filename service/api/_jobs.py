@@ -1,0 +1,56 @@
+"""What a worker process runs: plain dicts in, plain dicts out (picklable, transport-free)."""
+
+from __future__ import annotations
+
+import dataclasses
+import traceback
+from typing import Any, Callable
+
+from ..errors import FormulaError, InvalidInput, NotCertifiable, QuadcertError
+from ..quadrature import check, integrate, plan
+
+
+def _error(error: Exception) -> dict[str, Any]:
+    if isinstance(error, QuadcertError):
+        payload: dict[str, Any] = {"code": error.code, "detail": error.message, "kind": type(error).__name__}
+        if isinstance(error, (FormulaError, InvalidInput)) and getattr(error, "column", None) is not None:
+            payload["column"] = error.column
+        if isinstance(error, InvalidInput) and error.field:
+            payload["field"] = error.field
+        if isinstance(error, NotCertifiable) and error.location is not None:
+            payload["location"] = list(error.location)
+        return payload
+    return {"code": "internal_error", "detail": f"{type(error).__name__}: {error}", "kind": "internal",
+            "trace": traceback.format_exc(limit=8)}
+
+
+def run_integral(request: dict[str, Any]) -> dict[str, Any]:
+    return dataclasses.asdict(integrate(**request))
+
+
+def run_check(request: dict[str, Any]) -> dict[str, Any]:
+    return dataclasses.asdict(check(**request))
+
+
+def run_plan(request: dict[str, Any]) -> dict[str, Any]:
+    return dataclasses.asdict(plan(**request))
+
+
+def run_sleep(request: dict[str, Any]) -> dict[str, Any]:  # used by fault tests only
+    import time
+
+    time.sleep(float(request["seconds"]))
+    return {"slept": request["seconds"]}
+
+
+JOBS: dict[str, Callable[[dict[str, Any]], dict[str, Any]]] = {
+    "integral": run_integral, "check": run_check, "plan": run_plan, "sleep": run_sleep,
+}
+
+
+def execute(kind: str, request: dict[str, Any]) -> dict[str, Any]:
+    """Never raises: an answer is {"ok": ...} or {"error": ...}."""
+    try:
+        return {"ok": JOBS[kind](request)}
+    except Exception as error:  # noqa: BLE001 - every failure must become an answer
+        return {"error": _error(error)}

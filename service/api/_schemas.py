@@ -1,0 +1,134 @@
+"""Request and response bodies of the HTTP API, kept apart from the engine's domain types."""
+
+from __future__ import annotations
+
+from typing import Annotated, Literal
+
+from pydantic import BaseModel, ConfigDict, Field, StrictBool, StrictFloat, StrictInt, StrictStr
+
+Number = StrictFloat | StrictInt
+Limit = Annotated[Number | Annotated[StrictStr, Field(max_length=512)],
+                  Field(description="A number, or text: an exact decimal such as \"0.1\" or a constant "
+                                    "expression such as \"pi/2\". JSON numbers are read as the decimal they spell.")]
+
+
+class _Strict(BaseModel):
+    model_config = ConfigDict(extra="forbid")
+
+
+class IntegralRequest(_Strict):
+    integrand: Annotated[StrictStr, Field(max_length=100_000, description="Formula in the variable",
+                                          examples=["exp(-x^2)"])]
+    variable: Annotated[StrictStr, Field(max_length=64)] = "x"
+    lower_limit: Limit
+    upper_limit: Limit
+    tolerance: Annotated[Number, Field(description="Absolute tolerance on |exact − value|, > 0")] = 1e-8
+    relative_tolerance: Number | None = Field(None, description="Also accept error <= this × |integral|")
+    parameters: dict[Annotated[str, Field(max_length=64)], Number | Annotated[StrictStr, Field(max_length=80)]] = \
+        Field(default_factory=dict, max_length=32)
+    max_nodes: StrictInt | None = Field(None, description="Evaluation budget; the server default applies if absent")
+    include_mesh: StrictBool = False
+
+
+class CheckRequest(IntegralRequest):
+    claimed_value: Number = Field(description="The value under test, e.g. from the code being checked")
+
+
+class PlanRequest(_Strict):
+    integrand: Annotated[StrictStr, Field(max_length=100_000)]
+    variable: Annotated[StrictStr, Field(max_length=64)] = "x"
+    lower_limit: Limit
+    upper_limit: Limit
+    tolerance: Number = 1e-8
+    parameters: dict[Annotated[str, Field(max_length=64)], Number | Annotated[StrictStr, Field(max_length=80)]] = \
+        Field(default_factory=dict, max_length=32)
+
+
+class BatchRequest(_Strict):
+    items: list[IntegralRequest] = Field(min_length=1)
+
+
+class Panel(BaseModel):
+    lower: float
+    upper: float
+    contribution: tuple[float, float]
+    bound: str
+
+
+class IntegralResponse(BaseModel):
+    value: float
+    enclosure: tuple[float, float] = Field(description="Guaranteed to contain the exact integral")
+    error_bound: float = Field(description="Guaranteed >= |exact − value|")
+    tolerance: float
+    tolerance_met: bool
+    stop_reason: Literal["tolerance_met", "node_budget", "deadline", "resolution_limit"]
+    nodes: int
+    panels: int
+    integrand: str = Field(description="The integrand in canonical form")
+    variable: str
+    lower_limit: str
+    upper_limit: str
+    precision_bits: int
+    compute_seconds: float = Field(description="Engine time for this request (0 when served from cache)")
+    cached: bool
+    engine_version: str
+    bounds_used: dict[str, int]
+    mesh: list[Panel] | None = None
+
+
+class Problem(BaseModel):
+    """RFC 9457 problem details, with quadcert's machine-readable code."""
+
+    type: str
+    title: str
+    status: int
+    detail: str
+    code: str
+    instance: str | None = None
+    column: int | None = None
+    field: str | None = None
+    location: tuple[float, float] | None = None
+    request_id: str | None = None
+    errors: list[dict] | None = None
+
+
+class BatchResponse(BaseModel):
+    results: list[IntegralResponse | Problem]
+
+
+class CheckResponse(BaseModel):
+    verdict: Literal["pass", "fail", "undecided"]
+    claimed_value: float
+    tolerance: float
+    distance: tuple[float, float] = Field(description="Certified bounds of |claimed − exact|")
+    enclosure: tuple[float, float]
+    value: float
+    error_bound: float
+    nodes: int
+    integrand: str
+    compute_seconds: float
+    engine_version: str
+
+
+class RulePlanResponse(BaseModel):
+    rule: str
+    intervals: int
+    nodes: int
+    spacing: float
+    derivative_order: int
+    derivative_bound: float | None
+    error_bound: float | None
+    available: bool
+    reason: str | None = None
+
+
+class PlanResponse(BaseModel):
+    integrand: str
+    lower_limit: str
+    upper_limit: str
+    tolerance: float
+    simpson: RulePlanResponse
+    trapezoid: RulePlanResponse
+    subintervals_for_bounds: int
+    compute_seconds: float
+    engine_version: str

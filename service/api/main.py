@@ -1,0 +1,106 @@
+"""Assembles the app: settings, pool, cache, metrics, routers, error mapping. No logic of its own."""
+
+from __future__ import annotations
+
+import logging
+from contextlib import asynccontextmanager
+from typing import Any, AsyncIterator
+
+from fastapi import FastAPI, Request
+from fastapi.exceptions import RequestValidationError
+from fastapi.openapi.utils import get_openapi
+from starlette.exceptions import HTTPException as StarletteHTTPException
+
+from .. import __version__
+from ._cache import ResultCache
+from ._computation import Computation
+from ._logging import configure
+from ._metrics import Metrics
+from ._middleware import BodyLimit, RequestContext
+from ._pool import WorkerPool
+from ._problems import problem_body, problem_response
+from ._schemas import Problem
+from ._settings import Settings
+from .routers import checks, health, integrals, operations, plans
+
+log = logging.getLogger("quadcert.app")
+
+DESCRIPTION = """Definite integrals of one-variable formulas with a **guaranteed** error bound.
+
+Every `enclosure` provably contains the exact integral of the formula as written. A certificate is
+about that formula only; engineering decisions stay with licensed practice and local codes."""
+
+
+def create_app(settings: Settings | None = None) -> FastAPI:
+    settings = settings or Settings()
+    configure(settings.log_level)
+    pool = WorkerPool(settings.workers, settings.queue_limit)
+    cache = ResultCache(settings.cache_entries)
+    metrics = Metrics(pool, cache)
+
+    @asynccontextmanager
+    async def lifespan(app: FastAPI) -> AsyncIterator[None]:
+        await pool.start()
+        log.info("started", extra={"workers": settings.workers, "queue_limit": settings.queue_limit})
+        yield
+        app.state.draining = True
+        await pool.close()
+        log.info("stopped")
+
+    app = FastAPI(title="quadcert", version=__version__, description=DESCRIPTION, lifespan=lifespan)
+    app.state.settings = settings
+    app.state.pool = pool
+    app.state.metrics = metrics
+    app.state.draining = False
+    app.state.computation = Computation(settings, pool, cache, metrics)
+    for module in (health, integrals, checks, plans, operations):
+        app.include_router(module.router)
+    _install_error_handlers(app)
+    app.add_middleware(BodyLimit, limit=settings.max_body_bytes)
+    app.add_middleware(RequestContext, state=app.state)
+    app.openapi = lambda: _openapi(app)  # type: ignore[method-assign]
+    return app
+
+
+def _context(request: Request) -> dict[str, Any]:
+    return {"instance": request.url.path, "request_id": getattr(request.state, "request_id", None)}
+
+
+def _install_error_handlers(app: FastAPI) -> None:
+    @app.exception_handler(RequestValidationError)
+    async def invalid(request: Request, error: RequestValidationError):  # type: ignore[no-untyped-def]
+        errors = [{"location": [str(p) for p in e.get("loc", ())], "message": e.get("msg", ""),
+                   "type": e.get("type", "")} for e in error.errors()]
+        first = errors[0] if errors else {"location": [], "message": "invalid request"}
+        where = ".".join(p for p in first["location"] if p not in ("body", "query"))
+        body = problem_body("invalid_request", f"{where or 'request'}: {first['message']}", field=where or None,
+                            errors=errors, **_context(request))
+        if request.url.path == "/v1/integral" and request.query_params.get("format", "text") != "json":
+            from .routers.integrals import _plain_problem
+
+            return _plain_problem(body, request.query_params.get("format", "text"), request)
+        return problem_response(body)
+
+    @app.exception_handler(StarletteHTTPException)
+    async def http_error(request: Request, error: StarletteHTTPException):  # type: ignore[no-untyped-def]
+        code = {404: "not_found", 405: "method_not_allowed", 413: "body_too_large"}.get(error.status_code,
+                                                                                        "invalid_request")
+        body = problem_body(code, str(error.detail), **_context(request))
+        body["status"] = error.status_code
+        return problem_response(body)
+
+    @app.exception_handler(Exception)
+    async def unexpected(request: Request, error: Exception):  # type: ignore[no-untyped-def]
+        log.exception("unhandled error", extra={"path": request.url.path})
+        return problem_response(problem_body("internal_error", "an internal error occurred; it has been logged",
+                                             **_context(request)))
+
+
+def _openapi(app: FastAPI) -> dict[str, Any]:
+    if app.openapi_schema:
+        return app.openapi_schema
+    schema = get_openapi(title=app.title, version=app.version, description=app.description, routes=app.routes)
+    schema.setdefault("components", {}).setdefault("schemas", {})["Problem"] = Problem.model_json_schema(
+        ref_template="#/components/schemas/{model}")
+    app.openapi_schema = schema
+    return schema

@@ -1,0 +1,18 @@
+"""The CI verdict endpoint."""
+
+from __future__ import annotations
+
+from fastapi import APIRouter, Request
+from fastapi.responses import JSONResponse
+
+from .._schemas import CheckRequest, CheckResponse
+from ._common import PROBLEM_RESPONSES, computation, context, respond
+
+router = APIRouter(tags=["checks"])
+
+
+@router.post("/v1/checks", response_model=CheckResponse, responses=PROBLEM_RESPONSES,
+             summary="Verdict on a claimed value: pass, fail or undecided")
+async def create_check(body: CheckRequest, request: Request) -> JSONResponse:
+    status, answer = await computation(request).check(body.model_dump(), context(request))
+    return respond(request, status, answer)

@@ -1,0 +1,27 @@
+"""Liveness and readiness probes."""
+
+from __future__ import annotations
+
+from fastapi import APIRouter, Request
+from fastapi.responses import JSONResponse
+
+from .._problems import problem_body, problem_response
+
+router = APIRouter(tags=["operations"])
+
+
+@router.get("/healthz", summary="Liveness: the process answers")
+async def healthz() -> dict[str, str]:
+    return {"status": "ok"}
+
+
+@router.get("/readyz", summary="Readiness: workers are up and the queue has room",
+            responses={503: {"description": "Not ready"}})
+async def readyz(request: Request) -> JSONResponse:
+    pool = request.app.state.pool
+    if getattr(request.app.state, "draining", False) or not pool.ready:
+        body = problem_body("saturated" if not pool.closed else "shutting_down",
+                            f"not ready: {pool.alive} workers alive, {pool.pending} jobs pending",
+                            instance="/readyz")
+        return problem_response(body, retry_after=request.app.state.settings.retry_after_seconds)
+    return JSONResponse({"status": "ready", "workers": pool.alive, "pending": pool.pending})

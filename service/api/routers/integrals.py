@@ -1,0 +1,121 @@
+"""Integrals: POST for services, a batch form, and a plain GET for spreadsheet cells."""
+
+from __future__ import annotations
+
+import asyncio
+import hashlib
+from typing import Annotated, Literal
+
+from fastapi import APIRouter, Query, Request
+from fastapi.responses import JSONResponse, Response
+
+from ...errors import QuadcertError
+from .._cache import cache_key
+from .._formats import MEDIA_TYPES, render, render_problem
+from .._jobs import _error
+from .._problems import PROBLEM_MEDIA_TYPE, problem_body
+from .._schemas import BatchRequest, BatchResponse, IntegralRequest, IntegralResponse
+from ._common import PROBLEM_RESPONSES, computation, context, respond
+
+router = APIRouter(tags=["integrals"])
+
+
+@router.post("/v1/integrals", response_model=IntegralResponse, responses=PROBLEM_RESPONSES,
+             summary="Certify one definite integral")
+async def create_integral(body: IntegralRequest, request: Request) -> JSONResponse:
+    (status, answer), _ = await computation(request).integral(body.model_dump(), context(request))
+    return respond(request, status, answer)
+
+
+@router.post("/v1/integrals/batch", response_model=BatchResponse, responses=PROBLEM_RESPONSES,
+             summary="Certify many integrals; one result or one problem per item, in order")
+async def create_batch(body: BatchRequest, request: Request) -> JSONResponse:
+    settings = request.app.state.settings
+    if len(body.items) > settings.max_batch_items:
+        return respond(request, 413, problem_body("batch_too_large", f"{len(body.items)} items; the limit is "
+                                                  f"{settings.max_batch_items}", **context(request)))
+    engine = computation(request)
+    base = context(request)
+
+    async def one(index: int, item: IntegralRequest) -> dict:
+        item_context = {**base, "instance": f"{base['instance']}#/items/{index}"}
+        (_, answer), _ = await engine.integral(item.model_dump(), item_context,
+                                               wait=settings.batch_deadline_seconds)
+        return answer
+
+    results = await asyncio.gather(*(one(i, item) for i, item in enumerate(body.items)))
+    return JSONResponse({"results": list(results)})
+
+
+@router.get("/v1/integral", summary="One number for a spreadsheet cell",
+            responses={200: {"content": {"text/plain": {}, "text/csv": {}, "application/xml": {}}},
+                       304: {"description": "Not modified (ETag matched)"}, **PROBLEM_RESPONSES})
+async def read_integral(
+    request: Request,
+    integrand: Annotated[str, Query(max_length=4096)],
+    lower_limit: Annotated[str, Query(max_length=512)],
+    upper_limit: Annotated[str, Query(max_length=512)],
+    tolerance: float = 1e-8,
+    variable: Annotated[str, Query(max_length=64)] = "x",
+    relative_tolerance: float | None = None,
+    parameter: Annotated[list[str] | None, Query(description="name:value, repeatable")] = None,
+    format: Literal["text", "csv", "xml", "json"] = "text",
+    field: Literal["value", "error_bound", "low", "high", "nodes"] | None = None,
+) -> Response:
+    body = {"integrand": integrand, "lower_limit": lower_limit, "upper_limit": upper_limit, "tolerance": tolerance,
+            "variable": variable, "relative_tolerance": relative_tolerance}
+    engine = computation(request)
+    try:
+        body["parameters"] = _parameters(parameter or [])
+        tag = _etag(engine.canonical(body), format, field)
+    except QuadcertError as error:
+        return _plain_problem(problem_body(**_args(error), **context(request)), format, request)
+    headers = {"ETag": tag, "Cache-Control": "public, max-age=86400"}
+    if tag in [t.strip() for t in request.headers.get("if-none-match", "").split(",")]:
+        return Response(status_code=304, headers=headers)
+    (status, answer), _ = await engine.integral(body, context(request))
+    if status != 200:
+        return _plain_problem(answer, format, request)
+    if not answer["tolerance_met"]:
+        code = "deadline_exceeded" if answer["stop_reason"] == "deadline" else "tolerance_not_met"
+        low, high = answer["enclosure"]
+        detail = (f"certified only to ±{answer['error_bound']:.3g} (enclosure [{low!r}, {high!r}], "
+                  f"{answer['stop_reason']}), not the tolerance {tolerance:g}")
+        return _plain_problem(problem_body(code, detail, **context(request)), format, request)
+    if format == "json":
+        return JSONResponse(answer, headers=headers)
+    return Response(render(answer, format, field), media_type=MEDIA_TYPES[format], headers=headers)
+
+
+def _parameters(pairs: list[str]) -> dict[str, str]:
+    from ...errors import InvalidInput
+
+    values: dict[str, str] = {}
+    for pair in pairs:
+        name, sep, value = pair.partition(":")
+        if not sep or not name:
+            raise InvalidInput(f"parameter {pair[:40]!r} must be written name:value", code="invalid_parameter",
+                               field="parameter")
+        values[name.strip()] = value.strip()
+    return values
+
+
+def _etag(canonical: dict, fmt: str, field: str | None) -> str:
+    digest = hashlib.sha256(f"{cache_key('integral-get', canonical)}|{fmt}|{field}".encode()).hexdigest()
+    return f'"{digest[:32]}"'
+
+
+def _args(error: QuadcertError) -> dict:
+    from .._computation import _problem_args
+
+    return _problem_args(_error(error))
+
+
+def _plain_problem(body: dict, fmt: str, request: Request) -> Response:
+    headers = {"Cache-Control": "no-store"}
+    if body["status"] == 503:
+        headers["Retry-After"] = str(request.app.state.settings.retry_after_seconds)
+    if fmt == "json":
+        return JSONResponse(body, status_code=body["status"], media_type=PROBLEM_MEDIA_TYPE, headers=headers)
+    media = MEDIA_TYPES["xml"] if fmt == "xml" else "text/plain; charset=utf-8"
+    return Response(render_problem(body, fmt), status_code=body["status"], media_type=media, headers=headers)

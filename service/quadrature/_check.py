@@ -1,0 +1,71 @@
+"""The CI verdict: is a claimed value within tolerance of the exact integral, provably?"""
+
+from __future__ import annotations
+
+import math
+import time
+from dataclasses import dataclass
+from fractions import Fraction
+from typing import Any
+
+from ..errors import InvalidInput
+from . import _inputs
+from ._finish import round_up
+from ._integrate import integrate
+from ._result import IntegralResult
+
+
+@dataclass(frozen=True)
+class CheckResult:
+    """``pass``: certified |claimed − exact| <= tolerance; ``fail``: certified > tolerance;
+    ``undecided``: the budget or deadline ran out before either could be proven."""
+
+    verdict: str
+    claimed_value: float
+    tolerance: float
+    distance: tuple[float, float]   # certified lower and upper bounds of |claimed − exact|
+    integral: IntegralResult
+
+
+def _round_down(value: Fraction) -> float:
+    result = float(value)
+    if Fraction(result) > value:
+        result = math.nextafter(result, -math.inf)
+    return max(result, 0.0)
+
+
+def distance_bounds(claimed: float, low: float, high: float) -> tuple[float, float]:
+    c, lo, hi = Fraction(claimed), Fraction(low), Fraction(high)
+    far = max(abs(c - lo), abs(c - hi))
+    near = Fraction(0) if lo <= c <= hi else min(abs(c - lo), abs(c - hi))
+    return _round_down(near), round_up(far)
+
+
+def check(integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: float, tolerance: float, *,
+          deadline_seconds: float | None = None, **options: Any) -> CheckResult:
+    """Decide a claim, refining the enclosure only as far as the decision needs.
+
+    >>> check("x^2", 0, 3, claimed_value=9.0000001, tolerance=1e-6).verdict
+    'pass'
+    >>> check("x^2", 0, 3, claimed_value=9.01, tolerance=1e-6).verdict
+    'fail'
+    """
+    if isinstance(claimed_value, bool) or not isinstance(claimed_value, (int, float)) \
+            or not math.isfinite(claimed_value):
+        raise InvalidInput("claimed_value must be a finite number", code="invalid_claim", field="claimed_value")
+    tolerance = _inputs.check_tolerance(tolerance)  # type: ignore[assignment]
+    claimed = float(claimed_value)
+    started = time.monotonic()
+    engine_tolerance = max(tolerance / 4, _inputs.MIN_TOLERANCE)
+    while True:
+        remaining = None if deadline_seconds is None else max(1e-3, deadline_seconds - (time.monotonic() - started))
+        result = integrate(integrand, lower_limit, upper_limit, engine_tolerance, deadline_seconds=remaining,
+                           **options)
+        near, far = distance_bounds(claimed, *result.enclosure)
+        if far <= tolerance:
+            return CheckResult("pass", claimed, tolerance, (near, far), result)
+        if near > tolerance:
+            return CheckResult("fail", claimed, tolerance, (near, far), result)
+        engine_tolerance /= 64
+        if result.stop_reason != "tolerance_met" or engine_tolerance < _inputs.MIN_TOLERANCE:
+            return CheckResult("undecided", claimed, tolerance, (near, far), result)
