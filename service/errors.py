@@ -11,7 +11,8 @@ ad-hoc strings.
     │   ├── DomainViolation     a function's argument leaves its domain
     │   ├── Unbounded           division by an interval that reaches zero, a pole
     │   └── MagnitudeExceeded   a value too large to compute with safely
-    └── NotCertifiable          the engine cannot certify, with reason and location
+    ├── NotCertifiable          the engine cannot certify, with reason and location
+    └── ProblemError            a quadcert service answered with RFC 9457 problem details
 """
 
 from __future__ import annotations
@@ -95,3 +96,16 @@ class NotCertifiable(QuadcertError):
                  location: tuple[float, float] | None = None) -> None:
         super().__init__(message, code=code)
         self.location = location
+
+
+class ProblemError(QuadcertError):
+    """Raised by the client: the service answered with problem details (``problem`` holds them all)."""
+
+    code = "problem"
+
+    def __init__(self, problem: dict) -> None:
+        super().__init__(f"{problem.get('status')} {problem.get('code')}: {problem.get('detail')}",
+                         code=str(problem.get("code", "problem")))
+        self.problem = problem
+        self.status = int(problem.get("status", 0) or 0)
+        self.column = problem.get("column")

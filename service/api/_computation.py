@@ -103,13 +103,11 @@ class Computation:
         (status, result), key = await self._run("check", body, self.settings.request_deadline_seconds, 0.0, context)
         if status != 200 or result.get("cached"):
             return _status(status, result), result
-        integral = result["integral"]
+        integral = _integral_response(result["integral"], body.get("variable", "x"))
         response = {
             "verdict": result["verdict"], "claimed_value": result["claimed_value"], "tolerance": result["tolerance"],
-            "distance": list(result["distance"]), "enclosure": list(integral["enclosure"]),
-            "value": integral["value"], "error_bound": integral["error_bound"], "nodes": integral["nodes"],
-            "integrand": integral["integrand"], "compute_seconds": integral["compute_seconds"],
-            "engine_version": ENGINE_VERSION,
+            "distance": list(result["distance"]), "enclosure": integral["enclosure"],
+            "integral": {**integral, "cached": False}, "engine_version": ENGINE_VERSION,
         }
         if key is not None and result["verdict"] != "undecided":
             self.cache.put(key, response)

@@ -101,12 +101,8 @@ class CheckResponse(BaseModel):
     claimed_value: float
     tolerance: float
     distance: tuple[float, float] = Field(description="Certified bounds of |claimed − exact|")
-    enclosure: tuple[float, float]
-    value: float
-    error_bound: float
-    nodes: int
-    integrand: str
-    compute_seconds: float
+    enclosure: tuple[float, float] = Field(description="Guaranteed to contain the exact integral")
+    integral: IntegralResponse
     engine_version: str
 
 

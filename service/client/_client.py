@@ -1,0 +1,138 @@
+"""httpx-based clients; responses become the engine's own result types."""
+
+from __future__ import annotations
+
+from typing import Any, Mapping
+
+import httpx
+
+from ..errors import ProblemError
+from ..quadrature import CheckResult, IntegralResult, PanelReport, Plan, RulePlan
+
+DEFAULT_URL = "http://127.0.0.1:8000"
+
+
+def integral_from(body: Mapping[str, Any]) -> IntegralResult:
+    mesh = body.get("mesh")
+    return IntegralResult(
+        value=body["value"], enclosure=tuple(body["enclosure"]), error_bound=body["error_bound"],
+        tolerance=body["tolerance"], tolerance_met=body["tolerance_met"], stop_reason=body["stop_reason"],
+        nodes=body["nodes"], panels=body["panels"], integrand=body["integrand"], lower_limit=body["lower_limit"],
+        upper_limit=body["upper_limit"], precision_bits=body["precision_bits"],
+        compute_seconds=body["compute_seconds"], bounds_used=dict(body.get("bounds_used") or {}),
+        mesh=tuple(PanelReport(p["lower"], p["upper"], tuple(p["contribution"]), p["bound"]) for p in mesh)
+        if mesh else None)
+
+
+def check_from(body: Mapping[str, Any]) -> CheckResult:
+    return CheckResult(body["verdict"], body["claimed_value"], body["tolerance"], tuple(body["distance"]),
+                       integral_from(body["integral"]))
+
+
+def plan_from(body: Mapping[str, Any]) -> Plan:
+    def rule(r: Mapping[str, Any]) -> RulePlan:
+        return RulePlan(r["rule"], r["intervals"], r["nodes"], r["spacing"], r["derivative_order"],
+                        r["derivative_bound"], r["error_bound"], r["available"], r.get("reason"))
+
+    return Plan(body["integrand"], body["lower_limit"], body["upper_limit"], body["tolerance"],
+                rule(body["simpson"]), rule(body["trapezoid"]), body["subintervals_for_bounds"],
+                body["compute_seconds"])
+
+
+def _request(integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float, options: dict[str, Any]
+             ) -> dict[str, Any]:
+    body = {"integrand": integrand, "lower_limit": lower_limit, "upper_limit": upper_limit, "tolerance": tolerance}
+    body.update({k: v for k, v in options.items() if v is not None})
+    return body
+
+
+def _answer(response: httpx.Response) -> dict[str, Any]:
+    try:
+        body = response.json()
+    except ValueError:
+        body = None
+    if response.status_code >= 400 or not isinstance(body, dict):
+        if isinstance(body, dict) and "code" in body:
+            raise ProblemError(body)
+        raise ProblemError({"status": response.status_code, "code": "unexpected_response",
+                            "detail": response.text[:200]})
+    return body
+
+
+def _batch(body: dict[str, Any]) -> list[IntegralResult | ProblemError]:
+    return [ProblemError(item) if "code" in item and "value" not in item else integral_from(item)
+            for item in body["results"]]
+
+
+class Client:
+    """Blocking client. Pass ``transport=httpx.ASGITransport(app)`` to talk to an app in-process."""
+
+    def __init__(self, base_url: str = DEFAULT_URL, *, timeout: float = 60.0, **httpx_options: Any) -> None:
+        self._http = httpx.Client(base_url=base_url, timeout=timeout, **httpx_options)
+
+    def __enter__(self) -> "Client":
+        return self
+
+    def __exit__(self, *exc: object) -> None:
+        self.close()
+
+    def close(self) -> None:
+        self._http.close()
+
+    def integrate(self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8,
+                  **options: Any) -> IntegralResult:
+        body = _request(integrand, lower_limit, upper_limit, tolerance, options)
+        return integral_from(_answer(self._http.post("/v1/integrals", json=body)))
+
+    def batch(self, items: list[dict[str, Any]]) -> list[IntegralResult | ProblemError]:
+        return _batch(_answer(self._http.post("/v1/integrals/batch", json={"items": items})))
+
+    def check(self, integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: float,
+              tolerance: float = 1e-8, **options: Any) -> CheckResult:
+        body = _request(integrand, lower_limit, upper_limit, tolerance, {**options, "claimed_value": claimed_value})
+        return check_from(_answer(self._http.post("/v1/checks", json=body)))
+
+    def plan(self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8,
+             **options: Any) -> Plan:
+        body = _request(integrand, lower_limit, upper_limit, tolerance, options)
+        return plan_from(_answer(self._http.post("/v1/plans", json=body)))
+
+    def healthy(self) -> bool:
+        try:
+            return self._http.get("/healthz").status_code == 200
+        except httpx.HTTPError:
+            return False
+
+
+class AsyncClient:
+    """The same calls as :class:`Client`, awaitable."""
+
+    def __init__(self, base_url: str = DEFAULT_URL, *, timeout: float = 60.0, **httpx_options: Any) -> None:
+        self._http = httpx.AsyncClient(base_url=base_url, timeout=timeout, **httpx_options)
+
+    async def __aenter__(self) -> "AsyncClient":
+        return self
+
+    async def __aexit__(self, *exc: object) -> None:
+        await self.aclose()
+
+    async def aclose(self) -> None:
+        await self._http.aclose()
+
+    async def integrate(self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8,
+                        **options: Any) -> IntegralResult:
+        body = _request(integrand, lower_limit, upper_limit, tolerance, options)
+        return integral_from(_answer(await self._http.post("/v1/integrals", json=body)))
+
+    async def batch(self, items: list[dict[str, Any]]) -> list[IntegralResult | ProblemError]:
+        return _batch(_answer(await self._http.post("/v1/integrals/batch", json={"items": items})))
+
+    async def check(self, integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: float,
+                    tolerance: float = 1e-8, **options: Any) -> CheckResult:
+        body = _request(integrand, lower_limit, upper_limit, tolerance, {**options, "claimed_value": claimed_value})
+        return check_from(_answer(await self._http.post("/v1/checks", json=body)))
+
+    async def plan(self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8,
+                   **options: Any) -> Plan:
+        body = _request(integrand, lower_limit, upper_limit, tolerance, options)
+        return plan_from(_answer(await self._http.post("/v1/plans", json=body)))
