@@ -13,6 +13,7 @@ PROBLEM_MEDIA_TYPE = "application/problem+json"
 #: code -> (HTTP status, title); codes not listed fall back by their origin
 CODES: dict[str, tuple[int, str]] = {
     "invalid_request": (422, "The request body does not match the schema"),
+    "malformed_body": (400, "The request body is not valid JSON text"),
     "body_too_large": (413, "The request body is too large"),
     "not_found": (404, "No such resource"),
     "method_not_allowed": (405, "Method not allowed on this resource"),

@@ -83,7 +83,7 @@ def _install_error_handlers(app: FastAPI) -> None:
 
     @app.exception_handler(StarletteHTTPException)
     async def http_error(request: Request, error: StarletteHTTPException):  # type: ignore[no-untyped-def]
-        code = {404: "not_found", 405: "method_not_allowed", 413: "body_too_large"}.get(error.status_code,
+        code = {400: "malformed_body", 404: "not_found", 405: "method_not_allowed", 413: "body_too_large"}.get(error.status_code,
                                                                                         "invalid_request")
         body = problem_body(code, str(error.detail), **_context(request))
         body["status"] = error.status_code

@@ -2,8 +2,9 @@
 
 from __future__ import annotations
 
+import contextlib
 import logging
-from typing import Any
+from typing import Any, Iterator
 
 import uvicorn
 
@@ -16,6 +17,15 @@ class _DrainingServer(uvicorn.Server):
     def __init__(self, config: uvicorn.Config, app: Any) -> None:
         super().__init__(config)
         self._app = app
+
+    @contextlib.contextmanager
+    def capture_signals(self) -> Iterator[None]:
+        """As uvicorn's, but a drained shutdown exits with status 0 instead of re-raising the signal."""
+        with super().capture_signals():
+            try:
+                yield
+            finally:
+                self._captured_signals.clear()
 
     def handle_exit(self, sig: int, frame: Any) -> None:
         self._app.state.draining = True

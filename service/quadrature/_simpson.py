@@ -119,8 +119,8 @@ class Refiner:
             panel.fault = fault.message
             return
         width = ar.sub(panel.q, panel.p)
-        simpson = ar.mul(ar.scale(width, _SIXTH),
-                         ar.add(ar.add(panel.fp, panel.fq), ar.scale(panel.fm, Fraction(4))))
+        simpson = ar.scale(ar.mul(width, ar.add(ar.add(panel.fp, panel.fq), ar.scale(panel.fm, Fraction(4)))),
+                           _SIXTH)
         candidates: list[tuple[int, Any]] = [(0, ar.mul(width, series[0]))]
         if len(series) == 5:
             remainder = ar.mul(ar.scale(ar.pow_int(width, 5), _peano.SIGNED_4 * 24), series[4])

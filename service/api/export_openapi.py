@@ -1,0 +1,16 @@
+"""Print the service's OpenAPI document: python -m service.api.export_openapi > openapi-notes/openapi.json"""
+
+from __future__ import annotations
+
+import json
+
+from .main import create_app
+from ._settings import Settings
+
+
+def document() -> dict:
+    return create_app(Settings(workers=1)).openapi()
+
+
+if __name__ == "__main__":
+    print(json.dumps(document(), indent=2, sort_keys=True))

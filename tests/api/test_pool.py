@@ -1,0 +1,80 @@
+"""The worker pool: hard deadlines, killed workers, saturation, and recovery."""
+
+from __future__ import annotations
+
+import asyncio
+import os
+import signal
+
+import pytest
+
+from service.api._pool import DeadlineExceeded, PoolClosed, Saturated, WorkerLost, WorkerPool
+
+pytestmark = pytest.mark.anyio
+
+
+@pytest.fixture
+def anyio_backend() -> str:
+    return "asyncio"
+
+
+async def test_deadline_kills_and_replaces_the_worker() -> None:
+    pool = WorkerPool(1, 4)
+    await pool.start()
+    try:
+        with pytest.raises(DeadlineExceeded):
+            await pool.run("sleep", {"seconds": 30}, deadline_seconds=0.5)
+        assert pool.restarts == 1
+        answer = await pool.run("integral", {"integrand": "x", "lower_limit": 0, "upper_limit": 1,
+                                             "tolerance": 1e-6}, deadline_seconds=30)
+        assert answer["ok"]["enclosure"] == (0.5, 0.5)
+    finally:
+        await pool.close()
+
+
+async def test_killed_worker_fails_only_its_job() -> None:
+    pool = WorkerPool(2, 8)
+    await pool.start()
+    try:
+        slow = asyncio.create_task(pool.run("sleep", {"seconds": 5}, deadline_seconds=30))
+        await asyncio.sleep(0.3)
+        busy = [w for w in pool._workers if w.process.is_alive()][0]  # the first worker takes the first job
+        os.kill(busy.process.pid, signal.SIGKILL)
+        others = await asyncio.gather(*(pool.run("integral", {"integrand": "x^2", "lower_limit": 0,
+                                                              "upper_limit": 3, "tolerance": 1e-9}, 30)
+                                        for _ in range(4)))
+        assert all(o["ok"]["enclosure"] == (9.0, 9.0) for o in others)
+        with pytest.raises(WorkerLost):
+            await slow
+        await asyncio.sleep(0.1)
+        assert pool.alive == 2 and pool.restarts >= 1
+    finally:
+        await pool.close()
+
+
+async def test_saturation_is_refused_not_queued_forever() -> None:
+    pool = WorkerPool(1, 2)
+    await pool.start()
+    try:
+        jobs = [asyncio.create_task(pool.run("sleep", {"seconds": 0.5}, 10)) for _ in range(2)]
+        await asyncio.sleep(0.05)
+        with pytest.raises(Saturated):
+            await pool.run("sleep", {"seconds": 0}, 10)
+        waited = await pool.run("sleep", {"seconds": 0}, 10, wait_for_slot=5)  # batches wait for a slot
+        assert waited == {"ok": {"slept": 0}}
+        await asyncio.gather(*jobs)
+    finally:
+        await pool.close()
+    with pytest.raises(PoolClosed):
+        await pool.run("sleep", {"seconds": 0}, 10)
+
+
+async def test_engine_errors_come_back_as_answers() -> None:
+    pool = WorkerPool(1, 2)
+    await pool.start()
+    try:
+        answer = await pool.run("integral", {"integrand": "1/x", "lower_limit": -1, "upper_limit": 1,
+                                             "tolerance": 1e-6}, 10)
+        assert answer["error"]["code"] == "undefined_at_point"
+    finally:
+        await pool.close()
