@@ -1,0 +1,77 @@
+"""The CLI in-process (offline mode): output, exit codes, JUnit and CSV files."""
+
+from __future__ import annotations
+
+import json
+import xml.etree.ElementTree as ET
+
+import pytest
+
+from service.cli import main
+from tests.conftest import HP, encloses
+
+
+def test_integrate_human_and_json(capsys) -> None:
+    assert main(["integrate", "exp(x)", "0", "2", "--tol", "1e-10"]) == 0
+    out = capsys.readouterr().out
+    assert "enclosure" in out and "certified" in out
+    assert main(["integrate", "exp(x)", "0", "2", "--tol", "1e-10", "--json"]) == 0
+    body = json.loads(capsys.readouterr().out)
+    assert encloses(body["enclosure"], HP.e ** 2 - 1)  # closed form
+
+
+def test_integrate_negative_limits_parameters_and_mesh(capsys) -> None:
+    assert main(["integrate", "a*abs(t)", "-1", "1", "--var", "t", "--param", "a=2", "--mesh"]) == 0
+    out = capsys.readouterr().out
+    assert "mesh:" in out and "simpson-f1" in out
+
+
+@pytest.mark.parametrize("claimed, code, verdict", [(9.0, 0, "pass"), (9.01, 1, "fail")])
+def test_check_exit_codes_and_junit(tmp_path, capsys, claimed, code, verdict) -> None:
+    report = tmp_path / "r.xml"
+    assert main(["check", "x^2", "0", "3", "--claimed", str(claimed), "--tol", "1e-6", "--junit", str(report),
+                 "--name", "area under x^2"]) == code
+    assert capsys.readouterr().out.startswith(verdict)
+    suite = ET.parse(report).getroot().find("testsuite")
+    case = suite.find("testcase")
+    assert case.get("name") == "area under x^2"
+    assert (case.find("failure") is not None) == (verdict == "fail")
+
+
+def test_check_undecided_and_error_exit_2(tmp_path, capsys) -> None:
+    assert main(["check", "sin(30*x)^2", "0", "3", "--claimed", "1.5", "--tol", "1e-13", "--max-nodes", "9"]) == 2
+    assert capsys.readouterr().out.startswith("undecided")
+    report = tmp_path / "e.xml"
+    assert main(["check", "sinn(x)", "0", "1", "--claimed", "1", "--tol", "1e-6", "--junit", str(report)]) == 2
+    assert "unknown_function" in capsys.readouterr().err
+    assert ET.parse(report).getroot().find("testsuite/testcase/error") is not None
+
+
+def test_batch_csv(tmp_path, capsys) -> None:
+    source = tmp_path / "in.csv"
+    source.write_text("integrand,lower_limit,upper_limit,tolerance\n1/x,1,2,1e-10\n2x,0,1,\nlog(x),-1,1,\n")
+    target = tmp_path / "out.csv"
+    assert main(["batch", str(source), "-o", str(target)]) == 2
+    lines = target.read_text().splitlines()
+    assert lines[0].startswith("integrand,lower_limit,upper_limit,tolerance,status,value")
+    assert len(lines) == 4
+    assert ",certified," in lines[1] and "implicit_multiplication" in lines[2] and "undefined_at_point" in lines[3]
+    assert "1 of 3 rows certified" in capsys.readouterr().err
+
+
+def test_batch_requires_columns(tmp_path, capsys) -> None:
+    source = tmp_path / "bad.csv"
+    source.write_text("formula,a,b\nx,0,1\n")
+    assert main(["batch", str(source)]) == 2
+    assert "invalid_csv" in capsys.readouterr().err
+
+
+def test_plan(capsys) -> None:
+    assert main(["plan", "exp(x)", "0", "2", "--tol", "0.5e-4"]) == 0
+    out = capsys.readouterr().out
+    assert "15 nodes" in out and "315 nodes" in out
+
+
+def test_formula_error_exits_2(capsys) -> None:
+    assert main(["integrate", "2x", "0", "1"]) == 2
+    assert "implicit_multiplication" in capsys.readouterr().err
