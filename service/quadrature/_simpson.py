@@ -59,6 +59,7 @@ class Refiner:
     def __init__(self, program: Program, ar: Arithmetic, *, max_nodes: int, deadline: float | None,
                  retry: Callable[[int], Program] | None = None) -> None:
         self.program = program
+        self.variable = program.formula.variable
         self.ar = ar
         self.max_nodes = max_nodes
         self.deadline = deadline
@@ -88,7 +89,7 @@ class Refiner:
                     if again.certain:
                         break
         code = "magnitude_exceeded" if isinstance(fault, MagnitudeExceeded) else "undefined_at_point"
-        raise NotCertifiable(f"the integrand cannot be evaluated at x = {where}: {fault.message}", code=code,
+        raise NotCertifiable(f"the integrand cannot be evaluated at {self.variable} = {where}: {fault.message}", code=code,
                              location=self.ar.bounds(node)) from None
 
     def _where(self, node: Any) -> str:
@@ -209,7 +210,7 @@ class Refiner:
     def _unbounded(self, panel: _Panel, budget: bool = False) -> NotCertifiable:
         lo, hi = self.ar.bounds(self.ar.hull(panel.p, panel.q))
         when = " before the budget ran out" if budget else ""
-        return NotCertifiable(f"cannot bound the integrand near x = {(lo + hi) / 2:.17g}{when}; it may be "
+        return NotCertifiable(f"cannot bound the integrand near {self.variable} = {(lo + hi) / 2:.17g}{when}; it may be "
                               f"unbounded or undefined there ({panel.fault})", code="unbounded_near",
                               location=(lo, hi))
 
