@@ -30,10 +30,6 @@ async def _send_problem(send: Send, body: dict[str, Any], retry_after: int | Non
     await send({"type": "http.response.body", "body": payload})
 
 
-class _TooLarge(Exception):
-    pass
-
-
 class BodyLimit:
     """Refuse bodies over ``limit`` bytes with 413, by header or by counting the stream."""
 
@@ -49,28 +45,29 @@ class BodyLimit:
         if declared is not None and declared.isdigit() and int(declared) > self.limit:
             return await _send_problem(send, too_large)
         seen = 0
-        started = False
+        exceeded = False
 
         async def limited_receive() -> dict[str, Any]:
-            nonlocal seen
+            nonlocal seen, exceeded
             message = await receive()
             if message["type"] == "http.request":
                 seen += len(message.get("body", b""))
                 if seen > self.limit:
-                    raise _TooLarge
+                    exceeded = True  # the app sees a disconnect; whatever it answers is replaced by 413
+                    return {"type": "http.disconnect"}
             return message
 
-        async def tracking_send(message: dict[str, Any]) -> None:
-            nonlocal started
-            if message["type"] == "http.response.start":
-                started = True
-            await send(message)
+        async def guarded_send(message: dict[str, Any]) -> None:
+            if not exceeded:
+                await send(message)
 
         try:
-            await self.app(scope, limited_receive, tracking_send)
-        except _TooLarge:
-            if not started:
-                await _send_problem(send, too_large)
+            await self.app(scope, limited_receive, guarded_send)
+        except Exception:
+            if not exceeded:
+                raise
+        if exceeded:
+            await _send_problem(send, too_large)
 
 
 class RequestContext:
