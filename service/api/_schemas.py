@@ -4,12 +4,18 @@ from __future__ import annotations
 
 from typing import Annotated, Literal
 
+from pydantic import conlist
+
 from pydantic import BaseModel, ConfigDict, Field, StrictBool, StrictFloat, StrictInt, StrictStr
 
 Number = StrictFloat | StrictInt
 Limit = Annotated[Number | Annotated[StrictStr, Field(max_length=512)],
                   Field(description="A number, or text: an exact decimal such as \"0.1\" or a constant "
                                     "expression such as \"pi/2\". JSON numbers are read as the decimal they spell.")]
+
+
+#: a closed interval [low, high] as two numbers
+Pair = conlist(float, min_length=2, max_length=2)
 
 
 class _Strict(BaseModel):
@@ -51,13 +57,13 @@ class BatchRequest(_Strict):
 class Panel(BaseModel):
     lower: float
     upper: float
-    contribution: tuple[float, float]
+    contribution: Pair
     bound: str
 
 
 class IntegralResponse(BaseModel):
     value: float
-    enclosure: tuple[float, float] = Field(description="Guaranteed to contain the exact integral")
+    enclosure: Pair = Field(description="Guaranteed to contain the exact integral")
     error_bound: float = Field(description="Guaranteed >= |exact − value|")
     tolerance: float
     tolerance_met: bool
@@ -87,7 +93,7 @@ class Problem(BaseModel):
     instance: str | None = None
     column: int | None = None
     field: str | None = None
-    location: tuple[float, float] | None = None
+    location: Pair | None = None
     request_id: str | None = None
     errors: list[dict] | None = None
 
@@ -100,8 +106,8 @@ class CheckResponse(BaseModel):
     verdict: Literal["pass", "fail", "undecided"]
     claimed_value: float
     tolerance: float
-    distance: tuple[float, float] = Field(description="Certified bounds of |claimed − exact|")
-    enclosure: tuple[float, float] = Field(description="Guaranteed to contain the exact integral")
+    distance: Pair = Field(description="Certified bounds of |claimed − exact|")
+    enclosure: Pair = Field(description="Guaranteed to contain the exact integral")
     integral: IntegralResponse
     engine_version: str
 

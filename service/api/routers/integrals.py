@@ -19,6 +19,16 @@ from ._common import PROBLEM_RESPONSES, computation, context, respond
 
 router = APIRouter(tags=["integrals"])
 
+#: GET failures come in the requested format: one line of text (text, csv), XML, or problem JSON (json)
+PLAIN_PROBLEM_RESPONSES = {
+    status: {"description": f"{meaning}; a one-line reason in the requested format",
+             "content": {"text/plain": {"schema": {"type": "string"}},
+                         "application/xml": {"schema": {"type": "string"}},
+                         "application/problem+json": {"schema": {"$ref": "#/components/schemas/Problem"}}}}
+    for status, meaning in [(422, "Bad formula or value, not certifiable, or tolerance not met"),
+                            (503, "At capacity or shutting down (see Retry-After)"), (504, "Deadline passed")]
+}
+
 
 @router.post("/v1/integrals", response_model=IntegralResponse, responses=PROBLEM_RESPONSES,
              summary="Certify one definite integral")
@@ -48,8 +58,10 @@ async def create_batch(body: BatchRequest, request: Request) -> JSONResponse:
 
 
 @router.get("/v1/integral", summary="One number for a spreadsheet cell",
-            responses={200: {"content": {"text/plain": {}, "text/csv": {}, "application/xml": {}}},
-                       304: {"description": "Not modified (ETag matched)"}, **PROBLEM_RESPONSES})
+            responses={200: {"content": {"text/plain": {"schema": {"type": "string"}},
+                                         "text/csv": {"schema": {"type": "string"}},
+                                         "application/xml": {"schema": {"type": "string"}}}},
+                       304: {"description": "Not modified (ETag matched)"}, **PLAIN_PROBLEM_RESPONSES})
 async def read_integral(
     request: Request,
     integrand: Annotated[str, Query(max_length=4096)],

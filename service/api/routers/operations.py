@@ -16,7 +16,8 @@ async def metrics(request: Request) -> Response:
     return Response(generate_latest(request.app.state.metrics.registry), media_type=CONTENT_TYPE_LATEST)
 
 
-@router.get("/problems/{code}", summary="What a problem type means", response_class=PlainTextResponse)
+@router.get("/problems/{code}", summary="What a problem type means", response_class=PlainTextResponse,
+            responses={404: {"description": "No such problem type", "content": {"text/plain": {}}}})
 async def problem_type(code: str) -> PlainTextResponse:
     status, title = status_and_title(code)
     known = code in CODES or code.replace("_", "").isalpha()

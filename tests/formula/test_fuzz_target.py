@@ -1,0 +1,24 @@
+"""A bounded run of the coverage-guided parser fuzz target (atheris); longer runs: see the target's docstring."""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+
+import pytest
+
+from service.formula._fuzz import check_one
+
+atheris = pytest.importorskip("atheris")
+
+
+def test_seed_inputs_pass_the_target() -> None:
+    for seed in [b"x", b"-x^2", b"sin(", b"2x", b"\xff\xfe", b"((((", b"min(x,a,k)", b"1e999999", b"x**2"]:
+        check_one(seed)
+
+
+def test_bounded_fuzz_run_finds_nothing(tmp_path) -> None:
+    done = subprocess.run([sys.executable, "-m", "service.formula._fuzz", "-runs=5000", "-seed=1",
+                           f"-artifact_prefix={tmp_path}/"], capture_output=True, text=True, timeout=600)
+    assert done.returncode == 0, done.stderr[-3000:]
+    assert "Done 5000 runs" in done.stderr
