@@ -7,7 +7,6 @@ nearest binary float.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from decimal import Decimal
 from fractions import Fraction
 from typing import Union
 
@@ -61,14 +60,20 @@ _ATOM = 5
 
 
 def decimal_text(value: Fraction) -> str:
-    """Shortest exact decimal text of a rational with a terminating expansion."""
+    """Exact decimal text of a rational whose denominator divides a power of ten (as literals' do)."""
     if value.denominator == 1:
         return str(value.numerator)
-    decimal = Decimal(value.numerator) / Decimal(value.denominator)
-    text = format(decimal.normalize(), "f")
-    if Fraction(text) != value:  # not a terminating decimal: keep it exact as a quotient
+    denominator, places = value.denominator, 0
+    for factor in (2, 5):
+        while denominator % factor == 0:
+            denominator //= factor
+    if denominator != 1:  # not a terminating decimal: keep it exact as a quotient
         return f"{value.numerator}/{value.denominator}"
-    return text
+    while (10 ** places) % value.denominator:
+        places += 1
+    digits = str(abs(value.numerator) * (10 ** places // value.denominator)).rjust(places + 1, "0")
+    whole, fraction = digits[:-places], digits[-places:].rstrip("0")
+    return ("-" if value < 0 else "") + whole + ("." + fraction if fraction else "")
 
 
 def _precedence(node: Node) -> int:

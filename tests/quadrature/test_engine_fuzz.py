@@ -18,7 +18,7 @@ REF.dps = 60
 LEAVES = st.sampled_from([("x", lambda x: x), ("2", lambda x: REF.mpf(2)), ("0.5", lambda x: REF.mpf("0.5")),
                           ("pi", lambda x: +REF.pi), ("3*x", lambda x: 3 * x)])
 SAFE_UNARY = [
-    ("sin({})", REF.sin), ("cos({})", REF.cos), ("exp({}/3)", lambda v: REF.exp(v / 3)),
+    ("sin({})", REF.sin), ("cos({})", REF.cos), ("exp(({})/3)", lambda v: REF.exp(v / 3)),
     ("atan({})", REF.atan), ("tanh({})", REF.tanh), ("erf({})", REF.erf),
     ("log(2 + ({})^2)", lambda v: REF.log(2 + v ** 2)), ("sqrt(1 + ({})^2)", lambda v: REF.sqrt(1 + v ** 2)),
     ("1/(1 + ({})^2)", lambda v: 1 / (1 + v ** 2)), ("({})^3", lambda v: v ** 3),
