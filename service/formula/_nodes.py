@@ -60,20 +60,33 @@ _ATOM = 5
 
 
 def decimal_text(value: Fraction) -> str:
-    """Exact decimal text of a rational whose denominator divides a power of ten (as literals' do)."""
-    if value.denominator == 1:
-        return str(value.numerator)
-    denominator, places = value.denominator, 0
+    """Exact, short decimal text of a rational whose denominator divides a power of ten (as literals' do).
+
+    Plain notation for ordinary sizes, ``<digits>e<exponent>`` otherwise, so the text never has more
+    significant digits than the literal it came from.
+    """
+    denominator = value.denominator
     for factor in (2, 5):
         while denominator % factor == 0:
             denominator //= factor
     if denominator != 1:  # not a terminating decimal: keep it exact as a quotient
         return f"{value.numerator}/{value.denominator}"
-    while (10 ** places) % value.denominator:
-        places += 1
-    digits = str(abs(value.numerator) * (10 ** places // value.denominator)).rjust(places + 1, "0")
-    whole, fraction = digits[:-places], digits[-places:].rstrip("0")
-    return ("-" if value < 0 else "") + whole + ("." + fraction if fraction else "")
+    if value == 0:
+        return "0"
+    exponent = 0
+    while (value * Fraction(10) ** -exponent).denominator != 1:
+        exponent -= 1
+    mantissa = int(value * Fraction(10) ** -exponent)
+    while mantissa % 10 == 0:
+        mantissa //= 10
+        exponent += 1
+    sign, digits = ("-" if mantissa < 0 else ""), str(abs(mantissa))
+    if 0 <= exponent <= 6:
+        return sign + digits + "0" * exponent
+    if -(len(digits) + 6) <= exponent < 0:
+        padded = digits.rjust(-exponent + 1, "0")
+        return f"{sign}{padded[:exponent]}.{padded[exponent:]}"
+    return f"{sign}{digits}e{exponent}"
 
 
 def _precedence(node: Node) -> int:

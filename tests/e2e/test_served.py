@@ -118,3 +118,23 @@ def test_sigterm_drains_in_flight_work_and_exits() -> None:
     assert results["slow"].status_code == 200  # finished (its engine deadline returns the enclosure so far)
     assert results["slow"].json()["stop_reason"] in ("deadline", "tolerance_met", "node_budget")
     assert code == 0 and time.monotonic() - started < 20
+
+
+def test_batch_with_items_past_their_deadline_answers_every_item() -> None:
+    running = start_server(QUADCERT_REQUEST_DEADLINE_SECONDS="1", QUADCERT_QUEUE_LIMIT="4")
+    try:
+        quick = {"integrand": "x^2", "lower_limit": 0, "upper_limit": 3, "tolerance": 1e-9}
+        items = [SLOW, quick, SLOW, {"integrand": "2x", "lower_limit": 0, "upper_limit": 1}, SLOW, quick] * 2
+        response = httpx.post(f"{running.url}/v1/integrals/batch", json={"items": items}, timeout=120)
+        assert response.status_code == 200
+        results = response.json()["results"]
+        assert len(results) == len(items)
+        for item, result in zip(items, results):
+            if item is SLOW:  # either the enclosure so far (engine deadline) or a deadline problem
+                assert result.get("stop_reason") == "deadline" or result.get("code") == "deadline_exceeded"
+            elif item is quick:
+                assert result["enclosure"] == [9.0, 9.0]
+            else:
+                assert result["code"] == "implicit_multiplication"
+    finally:
+        stop_server(running)
