@@ -43,9 +43,13 @@ class PoolClosed(PoolError):
     code = "shutting_down"
 
 
-def _worker_main(connection: multiprocessing.connection.Connection) -> None:
+def _worker_main(connection: multiprocessing.connection.Connection, backend: str = "flint") -> None:
     signal.signal(signal.SIGINT, signal.SIG_IGN)  # the parent decides when workers stop
     signal.signal(signal.SIGTERM, signal.SIG_DFL)
+    if backend == "flint":
+        from ..arithmetic import claim_flint_context
+
+        claim_flint_context()  # a worker runs one job at a time on one thread: it owns flint's context
     while True:
         try:
             message = connection.recv()
@@ -70,10 +74,10 @@ class _Job:
 
 
 class _Worker:
-    def __init__(self, context: multiprocessing.context.BaseContext) -> None:
+    def __init__(self, context: multiprocessing.context.BaseContext, backend: str) -> None:
         parent, child = context.Pipe()
         self.connection = parent
-        self.process = context.Process(target=_worker_main, args=(child,), daemon=True)
+        self.process = context.Process(target=_worker_main, args=(child, backend), daemon=True)
         self.process.start()
         child.close()
         self.busy = False
@@ -88,8 +92,9 @@ class _Worker:
 class WorkerPool:
     """``await pool.run(kind, request, deadline)`` → the job's answer dict."""
 
-    def __init__(self, size: int, queue_limit: int) -> None:
+    def __init__(self, size: int, queue_limit: int, backend: str = "flint") -> None:
         self.size = size
+        self.backend = backend
         self.queue_limit = queue_limit
         self._context = multiprocessing.get_context("spawn")
         self._queue: asyncio.Queue[_Job] | None = None
@@ -105,7 +110,7 @@ class WorkerPool:
     async def start(self) -> None:
         self._queue = asyncio.Queue()
         loop = asyncio.get_running_loop()
-        self._workers = await loop.run_in_executor(None, lambda: [_Worker(self._context) for _ in range(self.size)])
+        self._workers = await loop.run_in_executor(None, lambda: [_Worker(self._context, self.backend) for _ in range(self.size)])
         self._tasks = [asyncio.create_task(self._serve(i)) for i in range(self.size)]
 
     async def close(self) -> None:
@@ -235,7 +240,7 @@ class WorkerPool:
         await loop.run_in_executor(None, old.kill)
         if self.closed:
             raise PoolClosed("the service is shutting down")
-        fresh = await loop.run_in_executor(None, lambda: _Worker(self._context))
+        fresh = await loop.run_in_executor(None, lambda: _Worker(self._context, self.backend))
         self._workers[index] = fresh
         self.restarts += 1
         return fresh

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import os
+from typing import Literal
 
 from pydantic import Field
 from pydantic_settings import BaseSettings, SettingsConfigDict
@@ -28,4 +29,6 @@ class Settings(BaseSettings):
     cache_entries: int = Field(4096, ge=0)
     retry_after_seconds: int = Field(1, ge=1)
     grace_seconds: float = Field(20.0, ge=0, description="time in-flight requests get to finish on SIGTERM")
+    backend: Literal["flint", "mpmath"] = Field("flint", description="engine arithmetic in the workers: flint "
+                                                 "(arb balls, fast) or mpmath (the reference backend)")
     log_level: str = "INFO"

@@ -34,7 +34,7 @@ about that formula only; engineering decisions stay with licensed practice and l
 def create_app(settings: Settings | None = None) -> FastAPI:
     settings = settings or Settings()
     configure(settings.log_level)
-    pool = WorkerPool(settings.workers, settings.queue_limit)
+    pool = WorkerPool(settings.workers, settings.queue_limit, settings.backend)
     cache = ResultCache(settings.cache_entries)
     metrics = Metrics(pool, cache)
 

@@ -1,6 +1,12 @@
-"""Rigorous, outward-rounded interval arithmetic behind one small interface."""
+"""Rigorous, outward-rounded interval arithmetic behind one small interface.
+
+Two backends: :class:`MpmathArithmetic` (the reference: mpmath with a guard on every elementary function) and
+:class:`FlintArithmetic` (python-flint's arb ball arithmetic in C, much faster; see its precision rule).
+"""
 
 from ._backend import MAX_PRECISION, MIN_PRECISION, Arithmetic, MpmathArithmetic
+from ._flint_backend import FlintArithmetic, claim_flint_context, flint_context_claimed, release_flint_context
 from ._interval import Interval, to_fraction
 
-__all__ = ["MAX_PRECISION", "MIN_PRECISION", "Arithmetic", "Interval", "MpmathArithmetic", "to_fraction"]
+__all__ = ["MAX_PRECISION", "MIN_PRECISION", "Arithmetic", "FlintArithmetic", "Interval", "MpmathArithmetic",
+           "claim_flint_context", "flint_context_claimed", "release_flint_context", "to_fraction"]

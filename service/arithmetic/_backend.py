@@ -47,8 +47,8 @@ class Arithmetic(Protocol):
     def is_exact_integer(self, a: Any) -> int | None: ...
     def bounds(self, a: Any) -> tuple[float, float]: ...
     def bounds_exact(self, a: Any) -> tuple[Fraction, Fraction]: ...
+    def from_bounds(self, low: Fraction, high: Fraction) -> Any: ...
     def width(self, a: Any) -> float: ...
-    def split_point(self, a: Any, b: Any) -> Any: ...
 
 
 _FUNCTIONS: dict[str, Callable[[Interval, int], Interval]] = {
@@ -151,11 +151,10 @@ class MpmathArithmetic:
     def bounds_exact(self, a: Interval) -> tuple[Fraction, Fraction]:
         return to_fraction(a.lo), to_fraction(a.hi)
 
+    def from_bounds(self, low: Fraction, high: Fraction) -> Interval:
+        """The enclosure [low, high] of exact rationals, rounded outward."""
+        return K.hull(K.from_fraction(low, self.prec), K.from_fraction(high, self.prec))
+
     def width(self, a: Interval) -> float:
         lo, hi = self.bounds(K.sub(Interval.point(a.hi), Interval.point(a.lo), 53))
         return hi
-
-    def split_point(self, a: Interval, b: Interval) -> Interval:
-        """An exactly representable point between the centres of a and b."""
-        left, right = K.midpoint(a), K.midpoint(b)
-        return Interval.point(K.midpoint(Interval(left, right)))

@@ -230,6 +230,10 @@ def build_parser() -> argparse.ArgumentParser:
 
 def main(argv: Sequence[str] | None = None) -> int:
     args = build_parser().parse_args(argv)
+    if args.command != "serve":
+        from ..arithmetic import claim_flint_context
+
+        claim_flint_context()  # the CLI computes on its main thread only, so it may own flint's context
     try:
         return args.run(args)
     except QuadcertError as error:

@@ -7,7 +7,7 @@ import time
 from fractions import Fraction
 from typing import Callable, Mapping
 
-from ..arithmetic import Arithmetic, MpmathArithmetic
+from ..arithmetic import Arithmetic, FlintArithmetic, MpmathArithmetic, flint_context_claimed
 from ..derivatives import Program
 from ..errors import ArithmeticFault, InvalidInput, NotCertifiable
 from ..formula import Formula, parse
@@ -19,6 +19,11 @@ from ._simpson import Refiner
 
 DEFAULT_PRECISION = 96
 ArithmeticFactory = Callable[[int], Arithmetic]
+
+
+def default_arithmetic() -> ArithmeticFactory:
+    """The fast ball backend where this thread owns flint's context, else the reference backend."""
+    return FlintArithmetic if flint_context_claimed() else MpmathArithmetic
 
 
 def choose_precision(tolerance: float) -> int:
@@ -40,7 +45,7 @@ def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: Li
               tolerance: float = 1e-8, *, variable: str = "x", parameters: Mapping[str, object] | None = None,
               relative_tolerance: float | None = None, max_nodes: int = _inputs.DEFAULT_MAX_NODES,
               deadline_seconds: float | None = None, include_mesh: bool = False,
-              precision_bits: int | None = None, arithmetic: ArithmeticFactory = MpmathArithmetic
+              precision_bits: int | None = None, arithmetic: ArithmeticFactory | None = None
               ) -> IntegralResult:
     """Certified ∫ integrand d(variable) from lower_limit to upper_limit.
 
@@ -60,6 +65,7 @@ def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: Li
     upper_formula = parse_limit(upper_limit, "upper_limit", tuple(values))
     deadline = None if deadline_seconds is None else time.monotonic() + deadline_seconds
     prec = precision_bits or choose_precision(tolerance)
+    arithmetic = arithmetic or default_arithmetic()
 
     def target(low: float, high: float) -> float:
         if relative is None or low <= 0 <= high:
@@ -113,8 +119,9 @@ def _run(program: Program, ar: Arithmetic, a: object, b: object, same_text: bool
             raise NotCertifiable(f"the integrand cannot be bounded between the limits: {fault.message}",
                                  code="unbounded_near", location=ar.bounds(region)) from None
         return ar.mul(ar.sub(b, a), values_on), "tolerance_met", 0, 1, (), {"range": 1}
+    fallback = None if isinstance(ar, MpmathArithmetic) else Program(formula, MpmathArithmetic(ar.prec), values)
     refiner = Refiner(program, ar, max_nodes=max_nodes, deadline=deadline,
-                      retry=lambda p: Program(formula, arithmetic(p), values))
+                      retry=lambda p: Program(formula, arithmetic(p), values), fallback=fallback)
     outcome = refiner.run(a, b, target)
     enclosure = outcome.enclosure if sign > 0 else ar.neg(outcome.enclosure)
     return (enclosure, outcome.stop_reason, outcome.nodes, len(outcome.panels),

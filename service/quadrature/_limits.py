@@ -53,9 +53,15 @@ def enclose_limit(formula: Formula, ar: Arithmetic, parameters: dict[str, Fracti
         program = Program(formula, ar, parameters)
         if not program.is_constant:
             raise InvalidInput(f"{field} must be a constant", code="invalid_limit", field=field)
-        return program.value(ar.zero)
+        value = program.value(ar.zero)
     except QuadcertError as error:
         if isinstance(error, InvalidInput):
             raise
         raise InvalidInput(f"{field} cannot be evaluated: {error.message}", code="invalid_limit",
                            field=field) from None
+    low, high = ar.bounds(value)
+    if not (math.isfinite(low) and math.isfinite(high)) or max(abs(low), abs(high)) > 1e300:
+        raise InvalidInput(f"{field} is beyond ±1e300; such limits are not supported", code="limit_out_of_range",
+                           field=field)
+    return value
+

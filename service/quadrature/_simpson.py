@@ -53,29 +53,52 @@ class Outcome:
     stop_reason: str
 
 
+def _enclose(program: Program, ar: Arithmetic, panel: _Panel) -> tuple[Any, int]:
+    """Rigorous enclosure of the panel's integral: every available bound, intersected."""
+    series = program.taylor(ar.hull(panel.p, panel.q), 4)
+    width = ar.sub(panel.q, panel.p)
+    simpson = ar.scale(ar.mul(width, ar.add(ar.add(panel.fp, panel.fq), ar.scale(panel.fm, Fraction(4)))), _SIXTH)
+    candidates: list[tuple[int, Any]] = [(0, ar.mul(width, series[0]))]
+    if len(series) == 5:
+        remainder = ar.mul(ar.scale(ar.pow_int(width, 5), _peano.SIGNED_4 * 24), series[4])
+        candidates.append((4, ar.add(simpson, remainder)))
+    for k in (3, 2, 1):
+        if len(series) > k:
+            size = ar.function("abs", series[k])
+            radius = ar.mul(ar.scale(ar.pow_int(width, k + 1), _peano.ABSOLUTE[k] * _peano.FACTORIAL[k]), size)
+            candidates.append((k, ar.add(simpson, ar.hull(ar.neg(radius), radius))))
+    best_order, best = min(candidates, key=lambda c: ar.width(c[1]))
+    enclosure = best
+    for _, other in candidates:
+        enclosure = ar.intersect(enclosure, other)
+    return enclosure, best_order
+
+
 class Refiner:
     """One adaptive run over [a, b] with a < b; not shared between threads."""
 
     def __init__(self, program: Program, ar: Arithmetic, *, max_nodes: int, deadline: float | None,
-                 retry: Callable[[int], Program] | None = None) -> None:
+                 retry: Callable[[int], Program] | None = None, fallback: Program | None = None) -> None:
         self.program = program
         self.variable = program.formula.variable
         self.ar = ar
         self.max_nodes = max_nodes
         self.deadline = deadline
         self.retry = retry
-        self.values: dict[Any, Any] = {}
+        self.fallback = fallback  # a program on the reference backend, whose panels have exact endpoints
+        self.values: dict[int, tuple[Any, Any]] = {}  # id(node) -> (node, value); nodes are shared objects
         self.bounds_used: dict[str, int] = {}
 
     # -- function values at nodes --------------------------------------------------------------
     def value_at(self, node: Any) -> Any:
-        if node in self.values:
-            return self.values[node]
+        known = self.values.get(id(node))
+        if known is not None:
+            return known[1]
         try:
             value = self.program.value(node)
         except ArithmeticFault as fault:
             value = self._retry_value(node, fault)
-        self.values[node] = value
+        self.values[id(node)] = (node, value)
         return value
 
     def _retry_value(self, node: Any, fault: ArithmeticFault) -> Any:
@@ -106,38 +129,33 @@ class Refiner:
 
     def _certify(self, panel: _Panel) -> None:
         ar = self.ar
-        region = ar.hull(panel.p, panel.q)
         try:
-            series = self.program.taylor(region, 4)
+            try:
+                enclosure, order = _enclose(self.program, ar, panel)
+            except ArithmeticFault as fault:
+                if fault.certain or self.fallback is None or isinstance(fault, MagnitudeExceeded):
+                    raise
+                enclosure, order = self._enclose_on_fallback(panel)
         except MagnitudeExceeded as fault:
             panel.fault = fault.message
             return
         except ArithmeticFault as fault:
             if fault.certain:
-                lo, hi = ar.bounds(region)
+                lo, hi = ar.bounds(ar.hull(panel.p, panel.q))
                 raise NotCertifiable(f"the integrand is undefined on [{lo:.17g}, {hi:.17g}]: {fault.message}",
                                      code="undefined_on_interval", location=(lo, hi)) from None
             panel.fault = fault.message
             return
-        width = ar.sub(panel.q, panel.p)
-        simpson = ar.scale(ar.mul(width, ar.add(ar.add(panel.fp, panel.fq), ar.scale(panel.fm, Fraction(4)))),
-                           _SIXTH)
-        candidates: list[tuple[int, Any]] = [(0, ar.mul(width, series[0]))]
-        if len(series) == 5:
-            remainder = ar.mul(ar.scale(ar.pow_int(width, 5), _peano.SIGNED_4 * 24), series[4])
-            candidates.append((4, ar.add(simpson, remainder)))
-        for k in (3, 2, 1):
-            if len(series) > k:
-                size = ar.function("abs", series[k])
-                radius = ar.mul(ar.scale(ar.pow_int(width, k + 1), _peano.ABSOLUTE[k] * _peano.FACTORIAL[k]),
-                                size)
-                radius = ar.hull(ar.neg(radius), radius)
-                candidates.append((k, ar.add(simpson, radius)))
-        best_order, best = min(candidates, key=lambda c: ar.width(c[1]))
-        enclosure = best
-        for _, other in candidates:
-            enclosure = ar.intersect(enclosure, other)
-        panel.enclosure, panel.order, panel.width = enclosure, best_order, ar.width(enclosure)
+        panel.enclosure, panel.order, panel.width = enclosure, order, ar.width(enclosure)
+
+    def _enclose_on_fallback(self, panel: _Panel) -> tuple[Any, int]:
+        """The same panel on the reference backend (exact endpoints), converted back exactly."""
+        assert self.fallback is not None
+        ar, ref = self.ar, self.fallback.ar
+        moved = _Panel(*(ref.from_bounds(*ar.bounds_exact(v)) for v in
+                         (panel.p, panel.m, panel.q, panel.fp, panel.fm, panel.fq)), panel.depth)
+        enclosure, order = _enclose(self.fallback, ref, moved)
+        return ar.from_bounds(*ref.bounds_exact(enclosure)), order
 
     def split(self, panel: _Panel) -> tuple[_Panel, _Panel]:
         return (self.panel(panel.p, panel.m, panel.fp, panel.fm, panel.depth + 1),

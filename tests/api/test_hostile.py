@@ -45,8 +45,10 @@ def test_hostile_formulas_get_coded_problems(client: TestClient, formula: str, c
 
 
 VALUES = [
-    ({"upper_limit": 1e308, "integrand": "exp(x)"}, ("magnitude_exceeded", "unbounded_near")),
-    ({"upper_limit": "1e1000", "integrand": "1"}, ("result_out_of_range",)),
+    ({"upper_limit": 1e308, "integrand": "exp(x)"}, ("limit_out_of_range",)),
+    ({"upper_limit": 1e300, "integrand": "exp(x)"}, ("magnitude_exceeded", "unbounded_near")),
+    ({"upper_limit": "1e1000", "integrand": "1"}, ("limit_out_of_range",)),
+    ({"upper_limit": "1e300", "integrand": "1e10"}, ("result_out_of_range",)),
     ({"upper_limit": "inf"}, ("infinite_limit",)),
     ({"lower_limit": "-Infinity"}, ("infinite_limit",)),
     ({"tolerance": 1e-300}, ("tolerance_out_of_range",)),

@@ -7,8 +7,15 @@ import xml.etree.ElementTree as ET
 
 import pytest
 
+from service.arithmetic import release_flint_context
 from service.cli import main
 from tests.conftest import HP, encloses
+
+
+@pytest.fixture(autouse=True)
+def _release_flint():
+    yield
+    release_flint_context()  # the CLI claims flint's context for its own process; undo that between tests
 
 
 def test_integrate_human_and_json(capsys) -> None:

@@ -1,0 +1,320 @@
+"""A second rigorous backend: python-flint's arb ball arithmetic (C, guaranteed error bounds).
+
+arb computes every operation with a rigorous error radius, so results enclose the true values whatever the
+working precision is; precision only decides how tight they are. The precision lives in flint's process-wide
+context, so this backend refuses to run unless the calling thread has claimed that context with
+:func:`claim_flint_context`: a single-threaded process (an engine worker, the CLI) claims it once, and no
+code that can run concurrently ever changes it.
+
+Same semantics as the reference backend: explicit domains, ``certain`` faults, magnitude caps.
+"""
+
+from __future__ import annotations
+
+import math
+import threading
+from fractions import Fraction
+from typing import Any, Callable
+
+import flint
+
+from ..errors import DomainViolation, InvalidInput, MagnitudeExceeded, Unbounded
+
+arb = flint.arb
+_owner: int | None = None
+_EXP_LIMIT = arb(40000)
+
+
+def claim_flint_context() -> None:
+    """Declare that the calling thread owns flint's global context (call once, in a single-threaded process)."""
+    global _owner
+    _owner = threading.get_ident()
+
+
+def release_flint_context() -> None:
+    """Give up the claim (for tests and for programs that start threads later)."""
+    global _owner
+    _owner = None
+
+
+def flint_context_claimed() -> bool:
+    return _owner == threading.get_ident()
+
+
+def _text(x: arb) -> str:
+    lo, hi = _bounds(x)
+    return f"[{lo:.17g}, {hi:.17g}]"
+
+
+def _exact_fraction(point: arb) -> Fraction:
+    man, exp = point.mid().man_exp()
+    man, exp = int(man), int(exp)
+    return Fraction(man) * Fraction(2) ** exp
+
+
+_MAX = Fraction(__import__("sys").float_info.max)
+
+
+def _down(value: Fraction) -> float:
+    if value > _MAX:
+        return math.nextafter(math.inf, 0)
+    if value < -_MAX:
+        return -math.inf
+    result = float(value)
+    return math.nextafter(result, -math.inf) if Fraction(result) > value else result
+
+
+def _up(value: Fraction) -> float:
+    return -_down(-value)
+
+
+def _bounds(x: arb) -> tuple[float, float]:
+    if not x.is_finite():
+        return -math.inf, math.inf
+    return _down(_exact_fraction(x.lower())), _up(_exact_fraction(x.upper()))
+
+
+def _log2_magnitude(x: arb) -> int:
+    """An upper bound of log2|x| (for the magnitude cap), from the exact upper endpoint of |x|."""
+    man, exp = abs(x).upper().mid().man_exp()
+    return int(exp) + int(man).bit_length() if int(man) else -(1 << 30)
+
+
+def _even_power(a: arb, n: int) -> arb:
+    """a^n for even n from the endpoints: a ball's own power loses the fact that the result is >= 0."""
+    if a.is_exact():
+        return a ** n
+    low, high = arb(a.lower()), arb(a.upper())
+    if a.contains(0):
+        return arb(0).union(abs(low).max(abs(high)) ** n)
+    return (low ** n).union(high ** n)
+
+
+def _monotone(method: str, increasing: bool = True) -> Callable[[arb], arb]:
+    """f(a) from f at the two endpoints: tighter than f of a wide ball, and it keeps signs (exp(a) > 0)."""
+    def apply(a: arb) -> arb:
+        if a.is_exact():
+            return getattr(a, method)()
+        low, high = getattr(arb(a.lower()), method)(), getattr(arb(a.upper()), method)()
+        return low.union(high)
+    return apply
+
+
+_exp_ends, _log_ends, _sqrt_ends = _monotone("exp"), _monotone("log"), _monotone("sqrt")
+
+
+def _abs(a: arb) -> arb:
+    if a > 0:
+        return a
+    if a < 0:
+        return -a
+    return arb(0).union(abs(arb(a.lower())).max(abs(arb(a.upper()))))
+
+
+def _finite(x: arb, what: str) -> arb:
+    if not x.is_finite():
+        raise Unbounded(f"{what} is not bounded here", certain=False)
+    return x
+
+
+class FlintArithmetic:
+    """Ball-arithmetic backend; see the module docstring for the precision rule.
+
+    >>> claim_flint_context()
+    >>> ar = FlintArithmetic(80)
+    >>> lo, hi = ar.bounds(ar.mul(ar.exact(Fraction(1, 3)), ar.exact(Fraction(3))))
+    >>> lo <= 1.0 <= hi
+    True
+    """
+
+    __slots__ = ("prec", "zero", "one", "_constants")
+
+    def __init__(self, prec: int) -> None:
+        if not flint_context_claimed():
+            raise InvalidInput("the flint backend needs flint's context claimed by this thread "
+                               "(claim_flint_context(), in a single-threaded process)", code="backend_unavailable")
+        self.prec = prec
+        flint.ctx.prec = max(prec, 53)  # the owning thread only; see module docstring
+        self.zero = arb(0)
+        self.one = arb(1)
+        self._constants: dict[str, arb] = {}
+
+    def exact(self, value: Fraction) -> arb:
+        value = Fraction(value)
+        if value.denominator == 1:
+            return arb(value.numerator)
+        return arb(flint.fmpq(value.numerator, value.denominator))
+
+    def constant(self, name: str) -> arb:
+        if name not in self._constants:
+            self._constants[name] = arb.pi() if name == "pi" else arb.const_e()
+        return self._constants[name]
+
+    def add(self, a: arb, b: arb) -> arb:
+        return a + b
+
+    def sub(self, a: arb, b: arb) -> arb:
+        return a - b
+
+    def mul(self, a: arb, b: arb) -> arb:
+        return a * b
+
+    def div(self, a: arb, b: arb) -> arb:
+        if b.contains(0):
+            raise Unbounded(f"division by {_text(b)}, which reaches zero", certain=b.is_exact())
+        return a / b
+
+    def neg(self, a: arb) -> arb:
+        return -a
+
+    def sqr(self, a: arb) -> arb:
+        return _even_power(a, 2)
+
+    def scale(self, a: arb, factor: Fraction) -> arb:
+        if factor.denominator == 1:
+            return a * factor.numerator
+        return a * flint.fmpq(factor.numerator, factor.denominator)
+
+    def pow_int(self, a: arb, n: int) -> arb:
+        if n < 0:
+            return self.div(self.one, self.pow_int(a, -n))
+        if n > 2 and _log2_magnitude(a) * n > 65536:
+            raise MagnitudeExceeded(f"{_text(a)}^{n} is too large to compute with")
+        if n % 2 == 0:
+            return _even_power(a, n)
+        return arb(a.lower()) ** n if a.is_exact() else (arb(a.lower()) ** n).union(arb(a.upper()) ** n)
+
+    def pow_real(self, a: arb, b: arb) -> arb:
+        if a > 0:
+            return self.function("exp", b * a.log())
+        if a >= 0 and b > 0:
+            top = self.function("exp", b * _finite(arb(a.upper()).log(), "log")) if a.upper() > 0 else arb(0)
+            return arb(0).union(top)
+        certain = a < 0 or (a <= 0 and not a.contains(0))
+        raise DomainViolation(f"a power with a non-integer exponent needs a positive base, got {_text(a)}",
+                              certain=bool(certain))
+
+    def function(self, name: str, a: arb) -> arb:
+        return _FUNCTIONS[name](a)
+
+    def minimum(self, a: arb, b: arb) -> arb:
+        return a.min(b)
+
+    def maximum(self, a: arb, b: arb) -> arb:
+        return a.max(b)
+
+    def hull(self, a: arb, b: arb) -> arb:
+        return a.union(b)
+
+    def intersect(self, a: arb, b: arb) -> arb:
+        try:
+            return a.intersection(b)
+        except ValueError:
+            raise ArithmeticError(f"disjoint enclosures {_text(a)} and {_text(b)}: a kernel is wrong") from None
+
+    def sign(self, a: arb) -> int:
+        if a > 0:
+            return 1
+        if a < 0:
+            return -1
+        return 0
+
+    def is_exact_integer(self, a: arb) -> int | None:
+        if a.is_exact() and a.is_integer():
+            return int(a.mid().man_exp()[0]) * 2 ** int(a.mid().man_exp()[1])
+        return None
+
+    def bounds(self, a: arb) -> tuple[float, float]:
+        return _bounds(a)
+
+    def bounds_exact(self, a: arb) -> tuple[Fraction, Fraction]:
+        return _exact_fraction(a.lower()), _exact_fraction(a.upper())
+
+    def from_bounds(self, low: Fraction, high: Fraction) -> arb:
+        return self.exact(low).union(self.exact(high))
+
+    def width(self, a: arb) -> float:
+        return float(a.rad()) * 2 * (1 + 2.0 ** -40) if a.is_finite() else math.inf
+
+
+def _positive(name: str, a: arb, allow_zero: bool) -> None:
+    ok = (a >= 0) if allow_zero else (a > 0)
+    if ok:
+        return
+    certain = (a < 0) if allow_zero else (a <= 0)
+    if certain:
+        raise DomainViolation(f"{name} is undefined on {_text(a)}", certain=True)
+    raise DomainViolation(f"{name} may be undefined: its argument reaches {_text(a)}", certain=False)
+
+
+def _unit(name: str, a: arb) -> None:
+    if abs(a) <= 1:
+        return
+    if a > 1 or a < -1:
+        raise DomainViolation(f"{name} is undefined on {_text(a)}", certain=True)
+    raise DomainViolation(f"{name} may be undefined: its argument reaches {_text(a)}", certain=False)
+
+
+def _exp(a: arb) -> arb:
+    if a.upper() > _EXP_LIMIT:
+        raise MagnitudeExceeded(f"exp of {_text(a)} is too large to compute with")
+    return _exp_ends(a)
+
+
+def _log(a: arb) -> arb:
+    _positive("log", a, allow_zero=False)
+    return _log_ends(a)
+
+
+def _log10(a: arb) -> arb:
+    _positive("log10", a, allow_zero=False)
+    return _log_ends(a) / arb(10).log()
+
+
+def _sqrt(a: arb) -> arb:
+    _positive("sqrt", a, allow_zero=True)
+    return _sqrt_ends(a)
+
+
+def _cosh(a: arb) -> arb:
+    if abs(a) > _EXP_LIMIT:
+        raise MagnitudeExceeded(f"hyperbolic function of {_text(a)} is too large to compute with")
+    if a > 0:
+        return _monotone("cosh")(a)
+    if a < 0:
+        return _monotone("cosh")(-a)
+    return arb(1).union(arb(abs(arb(a.lower())).max(abs(arb(a.upper())))).cosh())
+
+
+def _tan(a: arb) -> arb:
+    result = a.tan()
+    if not result.is_finite():
+        raise Unbounded(f"tan has a pole in {_text(a)}", certain=False)
+    return result
+
+
+def _asin(a: arb) -> arb:
+    _unit("asin", a)
+    return a.asin()
+
+
+def _acos(a: arb) -> arb:
+    _unit("acos", a)
+    return a.acos()
+
+
+def _hyperbolic(method: str) -> Callable[[arb], arb]:
+    ends = _monotone(method)
+
+    def apply(a: arb) -> arb:
+        if abs(a) > _EXP_LIMIT:
+            raise MagnitudeExceeded(f"hyperbolic function of {_text(a)} is too large to compute with")
+        return ends(a)
+    return apply
+
+
+_FUNCTIONS: dict[str, Callable[[arb], Any]] = {
+    "sqrt": _sqrt, "exp": _exp, "log": _log, "log10": _log10, "sin": arb.sin, "cos": arb.cos, "tan": _tan,
+    "asin": _asin, "acos": _acos, "atan": _monotone("atan"), "sinh": _hyperbolic("sinh"), "cosh": _cosh,
+    "tanh": _monotone("tanh"), "erf": _monotone("erf"), "abs": _abs,
+}
