@@ -120,7 +120,7 @@ def canonical_text(node: Node) -> str:
     if node.op == "^":
         if _precedence(node.left) <= level:
             left = f"({left})"
-        if _precedence(node.right) < level:
+        if _precedence(node.right) < _PRECEDENCE["neg"]:  # the exponent is read as a unary: 2^-x needs none
             right = f"({right})"
         return f"{left}^{right}"
     if _precedence(node.left) < level:

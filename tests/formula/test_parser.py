@@ -16,7 +16,9 @@ from service.formula import Binary, Negate, Number, parse
     ("a - (b - c)", "a - (b - c)"),
     ("x/2/3", "x/2/3"),
     ("x/(2/3)", "x/(2/3)"),
-    ("2^-x", "2^(-x)"),
+    ("2^-x", "2^-x"),
+    ("2^(-x)", "2^-x"),
+    ("x^-y^2", "x^-y^2"),
     ("  sin( x )*  cos(x)", "sin(x)*cos(x)"),
     ("1e-3*x", "0.001*x"),
     ("ln(x) + arctan(x)", "log(x) + atan(x)"),
@@ -24,9 +26,9 @@ from service.formula import Binary, Negate, Number, parse
     ("min(x, 1, 2)", "min(x, 1, 2)"),
 ])
 def test_canonical_text_round_trips(text: str, canonical: str) -> None:
-    formula = parse(text, parameters=("a", "b", "c"))
+    formula = parse(text, parameters=("a", "b", "c", "y"))
     assert formula.text == canonical
-    assert parse(canonical, parameters=("a", "b", "c")).root == formula.root
+    assert parse(canonical, parameters=("a", "b", "c", "y")).root == formula.root
 
 
 def test_power_is_right_associative_and_binds_tighter_than_unary_minus() -> None:
