@@ -12,6 +12,11 @@ ad-hoc strings.
     │   ├── Unbounded           division by an interval that reaches zero, a pole
     │   └── MagnitudeExceeded   a value too large to compute with safely
     ├── NotCertifiable          the engine cannot certify, with reason and location
+    ├── ServiceError            the service could not run the computation (HTTP 503/504)
+    │   ├── Saturated           every worker busy and the queue full
+    │   ├── DeadlineExceeded    the computation passed its deadline; its worker was replaced
+    │   ├── WorkerLost          the worker stopped during the job
+    │   └── ShuttingDown        the service is draining
     └── ProblemError            a quadcert service answered with RFC 9457 problem details
 """
 
@@ -96,6 +101,31 @@ class NotCertifiable(QuadcertError):
                  location: tuple[float, float] | None = None) -> None:
         super().__init__(message, code=code)
         self.location = location
+
+
+class ServiceError(QuadcertError):
+    """The computation could not run; the caller may retry (see Retry-After)."""
+
+    code = "service_error"
+
+    def __init__(self, message: str) -> None:
+        super().__init__(message)
+
+
+class Saturated(ServiceError):
+    code = "saturated"
+
+
+class DeadlineExceeded(ServiceError):
+    code = "deadline_exceeded"
+
+
+class WorkerLost(ServiceError):
+    code = "worker_lost"
+
+
+class ShuttingDown(ServiceError):
+    code = "shutting_down"
 
 
 class ProblemError(QuadcertError):

@@ -20,7 +20,8 @@ from ..quadrature._limits import parse_limit
 from ._cache import ResultCache, cache_key
 from ._jobs import _error
 from ._metrics import Metrics
-from ._pool import PoolError, WorkerPool
+from ..errors import ServiceError
+from ._pool import WorkerPool
 from ._problems import from_engine_error, problem_body
 from ._settings import Settings
 
@@ -72,7 +73,7 @@ class Computation:
         started = time.perf_counter()
         try:
             answer = await self.pool.run(kind, self._engine_request(kind, body, deadline), deadline + 1.0, wait)
-        except PoolError as error:
+        except ServiceError as error:
             self.metrics.results.labels(error.code).inc()
             return (0, problem_body(error.code, str(error), **context)), key
         self.metrics.engine_seconds.observe(time.perf_counter() - started)

@@ -18,29 +18,10 @@ import signal
 from dataclasses import dataclass, field
 from typing import Any
 
+from ..errors import DeadlineExceeded, Saturated, ServiceError, ShuttingDown, WorkerLost
 from ._jobs import execute
 
 log = logging.getLogger("quadcert.pool")
-
-
-class PoolError(Exception):
-    code = "pool_error"
-
-
-class Saturated(PoolError):
-    code = "saturated"
-
-
-class DeadlineExceeded(PoolError):
-    code = "deadline_exceeded"
-
-
-class WorkerLost(PoolError):
-    code = "worker_lost"
-
-
-class PoolClosed(PoolError):
-    code = "shutting_down"
 
 
 def _worker_main(connection: multiprocessing.connection.Connection, backend: str = "flint") -> None:
@@ -129,7 +110,7 @@ class WorkerPool:
             while not self._queue.empty():
                 job = self._queue.get_nowait()
                 if not job.future.done():
-                    job.future.set_exception(PoolClosed("the service is shutting down"))
+                    job.future.set_exception(ShuttingDown("the service is shutting down"))
 
     # -- state for probes and metrics --------------------------------------------------------
     @property
@@ -151,7 +132,7 @@ class WorkerPool:
     async def run(self, kind: str, request: dict[str, Any], deadline_seconds: float,
                   wait_for_slot: float = 0.0) -> dict[str, Any]:
         if self.closed or self._queue is None:
-            raise PoolClosed("the service is shutting down")
+            raise ShuttingDown("the service is shutting down")
         if self._pending >= self.queue_limit:
             if wait_for_slot <= 0:
                 raise Saturated("all workers are busy and the queue is full")
@@ -181,7 +162,7 @@ class WorkerPool:
                 continue
             try:
                 answer = await self._dispatch(index, job)
-            except PoolError as error:
+            except ServiceError as error:
                 if not job.future.done():
                     job.future.set_exception(error)
             else:
@@ -239,7 +220,7 @@ class WorkerPool:
         loop = asyncio.get_running_loop()
         await loop.run_in_executor(None, old.kill)
         if self.closed:
-            raise PoolClosed("the service is shutting down")
+            raise ShuttingDown("the service is shutting down")
         fresh = await loop.run_in_executor(None, lambda: _Worker(self._context, self.backend))
         self._workers[index] = fresh
         self.restarts += 1

@@ -9,7 +9,8 @@ import signal
 import pytest
 
 from tests.conftest import HP, encloses
-from service.api._pool import DeadlineExceeded, PoolClosed, Saturated, WorkerLost, WorkerPool
+from service.api._pool import WorkerPool
+from service.errors import DeadlineExceeded, Saturated, ShuttingDown, WorkerLost
 
 pytestmark = pytest.mark.anyio
 
@@ -66,7 +67,7 @@ async def test_saturation_is_refused_not_queued_forever() -> None:
         await asyncio.gather(*jobs)
     finally:
         await pool.close()
-    with pytest.raises(PoolClosed):
+    with pytest.raises(ShuttingDown):
         await pool.run("sleep", {"seconds": 0}, 10)
 
 
