@@ -59,6 +59,8 @@ class _Parser:
         self.index = 0
         self.depth = 0
         self.nodes = 0
+        self.heights: dict[int, int] = {}
+        self.keep: list[Node] = []
         self.variable = variable
         self.parameters = parameters
 
@@ -77,6 +79,14 @@ class _Parser:
         if self.nodes > _limits.MAX_NODES:
             raise FormulaError(f"formula has more than {_limits.MAX_NODES} parts", code="formula_too_large",
                                column=column)
+        children = (node.operand,) if isinstance(node, Negate) else (node.left, node.right) \
+            if isinstance(node, Binary) else node.args if isinstance(node, Call) else ()
+        height = 1 + max((self.heights.get(id(child), 1) for child in children), default=0)
+        if height > _limits.MAX_HEIGHT:
+            raise FormulaError(f"formula is more than {_limits.MAX_HEIGHT} operations deep; split long sums "
+                               "or products into parenthesised groups", code="nesting_too_deep", column=column)
+        self.heights[id(node)] = height
+        self.keep.append(node)  # heights are keyed by id: keep every node alive while parsing
         return node
 
     def enter(self, column: int) -> None:

@@ -16,7 +16,7 @@ def test_seed_inputs_pass_the_target() -> None:
     for seed in [b"x", b"-x^2", b"sin(", b"2x", b"\xff\xfe", b"((((", b"min(x,a,k)", b"1e999999", b"x**2",
                  # found by long runs: canonical text must stay exact and within the literal limits
                  b".133333333333333333333333333333333333333333333", b"4^4^04e404^00^04e4",
-                 b"2^-" * 30 + b"x"]:
+                 b"2^-" * 30 + b"x", b"x" + b"+x" * 400]:  # the last once overflowed the stack
         check_one(seed)
 
 

@@ -95,11 +95,13 @@ def test_look_alike_unicode_is_named() -> None:
 @pytest.mark.parametrize("text, code", [
     ("(" * 65 + "x" + ")" * 65, "nesting_too_deep"),
     ("(" * 10000 + "x" + ")" * 10000, "formula_too_long"),
-    ("x" + "+x" * 1200, "formula_too_large"),
+    ("+".join(["(x+x+x+x+x+x+x+x+x+x)"] * 120), "formula_too_large"),
     ("1" * 61, "literal_too_long"),
     ("1e100000000", "literal_out_of_range"),
     ("x^1001", "power_too_large"),
     ("-" * 70 + "x", "nesting_too_deep"),
+    ("x" + "+x" * 300, "nesting_too_deep"),           # a long left-deep chain: tree height, not parentheses
+    ("x" + "^x" * 300, "nesting_too_deep"),
 ])
 def test_hard_limits(text: str, code: str) -> None:
     with pytest.raises(FormulaError) as info:

@@ -119,3 +119,11 @@ def test_bad_inputs_are_coded(kwargs, code) -> None:
     with pytest.raises(InvalidInput) as info:
         integrate(**args)
     assert info.value.code == code
+
+
+@pytest.mark.parametrize("integrand", ["x" + "+x" * 198, "(" * 60 + "x" + ")" * 60 + "*x" * 130,
+                                       "1" + "+sin(x)" * 190])
+def test_deepest_accepted_formulas_evaluate_without_recursion_trouble(integrand) -> None:
+    terms = integrand.count("x")
+    result = integrate(integrand, 0, 1, 1e-6, max_nodes=201)
+    assert result.error_bound >= 0 and terms > 100
