@@ -195,7 +195,10 @@ class FlintArithmetic:
                               certain=bool(certain))
 
     def function(self, name: str, a: arb) -> arb:
-        return _FUNCTIONS[name](a)
+        result = _FUNCTIONS[name](a)
+        if not result.is_finite():  # arb gives up (e.g. an unbounded slope at a domain edge): not a number we use
+            raise Unbounded(f"{name} could not be bounded on {_text(a)}", certain=False)
+        return result
 
     def minimum(self, a: arb, b: arb) -> arb:
         return a.min(b)
@@ -228,6 +231,8 @@ class FlintArithmetic:
         return _bounds(a)
 
     def bounds_exact(self, a: arb) -> tuple[Fraction, Fraction]:
+        if not a.is_finite():
+            raise Unbounded("a value could not be bounded", certain=False)
         return _exact_fraction(a.lower()), _exact_fraction(a.upper())
 
     def from_bounds(self, low: Fraction, high: Fraction) -> arb:
@@ -295,12 +300,12 @@ def _tan(a: arb) -> arb:
 
 def _asin(a: arb) -> arb:
     _unit("asin", a)
-    return a.asin()
+    return _monotone("asin")(a)
 
 
 def _acos(a: arb) -> arb:
     _unit("acos", a)
-    return a.acos()
+    return _monotone("acos")(a)
 
 
 def _hyperbolic(method: str) -> Callable[[arb], arb]:
