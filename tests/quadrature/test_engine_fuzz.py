@@ -10,6 +10,7 @@ from __future__ import annotations
 from hypothesis import given, settings, strategies as st
 
 from service import integrate
+from service.arithmetic import FlintArithmetic, MpmathArithmetic, claim_flint_context, release_flint_context
 from service.errors import QuadcertError
 
 REF = __import__("mpmath").MPContext()
@@ -39,15 +40,18 @@ def _combine(children):
 FORMULAS = st.recursive(LEAVES, _combine, max_leaves=6)
 
 
-@settings(max_examples=40)
-@given(FORMULAS, st.sampled_from([1e-4, 1e-8]))
-def test_random_formulas_are_certified_correctly_or_refused_with_a_code(formula, tolerance) -> None:
+@settings(max_examples=60)
+@given(FORMULAS, st.sampled_from([1e-4, 1e-8]), st.sampled_from([MpmathArithmetic, FlintArithmetic]))
+def test_random_formulas_are_certified_correctly_or_refused_with_a_code(formula, tolerance, backend) -> None:
     text, function = formula
+    claim_flint_context()  # one thread here; released below so other tests keep the reference default
     try:
-        result = integrate(text, 0, 1, tolerance, max_nodes=4001, deadline_seconds=5)
+        result = integrate(text, 0, 1, tolerance, max_nodes=4001, deadline_seconds=5, arithmetic=backend)
     except QuadcertError as error:
         assert error.code
         return
+    finally:
+        release_flint_context()
     pieces = [REF.mpf(i) / 16 for i in range(17)]
     reference, estimate = REF.quad(function, pieces, error=True)
     slack = abs(estimate) + REF.mpf(10) ** -40
