@@ -9,6 +9,7 @@ import mpmath
 from hypothesis import HealthCheck, settings
 
 settings.register_profile("ci", max_examples=60, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+settings.register_profile("deep", max_examples=400, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 settings.register_profile("long", max_examples=2000, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 settings.load_profile(os.environ.get("HYPOTHESIS_PROFILE", "ci"))
 

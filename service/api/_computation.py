@@ -115,7 +115,6 @@ class Computation:
         return 200, response
 
     async def plan(self, body: dict[str, Any], context: dict[str, Any]) -> Answer:
-        body = {**body}
         (status, result), key = await self._run("plan", body, self.settings.request_deadline_seconds, 0.0, context)
         if status != 200 or result.get("cached"):
             return _status(status, result), result

@@ -40,7 +40,7 @@ def _combine(children):
 FORMULAS = st.recursive(LEAVES, _combine, max_leaves=6)
 
 
-@settings(max_examples=60)
+@settings(max_examples=max(60, settings().max_examples // 4))
 @given(FORMULAS, st.sampled_from([1e-4, 1e-8]), st.sampled_from([MpmathArithmetic, FlintArithmetic]))
 def test_random_formulas_are_certified_correctly_or_refused_with_a_code(formula, tolerance, backend) -> None:
     text, function = formula
