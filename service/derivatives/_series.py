@@ -20,6 +20,10 @@ from ..arithmetic import Arithmetic
 
 Series = list[Any]
 
+# small exact constants of the recurrences, built once (these loops are the engine's hot path)
+_WHOLE = tuple(Fraction(n) for n in range(16))
+_INVERSE = (Fraction(0),) + tuple(Fraction(1, n) for n in range(1, 16))
+
 
 def variable(ar: Arithmetic, x: Any, order: int) -> Series:
     return [x, ar.one, *([ar.zero] * (order - 1))][: order + 1]
@@ -65,7 +69,7 @@ def square(ar: Arithmetic, a: Series) -> Series:
         for j in range((k + 1) // 2):
             term = ar.mul(a[j], a[k - j])
             total = term if total is None else ar.add(total, term)
-        total = ar.scale(total, Fraction(2))
+        total = ar.scale(total, _WHOLE[2])
         if k % 2 == 0:
             total = ar.add(total, ar.sqr(a[k // 2]))
         out.append(total)
@@ -89,14 +93,14 @@ def reciprocal_constant(ar: Arithmetic, c: Any, b: Series) -> Series:
 
 
 def derivative(ar: Arithmetic, a: Series) -> Series:
-    return [ar.scale(a[k], Fraction(k)) for k in range(1, len(a))]
+    return [ar.scale(a[k], _WHOLE[k]) for k in range(1, len(a))]
 
 
 def integrate(ar: Arithmetic, value: Any, d: Series, length: int) -> Series:
     """The series whose value is ``value`` and whose derivative series is ``d``."""
     out = [value]
     for k in range(1, length):
-        out.append(ar.scale(d[k - 1], Fraction(1, k)))
+        out.append(ar.scale(d[k - 1], _INVERSE[k]))
     return out
 
 
@@ -108,8 +112,8 @@ def _driven(ar: Arithmetic, u: Series, value: Any, slope_of: Any) -> Series:
         g.append(slope_of(out, k - 1))
         acc = ar.mul(u[1], g[k - 1])
         for j in range(2, k + 1):
-            acc = ar.add(acc, ar.scale(ar.mul(u[j], g[k - j]), Fraction(j)))
-        out.append(ar.scale(acc, Fraction(1, k)))
+            acc = ar.add(acc, ar.scale(ar.mul(u[j], g[k - j]), _WHOLE[j]))
+        out.append(ar.scale(acc, _INVERSE[k]))
     return out
 
 
@@ -139,12 +143,12 @@ def _pair(ar: Arithmetic, u: Series, s0: Any, c0: Any, sign: int) -> tuple[Serie
     for k in range(1, len(u)):
         acc_s = acc_c = None
         for j in range(1, k + 1):
-            ts = ar.scale(ar.mul(u[j], c[k - j]), Fraction(j))
-            tc = ar.scale(ar.mul(u[j], s[k - j]), Fraction(j))
+            ts = ar.scale(ar.mul(u[j], c[k - j]), _WHOLE[j])
+            tc = ar.scale(ar.mul(u[j], s[k - j]), _WHOLE[j])
             acc_s = ts if acc_s is None else ar.add(acc_s, ts)
             acc_c = tc if acc_c is None else ar.add(acc_c, tc)
-        s.append(ar.scale(acc_s, Fraction(1, k)))
-        c.append(ar.scale(acc_c if sign > 0 else ar.neg(acc_c), Fraction(1, k)))
+        s.append(ar.scale(acc_s, _INVERSE[k]))
+        c.append(ar.scale(acc_c if sign > 0 else ar.neg(acc_c), _INVERSE[k]))
     return s, c
 
 
@@ -184,7 +188,7 @@ def sqrt(ar: Arithmetic, u: Series) -> Series:
     s0 = ar.function("sqrt", u[0])
     if len(u) == 1 or ar.sign(s0) <= 0:  # at zero the slope is unbounded: value only
         return [s0]
-    twice = ar.scale(s0, Fraction(2))
+    twice = ar.scale(s0, _WHOLE[2])
     out = [s0]
     for k in range(1, len(u)):
         acc = u[k]
