@@ -68,10 +68,22 @@ def _up(value: Fraction) -> float:
     return -_down(-value)
 
 
+def _float_down(point: arb) -> float:
+    """The largest float <= an exact arb point, compared exactly in arb (fast: no Fractions)."""
+    value = float(point)
+    if value == math.inf:
+        return math.nextafter(math.inf, 0)
+    if value == -math.inf:
+        return -math.inf
+    if arb(value) > point:
+        value = math.nextafter(value, -math.inf)
+    return value
+
+
 def _bounds(x: arb) -> tuple[float, float]:
     if not x.is_finite():
         return -math.inf, math.inf
-    return _down(_exact_fraction(x.lower())), _up(_exact_fraction(x.upper()))
+    return _float_down(x.lower()), -_float_down(-x.upper())
 
 
 def _log2_magnitude(x: arb) -> int:

@@ -72,3 +72,19 @@ def _try_flint() -> str:
     except InvalidInput as error:
         return error.code
     return "accepted"
+
+
+@given(st.integers(-10**30, 10**30), st.integers(1, 10**25), st.integers(-1100, 1100))
+def test_flint_float_bounds_are_the_exact_outward_rounding(numerator, denominator, scale) -> None:
+    """The fast float conversion agrees with rounding the exact rational endpoints outward."""
+    import math
+
+    import flint
+
+    from service.arithmetic._flint_backend import _bounds, _down, _exact_fraction
+
+    ball = flint.arb(flint.fmpq(numerator, denominator)) * flint.arb(2) ** scale
+    low, high = _bounds(ball)
+    exact_low, exact_high = _exact_fraction(ball.lower()), _exact_fraction(ball.upper())
+    assert low == _down(exact_low) and high == -_down(-exact_high)
+    assert (low == -math.inf or Fraction(low) <= exact_low) and (high == math.inf or Fraction(high) >= exact_high)
