@@ -99,10 +99,10 @@ def test_batch_answers_every_item_in_order(client: TestClient) -> None:
     assert response.status_code == 200
     results = response.json()["results"]
     assert len(results) == len(items)
-    assert encloses(results[0]["enclosure"], HP.mpf(1) / 2)
+    assert encloses(results[0]["enclosure"], HP.mpf(1) / 2)  # closed form 1/2
     assert results[1]["code"] == "implicit_multiplication" and results[1]["column"] == 2
     assert results[2]["code"] == "undefined_at_point"
-    assert encloses(results[3]["enclosure"], HP.e ** 2 - 1)
+    assert encloses(results[3]["enclosure"], HP.e ** 2 - 1)  # closed form e^2 - 1
     assert results[4]["status"] == 422
     assert results[1]["instance"].endswith("#/items/1")
 
