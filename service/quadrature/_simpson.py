@@ -42,6 +42,7 @@ class _Panel:
     enclosure: Any = None      # None: not bounded yet on this panel
     order: int = -1            # the bound that gave the narrowest enclosure
     width: float = math.inf
+    centre: float = 0.0        # float midpoint of the enclosure, for the running estimate only
     fault: str = ""
 
 
@@ -179,7 +180,8 @@ class Refiner:
                 unresolved += 1
             else:
                 width_sum += panel.width
-                centre_sum += sum(self.ar.bounds(panel.enclosure)) / 2
+                panel.centre = sum(self.ar.bounds(panel.enclosure)) / 2
+                centre_sum += panel.centre
 
         def pop() -> _Panel:
             nonlocal unresolved, width_sum, centre_sum
@@ -188,7 +190,7 @@ class Refiner:
                 unresolved -= 1
             else:
                 width_sum -= panel.width
-                centre_sum -= sum(self.ar.bounds(panel.enclosure)) / 2
+                centre_sum -= panel.centre
             return panel
 
         push(first)
