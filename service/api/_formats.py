@@ -6,7 +6,6 @@ from typing import Any
 from xml.sax.saxutils import escape
 
 FIELDS = ("value", "error_bound", "low", "high", "nodes")
-FORMATS = ("text", "csv", "xml", "json")
 MEDIA_TYPES = {"text": "text/plain; charset=utf-8", "csv": "text/csv; charset=utf-8",
                "xml": "application/xml; charset=utf-8", "json": "application/json"}
 

@@ -226,9 +226,3 @@ class WorkerPool:
         self.restarts += 1
         return fresh
 
-
-def kill_one_worker(pool: WorkerPool) -> int:
-    """Fault injection for tests and drills: SIGKILL one worker, return its pid."""
-    pid = pool.pids()[0]
-    os.kill(pid, signal.SIGKILL)
-    return pid

@@ -52,22 +52,6 @@ def _exact_fraction(point: arb) -> Fraction:
     return Fraction(man) * Fraction(2) ** exp
 
 
-_MAX = Fraction(__import__("sys").float_info.max)
-
-
-def _down(value: Fraction) -> float:
-    if value > _MAX:
-        return math.nextafter(math.inf, 0)
-    if value < -_MAX:
-        return -math.inf
-    result = float(value)
-    return math.nextafter(result, -math.inf) if Fraction(result) > value else result
-
-
-def _up(value: Fraction) -> float:
-    return -_down(-value)
-
-
 def _float_down(point: arb) -> float:
     """The largest float <= an exact arb point, compared exactly in arb (fast: no Fractions)."""
     value = float(point)

@@ -6,6 +6,8 @@ precision as an argument, so nothing here depends on global state.
 
 from __future__ import annotations
 
+import math
+import sys
 from fractions import Fraction
 from typing import NamedTuple
 
@@ -34,11 +36,6 @@ class Interval(NamedTuple):
     def contains(self, value: Raw) -> bool:
         return libmp.mpf_le(self.lo, value) and libmp.mpf_le(value, self.hi)
 
-    def contains_fraction(self, value: Fraction) -> bool:
-        lo = Fraction(*libmp.to_rational(self.lo))
-        hi = Fraction(*libmp.to_rational(self.hi))
-        return lo <= value <= hi
-
     def floats(self) -> tuple[float, float]:
         """Endpoints as float64, rounded outward, so the pair still encloses."""
         return libmp.to_float(self.lo, rnd=libmp.round_floor), libmp.to_float(self.hi, rnd=libmp.round_ceiling)
@@ -50,3 +47,21 @@ class Interval(NamedTuple):
 
 def to_fraction(value: Raw) -> Fraction:
     return Fraction(*libmp.to_rational(value))
+
+
+_FLOAT_MAX = Fraction(sys.float_info.max)
+
+
+def fraction_down(value: Fraction) -> float:
+    """The largest float64 <= value (-inf below the float range)."""
+    if value > _FLOAT_MAX:
+        return sys.float_info.max
+    if value < -_FLOAT_MAX:
+        return -math.inf
+    result = float(value)
+    return math.nextafter(result, -math.inf) if Fraction(result) > value else result
+
+
+def fraction_up(value: Fraction) -> float:
+    """The smallest float64 >= value (+inf above the float range)."""
+    return -fraction_down(-value)

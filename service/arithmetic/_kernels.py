@@ -150,11 +150,6 @@ def intersect(a: Interval, b: Interval) -> Interval:
     return Interval(lo, hi)
 
 
-def midpoint(a: Interval) -> Raw:
-    """Exact midpoint of the endpoints (a dyadic rational, no rounding)."""
-    return _shift(_add(a.lo, a.hi), -1)
-
-
 def magnitude(a: Interval) -> Raw:
     return _max(_abs(a.lo), _abs(a.hi))
 

@@ -8,9 +8,9 @@ from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
 
+from ..arithmetic import fraction_down, fraction_up
 from ..errors import InvalidInput
 from . import _inputs
-from ._finish import round_up
 from ._integrate import integrate
 from ._result import IntegralResult
 
@@ -27,18 +27,11 @@ class CheckResult:
     integral: IntegralResult
 
 
-def _round_down(value: Fraction) -> float:
-    result = float(value)
-    if Fraction(result) > value:
-        result = math.nextafter(result, -math.inf)
-    return max(result, 0.0)
-
-
 def distance_bounds(claimed: float, low: float, high: float) -> tuple[float, float]:
     c, lo, hi = Fraction(claimed), Fraction(low), Fraction(high)
     far = max(abs(c - lo), abs(c - hi))
     near = Fraction(0) if lo <= c <= hi else min(abs(c - lo), abs(c - hi))
-    return _round_down(near), round_up(far)
+    return max(fraction_down(near), 0.0), fraction_up(far)
 
 
 def check(integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: float, tolerance: float, *,

@@ -5,12 +5,7 @@ from __future__ import annotations
 import math
 from fractions import Fraction
 
-
-def round_up(value: Fraction) -> float:
-    result = float(value)
-    if Fraction(result) < value:
-        result = math.nextafter(result, math.inf)
-    return result
+from ..arithmetic import fraction_up
 
 
 def error_bound(low: float, high: float) -> tuple[float, float]:
@@ -20,4 +15,4 @@ def error_bound(low: float, high: float) -> tuple[float, float]:
     value = low / 2 + high / 2
     value = min(max(value, low), high)
     exact = Fraction(value)
-    return value, round_up(max(exact - Fraction(low), Fraction(high) - exact))
+    return value, fraction_up(max(exact - Fraction(low), Fraction(high) - exact))

@@ -81,7 +81,8 @@ def test_flint_float_bounds_are_the_exact_outward_rounding(numerator, denominato
 
     import flint
 
-    from service.arithmetic._flint_backend import _bounds, _down, _exact_fraction
+    from service.arithmetic import fraction_down as _down
+    from service.arithmetic._flint_backend import _bounds, _exact_fraction
 
     ball = flint.arb(flint.fmpq(numerator, denominator)) * flint.arb(2) ** scale
     low, high = _bounds(ball)

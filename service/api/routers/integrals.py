@@ -9,7 +9,8 @@ from typing import Annotated, Literal
 from fastapi import APIRouter, Query, Request
 from fastapi.responses import JSONResponse, Response
 
-from ...errors import QuadcertError
+from ...errors import InvalidInput, QuadcertError
+from .._computation import _problem_args
 from .._cache import cache_key
 from .._formats import MEDIA_TYPES, render, render_problem
 from .._jobs import _error
@@ -100,8 +101,6 @@ async def read_integral(
 
 
 def _parameters(pairs: list[str]) -> dict[str, str]:
-    from ...errors import InvalidInput
-
     values: dict[str, str] = {}
     for pair in pairs:
         name, sep, value = pair.partition(":")
@@ -118,8 +117,6 @@ def _etag(canonical: dict, fmt: str, field: str | None) -> str:
 
 
 def _args(error: QuadcertError) -> dict:
-    from .._computation import _problem_args
-
     return _problem_args(_error(error))
 
 
