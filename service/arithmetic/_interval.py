@@ -50,6 +50,7 @@ def to_fraction(value: Raw) -> Fraction:
 
 
 _FLOAT_MAX = Fraction(sys.float_info.max)
+_EXACT_INTEGER = 2**53
 
 
 def fraction_down(value: Fraction) -> float:
@@ -58,7 +59,9 @@ def fraction_down(value: Fraction) -> float:
         return sys.float_info.max
     if value < -_FLOAT_MAX:
         return -math.inf
-    result = float(value)
+    result = float(value)  # correctly rounded to nearest
+    if value.denominator == 1 and -_EXACT_INTEGER <= value.numerator <= _EXACT_INTEGER:
+        return result
     return math.nextafter(result, -math.inf) if Fraction(result) > value else result
 
 

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import difflib
 from dataclasses import dataclass, field
+from functools import cached_property
 from fractions import Fraction
 
 from ..errors import FormulaError
@@ -42,7 +43,7 @@ class Formula:
     parameters: tuple[str, ...] = ()
     node_count: int = field(default=0, compare=False)
 
-    @property
+    @cached_property
     def text(self) -> str:
         """Canonical text, stable across spellings (for caching and echoing)."""
         return canonical_text(self.root)

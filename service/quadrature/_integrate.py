@@ -11,13 +11,14 @@ from ..arithmetic import Arithmetic, FlintArithmetic, MpmathArithmetic, flint_co
 from ..derivatives import Program
 from ..errors import ArithmeticFault, InvalidInput, NotCertifiable
 from ..formula import Formula, parse
-from . import _inputs
+from . import _fast, _inputs
 from ._finish import error_bound
-from ._limits import LimitValue, enclose_limit, parse_limit
+from ._limits import LimitValue, enclose_limit, exact_limit, parse_limit
 from ._result import IntegralResult, PanelReport
 from ._simpson import Refiner
 
 DEFAULT_PRECISION = 96
+_LIMIT_PRECISION = 128  # exact limits are enclosed at this precision for the float64 engine
 ArithmeticFactory = Callable[[int], Arithmetic]
 
 
@@ -64,6 +65,7 @@ def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: Li
     lower_formula = parse_limit(lower_limit, "lower_limit", tuple(values))
     upper_formula = parse_limit(upper_limit, "upper_limit", tuple(values))
     deadline = None if deadline_seconds is None else time.monotonic() + deadline_seconds
+    native = arithmetic is None and precision_bits is None and _fast.AVAILABLE
     prec = precision_bits or choose_precision(tolerance)
     arithmetic = arithmetic or default_arithmetic()
 
@@ -72,6 +74,18 @@ def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: Li
             return tolerance
         return max(tolerance, relative * min(abs(low), abs(high)))
 
+    if native:
+        fast = _try_fast(formula, values, lower_formula, upper_formula, tolerance, relative, target, max_nodes,
+                         deadline, include_mesh)
+        if fast is not None:
+            low, high = fast.enclosure
+            value, bound = error_bound(low, high)
+            return IntegralResult(
+                value=value, enclosure=(low, high), error_bound=bound, tolerance=tolerance,
+                tolerance_met=bound <= target(low, high), stop_reason=fast.stop_reason, nodes=fast.nodes,
+                panels=fast.panels, integrand=formula.text, lower_limit=lower_formula.text,
+                upper_limit=upper_formula.text, precision_bits=53, compute_seconds=time.perf_counter() - started,
+                mesh=fast.mesh if include_mesh else None, bounds_used=fast.bounds_used)
     attempts = 0
     while True:
         ar = arithmetic(prec)
@@ -97,6 +111,45 @@ def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: Li
         upper_limit=upper_formula.text, precision_bits=prec,
         compute_seconds=time.perf_counter() - started, mesh=mesh if include_mesh else None,
         bounds_used=bounds_used)
+
+
+def _try_fast(formula: Formula, values: dict[str, Fraction], lower: Formula, upper: Formula, tolerance: float,
+              relative: float | None, target: Callable[[float, float], float], max_nodes: int,
+              deadline: float | None, include_mesh: bool) -> _fast.FastOutcome | None:
+    """The compiled float64 engine's answer when it is a usable one; None hands over to the precise engine."""
+    if lower.text == upper.text:
+        return None
+    compiled = _fast.compile_formula(formula, values)
+    if compiled is None:
+        return None
+    a, b = _exact_bounds(lower, values, "lower_limit"), _exact_bounds(upper, values, "upper_limit")
+    if a[1] < b[0]:
+        sign = 1
+    elif b[1] < a[0]:
+        sign, a, b = -1, b, a
+    else:
+        return None
+    outcome = _fast.run(compiled, a, b, tolerance, relative, max_nodes, deadline, include_mesh)
+    if isinstance(outcome, str):
+        return None
+    low, high = outcome.enclosure
+    bound = error_bound(low, high)[1]
+    if not math.isfinite(bound) or (outcome.stop_reason == "tolerance_met" and bound > target(low, high)):
+        return None  # float64 got close but not provably there: the precise engine decides
+    if sign < 0:
+        mesh = tuple(PanelReport(r.lower, r.upper, (-r.contribution[1], -r.contribution[0]), r.bound)
+                     for r in outcome.mesh)
+        outcome = _fast.FastOutcome((-high, -low), outcome.stop_reason, outcome.nodes, outcome.panels,
+                                    outcome.bounds_used, mesh)
+    return outcome
+
+
+def _exact_bounds(limit: Formula, values: dict[str, Fraction], field: str) -> tuple[Fraction, Fraction]:
+    exact = exact_limit(limit)
+    if exact is not None:
+        return exact, exact
+    ref = MpmathArithmetic(_LIMIT_PRECISION)
+    return ref.bounds_exact(enclose_limit(limit, ref, values, field))
 
 
 def _run(program: Program, ar: Arithmetic, a: object, b: object, same_text: bool, max_nodes: int,

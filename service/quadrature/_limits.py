@@ -3,14 +3,16 @@
 from __future__ import annotations
 
 import math
+import re
 from fractions import Fraction
 from typing import Any
 
 from ..arithmetic import Arithmetic
 from ..derivatives import Program
 from ..errors import FormulaError, InvalidInput, QuadcertError
-from ..formula import Formula, parse
+from ..formula import Formula, Negate, Number, parse
 
+_PLAIN = re.compile(r"-?[0-9]{1,15}(\.[0-9]{1,15})?")
 _INFINITE = {"inf", "+inf", "-inf", "infinity", "+infinity", "-infinity", "oo", "-oo"}
 LimitValue = str | int | float | Fraction
 
@@ -40,12 +42,25 @@ def limit_text(value: LimitValue, field: str) -> str:
 
 def parse_limit(value: LimitValue, field: str, parameters: tuple[str, ...] = ()) -> Formula:
     text = limit_text(value, field)
+    if _PLAIN.fullmatch(text):  # the common case, read without the parser into the tree it would build
+        number = Number(Fraction(text.lstrip("-")))
+        return Formula(Negate(number) if text.startswith("-") else number, "_")
     try:
         formula = parse(text, variable="_", parameters=parameters)
     except FormulaError as error:
         raise InvalidInput(f"{field}: {error.message}", code=error.code, field=field,
                            column=error.column) from None
     return formula
+
+
+def exact_limit(formula: Formula) -> Fraction | None:
+    """The limit's exact value when it is a plain numeral (no enclosure needed)."""
+    root = formula.root
+    if isinstance(root, Number):
+        return root.value
+    if isinstance(root, Negate) and isinstance(root.operand, Number):
+        return -root.operand.value
+    return None
 
 
 def enclose_limit(formula: Formula, ar: Arithmetic, parameters: dict[str, Fraction], field: str) -> Any:

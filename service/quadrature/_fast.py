@@ -1,0 +1,202 @@
+"""The compiled float64 engine: formula → instructions, a run, and its outcome.
+
+Most requests need far fewer than 53 bits, so the whole adaptive Simpson
+refinement runs in C on outward-rounded float64 intervals (``_native.c``).
+It only accelerates: whenever it cannot finish within float64 (a value it
+cannot enclose, a tolerance below its resolution, a panel it cannot bound)
+it declines, and the arbitrary-precision engine in ``_simpson`` takes the
+request from the start.  Constant subtrees (0.1, pi/3, parameters) are
+enclosed exactly by the reference backend and rounded outward to floats.
+"""
+
+from __future__ import annotations
+
+import math
+import time
+from array import array
+from dataclasses import dataclass
+from fractions import Fraction
+from typing import Mapping
+
+from ..arithmetic import MpmathArithmetic, fraction_down, fraction_up
+from ..derivatives import Program
+from ..errors import ArithmeticFault
+from ..formula import Binary, Call, Constant, Formula, Negate, Node, Number, Parameter, Variable
+from ._peano import BOUND_NAMES
+from ._result import PanelReport
+
+try:
+    from . import _native
+except ImportError:  # built without a C compiler: the arbitrary-precision engine does everything
+    _native = None
+
+AVAILABLE = _native is not None
+
+_OPS = {"x": 0, "const": 1, "neg": 2, "+": 3, "-": 4, "*": 5, "/": 6, "sqr": 7, "powi": 8, "^": 9,
+        "min": 10, "max": 11}
+_FUNCTIONS = {name: 20 + i for i, name in enumerate(
+    ["sqrt", "exp", "log", "log10", "sin", "cos", "tan", "asin", "acos", "atan", "sinh", "cosh", "tanh", "erf",
+     "abs"])}
+FUNCTION_CODES = dict(_FUNCTIONS)  # for the tests of the guarded layer
+MAX_POWER = 1024
+_FOLD_PRECISION = 128
+_STOPS = {0: "tolerance_met", 1: "node_budget", 2: "deadline"}
+DECLINED = {-1: "value", -2: "depth", -3: "resolution", -4: "unresolved", -5: "memory", -6: "rounding_mode"}
+
+
+@dataclass(frozen=True)
+class Compiled:
+    code: bytes
+    constants: tuple[tuple[float, float], ...]
+    stack: int
+
+
+@dataclass(frozen=True)
+class FastOutcome:
+    """A run that finished: its enclosure is rigorous whatever the stop reason."""
+
+    enclosure: tuple[float, float]
+    stop_reason: str
+    nodes: int
+    panels: int
+    bounds_used: dict[str, int]
+    mesh: tuple[PanelReport, ...]
+
+
+class _Compiler:
+    def __init__(self, formula: Formula, values: Mapping[str, Fraction]) -> None:
+        self.formula = formula
+        self.values = values
+        self.ar = MpmathArithmetic(_FOLD_PRECISION)
+        self.code: list[int] = []
+        self.constants: list[tuple[float, float]] = []
+        self.depth = self.most = 0
+
+    def emit(self, op: str | int, arg: int = 0, effect: int = 0) -> None:
+        self.code += [op if isinstance(op, int) else _OPS[op], arg]
+        self.depth += effect
+        self.most = max(self.most, self.depth)
+
+    def constant(self, node: Node) -> None:
+        if isinstance(node, Number):
+            low = high = node.value
+        else:
+            program = Program(Formula(node, self.formula.variable, self.formula.parameters), self.ar, self.values)
+            low, high = self.ar.bounds_exact(program.value(self.ar.zero))
+        self.constants.append((fraction_down(low), fraction_up(high)))
+        self.emit("const", len(self.constants) - 1, +1)
+
+    def node(self, node: Node) -> None:
+        if not _depends(node):
+            self.constant(node)
+        elif isinstance(node, Variable):
+            self.emit("x", 0, +1)
+        elif isinstance(node, Negate):
+            self.node(node.operand)
+            self.emit("neg")
+        elif isinstance(node, Call):
+            self.node(node.args[0])
+            if node.function in ("min", "max"):
+                for arg in node.args[1:]:
+                    self.node(arg)
+                    self.emit(node.function, 0, -1)
+            else:
+                self.emit(_FUNCTIONS[node.function])
+        else:
+            assert isinstance(node, Binary)
+            self.binary(node)
+
+    def binary(self, node: Binary) -> None:
+        if node.op == "^" and not _depends(node.right):
+            exponent = self.exact_integer(node.right)
+            if exponent is not None and abs(exponent) <= MAX_POWER:
+                self.node(node.left)
+                if exponent == 2:
+                    self.emit("sqr")
+                else:
+                    self.emit("powi", exponent)
+                return
+        if node.op == "*" and node.left == node.right:
+            self.node(node.left)
+            self.emit("sqr")
+            return
+        self.node(node.left)
+        self.node(node.right)
+        self.emit(node.op, 0, -1)
+
+    def exact_integer(self, node: Node) -> int | None:
+        if isinstance(node, Number):
+            return node.value.numerator if node.value.denominator == 1 else None
+        if isinstance(node, Negate) and isinstance(node.operand, Number):
+            inner = node.operand.value
+            return -inner.numerator if inner.denominator == 1 else None
+        program = Program(Formula(node, self.formula.variable, self.formula.parameters), self.ar, self.values)
+        return self.ar.is_exact_integer(program.value(self.ar.zero))
+
+
+def _depends(node: Node) -> bool:
+    if isinstance(node, Variable):
+        return True
+    if isinstance(node, (Number, Constant, Parameter)):
+        return False
+    if isinstance(node, Negate):
+        return _depends(node.operand)
+    if isinstance(node, Call):
+        return any(_depends(a) for a in node.args)
+    assert isinstance(node, Binary)
+    return _depends(node.left) or _depends(node.right)
+
+
+def compile_formula(formula: Formula, values: Mapping[str, Fraction]) -> Compiled | None:
+    """Instructions for the native engine, or None where a constant does not fit in float64."""
+    compiler = _Compiler(formula, values)
+    try:
+        compiler.node(formula.root)
+    except ArithmeticFault:
+        return None
+    if any(not (math.isfinite(lo) and math.isfinite(hi) and abs(lo) < 1e300 and abs(hi) < 1e300)
+           for lo, hi in compiler.constants):
+        return None
+    return Compiled(array("i", compiler.code).tobytes(), tuple(compiler.constants), max(1, compiler.most))
+
+
+def run(compiled: Compiled, a: tuple[Fraction, Fraction], b: tuple[Fraction, Fraction], tolerance: float,
+        relative: float | None, max_nodes: int, deadline: float | None, want_mesh: bool
+        ) -> FastOutcome | str:
+    """Refine on [a, b] (exact enclosures of the limits, a < b); a FastOutcome, or why it declined."""
+    if _native is None:
+        return "unavailable"
+    seconds = 0.0
+    if deadline is not None:
+        seconds = deadline - time.monotonic()
+        if seconds <= 0:
+            return "deadline"
+    bounds = (fraction_down(a[0]), fraction_up(a[1]), fraction_down(b[0]), fraction_up(b[1]))
+    if not all(math.isfinite(v) for v in bounds):
+        return "limits"
+    status, low, high, nodes, panels, counts, mesh = _native.integrate(
+        compiled.code, compiled.constants, compiled.stack, *bounds, tolerance, relative or 0.0, seconds,
+        max_nodes, want_mesh)
+    if status < 0:
+        return DECLINED.get(status, "unknown")
+    used = {BOUND_NAMES[order]: count for order, count in enumerate(counts) if count}
+    reports: tuple[PanelReport, ...] = ()
+    if mesh is not None:
+        reports = tuple(PanelReport(p, q, (lo, hi), BOUND_NAMES[order])
+                        for p, q, lo, hi, order in sorted(mesh))
+    return FastOutcome((low, high), _STOPS[status], nodes, panels, used, reports)
+
+
+def enclose_function(name: str, low: float, high: float) -> tuple[float, float] | None:
+    """The guarded layer's enclosure of one function over [low, high] (None: outside its domain)."""
+    assert _native is not None
+    return _native.enclose(_FUNCTIONS[name], low, high)
+
+
+def operate(op: str, a: tuple[float, float], b: tuple[float, float] = (0.0, 0.0), n: int = 0
+            ) -> tuple[float, float] | None:
+    assert _native is not None
+    codes = {"+": 0, "-": 1, "*": 2, "/": 3, "sqr": 4, "pow": 5}
+    return _native.operate(codes[op], a[0], a[1], b[0], b[1], n)
+
+
