@@ -4,10 +4,10 @@
    Peano bounds of _peano.py intersected, worst-first bisection), for formulas
    whose certificate fits in float64.  Every operation rounds outward:
 
-   - + - * / and sqrt are correctly rounded by IEEE 754 in round-to-nearest;
-     the exact error of each result (TwoSum, or an FMA residual) tells which way
-     it was rounded, and the result is moved one ulp outward only then, so exact
-     results (0, 1, x + 0) stay exact points.
+   - + - * / and sqrt are correctly rounded by IEEE 754 in round-to-nearest.
+     Sums are moved one ulp outward only when TwoSum shows they were rounded, so
+     exact sums stay exact points; products, quotients and roots always move one
+     ulp outward (zero factors excepted).
    - elementary functions come from the C library, which is not guaranteed to be
      correctly rounded: each value is widened by GUARD relative plus TINY
      absolute, far beyond the documented error of any mainstream libm, and the
@@ -80,50 +80,22 @@ static inline double add_up(double x, double y) {
     double s = x + y, bp = s - x, e = (x - (s - bp)) + (y - bp);
     return (e > 0 || e != e) ? up(s) : s;
 }
-static inline double mul_dn(double x, double y) {
-    double p = x * y;
-    if (x == 0 || y == 0) return 0.0;
-    if (fabs(p) < 0x1p-960) return dn(p);      /* the FMA residual may underflow: widen blindly */
-    double e = fma(x, y, -p);
-    return e < 0 ? dn(p) : p;
-}
-static inline double mul_up(double x, double y) {
-    double p = x * y;
-    if (x == 0 || y == 0) return 0.0;
-    if (fabs(p) < 0x1p-960) return up(p);
-    double e = fma(x, y, -p);
-    return e > 0 ? up(p) : p;
-}
-/* sign of (exact x/y) - q, from the exact residual x - q*y */
-static inline int div_side(double x, double y, double q) {
-    double r = fma(-q, y, x);
-    if (r == 0) return 0;
-    return ((r > 0) == (y > 0)) ? 1 : -1;
-}
+/* Products, quotients and square roots are moved one ulp outward unconditionally: cheaper than
+   proving exactness with an FMA residual, and rigorous for every finite result, subnormal ones
+   included (round-to-nearest is off by at most half a spacing).  Zero factors stay exact. */
+static inline double mul_dn(double x, double y) { return (x == 0 || y == 0) ? 0.0 : dn(x * y); }
+static inline double mul_up(double x, double y) { return (x == 0 || y == 0) ? 0.0 : up(x * y); }
+/* An infinite endpoint stands for "unbounded", so inf/inf may be anything of its sign. */
 static inline double div_dn(double x, double y) {
-    double q = x / y;
-    if (x == 0) return 0.0;
-    if (fabs(q) < 0x1p-960 || fabs(x) < 0x1p-960) return dn(q);
-    return div_side(x, y, q) < 0 ? dn(q) : q;
+    if (isinf(x) && isinf(y)) return (x > 0) == (y > 0) ? 0.0 : -INFINITY;
+    return x == 0 ? 0.0 : dn(x / y);
 }
 static inline double div_up(double x, double y) {
-    double q = x / y;
-    if (x == 0) return 0.0;
-    if (fabs(q) < 0x1p-960 || fabs(x) < 0x1p-960) return up(q);
-    return div_side(x, y, q) > 0 ? up(q) : q;
+    if (isinf(x) && isinf(y)) return (x > 0) == (y > 0) ? INFINITY : 0.0;
+    return x == 0 ? 0.0 : up(x / y);
 }
-static inline double sqrt_dn(double x) {
-    if (x <= 0) return 0.0;
-    double s = sqrt(x);
-    if (x < 0x1p-900) return dn(s);
-    return fma(-s, s, x) < 0 ? dn(s) : s;
-}
-static inline double sqrt_up(double x) {
-    if (x <= 0) return 0.0;
-    double s = sqrt(x);
-    if (x < 0x1p-900) return up(s);
-    return fma(-s, s, x) > 0 ? up(s) : s;
-}
+static inline double sqrt_dn(double x) { return x <= 0 ? 0.0 : dn(sqrt(x)); }
+static inline double sqrt_up(double x) { return x <= 0 ? 0.0 : up(sqrt(x)); }
 
 /* ---- interval arithmetic ----------------------------------------------------------------- */
 
@@ -134,12 +106,17 @@ static inline double greater(double a, double b) { return (a != a || b != b) ? N
 static inline iv point(double x) { iv r = {x, x}; return r; }
 static inline iv mk(double lo, double hi) { iv r = {lo, hi}; return r; }
 static inline int finite_iv(iv a) { return a.lo >= -BIG && a.hi <= BIG && a.lo <= a.hi; }
+/* Intermediate intervals may have infinite endpoints (an overflow means "beyond the float range",
+   and 1/[2^1023, inf] is still a true enclosure); only NaN, from inf - inf or inf/inf, is invalid. */
+static inline int valid_iv(iv a) { return a.lo <= a.hi; }
 
 static inline iv iv_add(iv a, iv b) { return mk(add_dn(a.lo, b.lo), add_up(a.hi, b.hi)); }
 static inline iv iv_sub(iv a, iv b) { return mk(add_dn(a.lo, -b.hi), add_up(a.hi, -b.lo)); }
 static inline iv iv_neg(iv a) { return mk(-a.hi, -a.lo); }
 
 static inline iv mul_point(iv a, double k) {   /* k finite, nonzero */
+    if (k == 1) return a;
+    if (k == -1) return mk(-a.hi, -a.lo);
     return k > 0 ? mk(mul_dn(a.lo, k), mul_up(a.hi, k)) : mk(mul_dn(a.hi, k), mul_up(a.lo, k));
 }
 
@@ -202,8 +179,18 @@ static iv iv_pow_int(machine *m, iv a, int n) {   /* n >= 1 */
 
 /* ---- guarded elementary functions -------------------------------------------------------- */
 
-static inline double g_dn(double y) { return dn(dn(y - fabs(y) * GUARD) - TINY); }
-static inline double g_up(double y) { return up(up(y + fabs(y) * GUARD) + TINY); }
+/* A library value y widened to a lower / upper bound of the true value.  An overflowed y means a
+   true value beyond 2^1023 in magnitude. */
+static inline double g_dn(double y) {
+    if (y == INFINITY) return 0x1p1023;
+    if (y == -INFINITY || y != y) return y;
+    return dn(dn(y - fabs(y) * GUARD) - TINY);
+}
+static inline double g_up(double y) {
+    if (y == -INFINITY) return -0x1p1023;
+    if (y == INFINITY || y != y) return y;
+    return up(up(y + fabs(y) * GUARD) + TINY);
+}
 
 /* 2/pi rounded down and up */
 static const double TWO_OVER_PI_LO = 0x1.45f306dc9c882p-1;
@@ -253,8 +240,7 @@ static const double HALF_PI_UP = 0x1.921fb54442d19p+0;   /* pi/2 and pi rounded 
 static const double PI_UP = 0x1.921fb54442d19p+1;
 
 static inline iv increasing(real_fn f, iv a, double floor_, double ceil_) {
-    double l = f(a.lo), h = f(a.hi);
-    if (!isfinite(l) || !isfinite(h)) return mk(-INFINITY, INFINITY);   /* fails the finiteness check */
+    double l = f(a.lo), h = f(a.hi);   /* NaN stays NaN and fails the validity check */
     return mk(greater(g_dn(l), floor_), lesser(g_up(h), ceil_));
 }
 
@@ -643,7 +629,7 @@ static int evaluate(machine *m, iv x, int order, series *result, const iv *ln10,
         }
         if (m->fault) return -1;
         series *t = &st[top - 1];
-        for (int k = 0; k < t->len; k++) if (!finite_iv(t->c[k])) { m->fault = 1; return -1; }
+        for (int k = 0; k < t->len; k++) if (!valid_iv(t->c[k])) { m->fault = 1; return -1; }
     }
     if (top != 1) { m->fault = 1; return -1; }
     *result = st[0];
@@ -668,11 +654,12 @@ typedef struct {
     Py_ssize_t *heap;          /* indices of live panels, max-heap by width */
     Py_ssize_t heap_size;
     long long nodes;
+    int overflow;              /* a Taylor coefficient left the float64 range */
 } refiner;
 
 static int node_value(refiner *r, iv x, iv *out) {
     series s;
-    if (evaluate(r->vm, x, 0, &s, &r->ln10, &r->two_over_root_pi)) return -1;
+    if (evaluate(r->vm, x, 0, &s, &r->ln10, &r->two_over_root_pi) || !finite_iv(s.c[0])) return -1;
     *out = s.c[0];
     return 0;
 }
@@ -687,6 +674,11 @@ static void certify(refiner *r, panel *pn) {
     pn->order = -1;
     series s;
     if (evaluate(r->vm, mk(pn->p.lo, pn->q.hi), ORDER, &s, &r->ln10, &r->two_over_root_pi)) return;
+    for (int k = 0; k < s.len; k++) {
+        /* beyond float64's range the bounds lose all their information: the precise engine's
+           unbounded exponents do better, so the run declines */
+        if (!finite_iv(s.c[k])) { r->overflow = 1; return; }
+    }
     iv best = iv_mul(width, s.c[0]), enclosure = best;
     int best_order = 0;
     iv candidates[4];
@@ -772,7 +764,7 @@ static double target_of(double tol, double rel, double lo, double hi) {
 /* status codes shared with _fast.py */
 enum { MET = 0, NODE_BUDGET = 1, DEADLINE = 2,
        DECLINE_VALUE = -1, DECLINE_DEPTH = -2, DECLINE_RESOLUTION = -3, DECLINE_UNRESOLVED = -4,
-       DECLINE_MEMORY = -5, DECLINE_ROUNDING_MODE = -6 };
+       DECLINE_MEMORY = -5, DECLINE_ROUNDING_MODE = -6, DECLINE_RANGE = -7 };
 
 static int make_panel(refiner *r, iv p, iv q, iv fp, iv fq, int depth, Py_ssize_t *index) {
     if (grow(r)) return DECLINE_MEMORY;
@@ -784,7 +776,7 @@ static int make_panel(refiner *r, iv p, iv q, iv fp, iv fq, int depth, Py_ssize_
     r->nodes++;
     certify(r, pn);
     *index = r->count++;
-    return 0;
+    return r->overflow ? DECLINE_RANGE : 0;
 }
 
 static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nodes, double deadline, iv *total_out) {
@@ -836,7 +828,30 @@ static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nod
 #undef ACCOUNT
 }
 
-/* ---- Python entry point ------------------------------------------------------------------ */
+/* ---- Python entry points ----------------------------------------------------------------- */
+
+static const iv LN10 = {0x1.26bb1bbb55515p+1, 0x1.26bb1bbb55516p+1};                /* ln 10, down and up */
+static const iv TWO_OVER_ROOT_PI = {0x1.20dd750429b6dp+0, 0x1.20dd750429b6ep+0};    /* 2/sqrt(pi) */
+
+/* indices in range and a stack that never underflows or overflows and ends with one value */
+static int check_program(const machine *vm, Py_ssize_t nconst) {
+    static const signed char effect[] = {1, 1, 0, -1, -1, -1, -1, 0, 0, -1, -1, -1};
+    int depth = 0;
+    for (Py_ssize_t i = 0; i < vm->ops; i++) {
+        int op = vm->code[2 * i], arg = vm->code[2 * i + 1], e;
+        if (op >= 0 && op <= OP_MAX) e = effect[op];
+        else if (op >= OP_SQRT && op <= OP_ABS) e = 0;
+        else { PyErr_SetString(PyExc_ValueError, "unknown opcode"); return -1; }
+        if (op == OP_CONST && (arg < 0 || arg >= nconst)) { PyErr_SetString(PyExc_ValueError, "bad constant"); return -1; }
+        if (op == OP_POWI && (arg < -1024 || arg > 1024)) { PyErr_SetString(PyExc_ValueError, "bad power"); return -1; }
+        int needs = e == 1 ? 0 : (e == 0 ? 1 : 2);
+        if (depth < needs) { PyErr_SetString(PyExc_ValueError, "stack underflow"); return -1; }
+        depth += e;
+        if (depth > vm->stack_size) { PyErr_SetString(PyExc_ValueError, "stack overflow"); return -1; }
+    }
+    if (depth != 1) { PyErr_SetString(PyExc_ValueError, "program leaves no single value"); return -1; }
+    return 0;
+}
 
 static int read_iv(PyObject *seq, Py_ssize_t i, iv *out) {
     PyObject *pair = PySequence_Fast_GET_ITEM(seq, i);
@@ -887,25 +902,7 @@ static PyObject *native_integrate(PyObject *self, PyObject *args) {
     vm.consts = consts;
     vm.stack_size = stack_size;
     vm.stack = stack;
-    /* validate the program once: indices and stack depth */
-    {
-        int depth = 0;
-        static const signed char effect[] = {1, 1, 0, -1, -1, -1, -1, 0, 0, -1, -1, -1};
-        for (Py_ssize_t i = 0; i < vm.ops; i++) {
-            int op = vm.code[2 * i], arg = vm.code[2 * i + 1];
-            int e;
-            if (op >= 0 && op <= OP_MAX) e = effect[op];
-            else if (op >= OP_SQRT && op <= OP_ABS) e = 0;
-            else { PyErr_SetString(PyExc_ValueError, "unknown opcode"); goto done; }
-            if (op == OP_CONST && (arg < 0 || arg >= nconst)) { PyErr_SetString(PyExc_ValueError, "bad constant"); goto done; }
-            if (op == OP_POWI && (arg < -1024 || arg > 1024)) { PyErr_SetString(PyExc_ValueError, "bad power"); goto done; }
-            int needs = (e == 1) ? 0 : (e == 0 ? 1 : 2);
-            if (depth < needs) { PyErr_SetString(PyExc_ValueError, "stack underflow"); goto done; }
-            depth += e;
-            if (depth > stack_size) { PyErr_SetString(PyExc_ValueError, "stack overflow"); goto done; }
-        }
-        if (depth != 1) { PyErr_SetString(PyExc_ValueError, "program leaves no single value"); goto done; }
-    }
+    if (check_program(&vm, nconst)) goto done;
     int status;
     iv total = point(0.0);
     double started = now();
@@ -913,8 +910,8 @@ static PyObject *native_integrate(PyObject *self, PyObject *args) {
         status = DECLINE_ROUNDING_MODE;
     } else {
         r.vm = &vm;
-        r.ln10 = mk(0x1.26bb1bbb55515p+1, 0x1.26bb1bbb55516p+1);                 /* ln 10 rounded down and up */
-        r.two_over_root_pi = mk(0x1.20dd750429b6dp+0, 0x1.20dd750429b6ep+0);     /* 2/sqrt(pi) rounded down and up */
+        r.ln10 = LN10;
+        r.two_over_root_pi = TWO_OVER_ROOT_PI;
         r.c_signed = mk(div_dn(-1.0, 120.0), div_up(-1.0, 120.0));    /* -24/2880 */
         r.c_abs[1] = mk(div_dn(5.0, 36.0), div_up(5.0, 36.0));
         r.c_abs[2] = mk(div_dn(2.0, 81.0), div_up(2.0, 81.0));
@@ -951,6 +948,43 @@ done:
     PyMem_Free(stack);
     free(r.panels);
     free(r.heap);
+    return result;
+}
+
+/* the Taylor coefficients f^(k)(X)/k! of a program over X = [lo, hi], for the tests of the recurrences */
+static PyObject *native_taylor(PyObject *self, PyObject *args) {
+    (void)self;
+    Py_buffer code;
+    PyObject *consts_obj, *result = NULL, *consts_seq = NULL;
+    int stack_size, order;
+    double lo, hi;
+    if (!PyArg_ParseTuple(args, "y*Oiddi:taylor", &code, &consts_obj, &stack_size, &lo, &hi, &order)) return NULL;
+    iv *consts = NULL;
+    series *stack = NULL;
+    if (order < 0 || order > ORDER || stack_size < 1 || stack_size > 1024 || code.len % 8 || !(lo <= hi)) {
+        PyErr_SetString(PyExc_ValueError, "bad arguments");
+        goto done;
+    }
+    consts_seq = PySequence_Fast(consts_obj, "constants must be a sequence");
+    if (!consts_seq) goto done;
+    Py_ssize_t nconst = PySequence_Fast_GET_SIZE(consts_seq);
+    consts = PyMem_Malloc((size_t)(nconst + 1) * sizeof(iv));
+    stack = PyMem_Malloc((size_t)stack_size * sizeof(series));
+    if (!consts || !stack) { PyErr_NoMemory(); goto done; }
+    for (Py_ssize_t i = 0; i < nconst; i++) if (read_iv(consts_seq, i, &consts[i])) goto done;
+    machine vm = {(const int32_t *)code.buf, code.len / 8, consts, stack_size, stack, 0};
+    if (check_program(&vm, nconst)) goto done;
+    iv ln10 = LN10, two = TWO_OVER_ROOT_PI;
+    series s;
+    if (evaluate(&vm, mk(lo, hi), order, &s, &ln10, &two)) { result = Py_None; Py_INCREF(result); goto done; }
+    result = PyList_New(s.len);
+    if (!result) goto done;
+    for (int k = 0; k < s.len; k++) PyList_SET_ITEM(result, k, Py_BuildValue("(dd)", s.c[k].lo, s.c[k].hi));
+done:
+    PyBuffer_Release(&code);
+    Py_XDECREF(consts_seq);
+    PyMem_Free(consts);
+    PyMem_Free(stack);
     return result;
 }
 
@@ -998,6 +1032,7 @@ static PyObject *native_operate(PyObject *self, PyObject *args) {
 
 static PyMethodDef methods[] = {
     {"integrate", native_integrate, METH_VARARGS, "Certified adaptive Simpson of a compiled program."},
+    {"taylor", native_taylor, METH_VARARGS, "Taylor coefficient enclosures of a compiled program."},
     {"enclose", native_enclose, METH_VARARGS, "Guarded enclosure of one elementary function."},
     {"operate", native_operate, METH_VARARGS, "One outward-rounded interval operation."},
     {NULL, NULL, 0, NULL},
