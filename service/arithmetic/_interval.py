@@ -55,16 +55,18 @@ _EXACT_INTEGER = 2**53
 
 def fraction_down(value: Fraction) -> float:
     """The largest float64 <= value (-inf below the float range)."""
+    if value.denominator == 1 and -_EXACT_INTEGER <= value.numerator <= _EXACT_INTEGER:
+        return float(value.numerator)
     if value > _FLOAT_MAX:
         return sys.float_info.max
     if value < -_FLOAT_MAX:
         return -math.inf
     result = float(value)  # correctly rounded to nearest
-    if value.denominator == 1 and -_EXACT_INTEGER <= value.numerator <= _EXACT_INTEGER:
-        return result
     return math.nextafter(result, -math.inf) if Fraction(result) > value else result
 
 
 def fraction_up(value: Fraction) -> float:
     """The smallest float64 >= value (+inf above the float range)."""
+    if value.denominator == 1 and -_EXACT_INTEGER <= value.numerator <= _EXACT_INTEGER:
+        return float(value.numerator)
     return -fraction_down(-value)

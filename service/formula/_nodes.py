@@ -66,6 +66,8 @@ def decimal_text(value: Fraction) -> str:
     significant digits than the literal it came from.
     """
     denominator = value.denominator
+    if denominator == 1 and value.numerator % 10**7:  # an integer with fewer than 7 trailing zeros
+        return str(value.numerator)
     for factor in (2, 5):
         while denominator % factor == 0:
             denominator //= factor

@@ -13,7 +13,7 @@ from __future__ import annotations
 
 import difflib
 from dataclasses import dataclass, field
-from functools import cached_property
+from functools import cached_property, lru_cache
 from fractions import Fraction
 
 from ..errors import FormulaError
@@ -263,7 +263,15 @@ def parse(text: str, variable: str = "x", parameters: tuple[str, ...] | list[str
     """
     if not isinstance(text, str):
         raise FormulaError("formula must be text", code="invalid_formula")
-    parameters = tuple(parameters)
+    return _parse_cached(text, variable, tuple(parameters))
+
+
+@lru_cache(maxsize=1024)  # formulas are immutable: spreadsheets and CI jobs send the same ones over and over
+def _parse_cached(text: str, variable: str, parameters: tuple[str, ...]) -> Formula:
+    return _parse(text, variable, parameters)
+
+
+def _parse(text: str, variable: str, parameters: tuple[str, ...]) -> Formula:
     _check_identifier(variable, "variable")
     for name in parameters:
         _check_identifier(name, "parameter")

@@ -16,6 +16,7 @@ import time
 from array import array
 from dataclasses import dataclass
 from fractions import Fraction
+from functools import lru_cache
 from typing import Mapping
 
 from ..arithmetic import MpmathArithmetic, fraction_down, fraction_up
@@ -149,6 +150,12 @@ def _depends(node: Node) -> bool:
 
 def compile_formula(formula: Formula, values: Mapping[str, Fraction]) -> Compiled | None:
     """Instructions for the native engine, or None where a constant does not fit in float64."""
+    return _compile_cached(formula, tuple(sorted(values.items())))
+
+
+@lru_cache(maxsize=1024)  # a compiled formula is immutable, like the parsed one it comes from
+def _compile_cached(formula: Formula, items: tuple[tuple[str, Fraction], ...]) -> Compiled | None:
+    values = dict(items)
     compiler = _Compiler(formula, values)
     try:
         compiler.node(formula.root)
@@ -185,6 +192,12 @@ def run(compiled: Compiled, a: tuple[Fraction, Fraction], b: tuple[Fraction, Fra
         reports = tuple(PanelReport(p, q, (lo, hi), BOUND_NAMES[order])
                         for p, q, lo, hi, order in sorted(mesh))
     return FastOutcome((low, high), _STOPS[status], nodes, panels, used, reports)
+
+
+def taylor(compiled: Compiled, low: float, high: float, order: int) -> list[tuple[float, float]] | None:
+    """Enclosures of f⁽ᵏ⁾(X)/k! over X = [low, high] from the compiled recurrences (None: not enclosable)."""
+    assert _native is not None
+    return _native.taylor(compiled.code, compiled.constants, compiled.stack, low, high, order)
 
 
 def enclose_function(name: str, low: float, high: float) -> tuple[float, float] | None:

@@ -5,9 +5,9 @@
    whose certificate fits in float64.  Every operation rounds outward:
 
    - + - * / and sqrt are correctly rounded by IEEE 754 in round-to-nearest.
-     Sums are moved one ulp outward only when TwoSum shows they were rounded, so
-     exact sums stay exact points; products, quotients and roots always move one
-     ulp outward (zero factors excepted).
+     A result is moved one ulp outward unless it is provably exact (TwoSum for
+     sums, significand bit counts for products, quotients and roots), so exact
+     values such as 1 - x*x at x = 1 stay exact points.
    - elementary functions come from the C library, which is not guaranteed to be
      correctly rounded: each value is widened by GUARD relative plus TINY
      absolute, far beyond the documented error of any mainstream libm, and the
@@ -80,22 +80,60 @@ static inline double add_up(double x, double y) {
     double s = x + y, bp = s - x, e = (x - (s - bp)) + (y - bp);
     return (e > 0 || e != e) ? up(s) : s;
 }
-/* Products, quotients and square roots are moved one ulp outward unconditionally: cheaper than
-   proving exactness with an FMA residual, and rigorous for every finite result, subnormal ones
-   included (round-to-nearest is off by at most half a spacing).  Zero factors stay exact. */
-static inline double mul_dn(double x, double y) { return (x == 0 || y == 0) ? 0.0 : dn(x * y); }
-static inline double mul_up(double x, double y) { return (x == 0 || y == 0) ? 0.0 : up(x * y); }
-/* An infinite endpoint stands for "unbounded", so inf/inf may be anything of its sign. */
+/* Significant bits of a normal float64 (53 minus the trailing zeros of its significand). */
+static inline int significant_bits(double x) {
+    uint64_t u;
+    memcpy(&u, &x, sizeof u);
+    uint64_t m = (u & ((1ULL << 52) - 1)) | (1ULL << 52);
+    return 53 - __builtin_ctzll(m);
+}
+/* a normal, finite result whose operands' significands fit together in 53 bits is exact */
+static inline int normal(double p) { double a = fabs(p); return a >= 0x1p-1000 && a <= DBL_MAX; }
+
+/* Products, quotients and square roots move one ulp outward unless they are provably exact by
+   the bit count above (x*1, 1-2^-k squared, halving ...): cheaper than an FMA residual, and
+   rigorous for every finite result, subnormal ones included (round-to-nearest is off by at most
+   half a spacing). */
+static inline int exact_product(double x, double y, double p) {
+    return normal(p) && normal(x) && normal(y) && significant_bits(x) + significant_bits(y) <= 53;
+}
+static inline double mul_dn(double x, double y) {
+    if (x == 0 || y == 0) return 0.0;
+    double p = x * y;
+    return exact_product(x, y, p) ? p : dn(p);
+}
+static inline double mul_up(double x, double y) {
+    if (x == 0 || y == 0) return 0.0;
+    double p = x * y;
+    return exact_product(x, y, p) ? p : up(p);
+}
+/* An infinite endpoint stands for "unbounded", so inf/inf may be anything of its sign.  A quotient
+   by a power of two is exact in the normal range. */
 static inline double div_dn(double x, double y) {
     if (isinf(x) && isinf(y)) return (x > 0) == (y > 0) ? 0.0 : -INFINITY;
-    return x == 0 ? 0.0 : dn(x / y);
+    if (x == 0) return 0.0;
+    double q = x / y;
+    return (normal(q) && normal(x) && normal(y) && significant_bits(y) == 1) ? q : dn(q);
 }
 static inline double div_up(double x, double y) {
     if (isinf(x) && isinf(y)) return (x > 0) == (y > 0) ? INFINITY : 0.0;
-    return x == 0 ? 0.0 : up(x / y);
+    if (x == 0) return 0.0;
+    double q = x / y;
+    return (normal(q) && normal(x) && normal(y) && significant_bits(y) == 1) ? q : up(q);
 }
-static inline double sqrt_dn(double x) { return x <= 0 ? 0.0 : dn(sqrt(x)); }
-static inline double sqrt_up(double x) { return x <= 0 ? 0.0 : up(sqrt(x)); }
+static inline int exact_root(double x, double s) {
+    return normal(x) && normal(s) && 2 * significant_bits(s) <= 53 && s * s == x;
+}
+static inline double sqrt_dn(double x) {
+    if (x <= 0) return 0.0;
+    double s = sqrt(x);
+    return exact_root(x, s) ? s : dn(s);
+}
+static inline double sqrt_up(double x) {
+    if (x <= 0) return 0.0;
+    double s = sqrt(x);
+    return exact_root(x, s) ? s : up(s);
+}
 
 /* ---- interval arithmetic ----------------------------------------------------------------- */
 
