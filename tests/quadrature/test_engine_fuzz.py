@@ -41,8 +41,9 @@ FORMULAS = st.recursive(LEAVES, _combine, max_leaves=6)
 
 
 @settings(max_examples=max(60, settings().max_examples // 4))
-@given(FORMULAS, st.sampled_from([1e-4, 1e-8]), st.sampled_from([MpmathArithmetic, FlintArithmetic]))
+@given(FORMULAS, st.sampled_from([1e-4, 1e-8, 1e-12]), st.sampled_from([MpmathArithmetic, FlintArithmetic, None]))
 def test_random_formulas_are_certified_correctly_or_refused_with_a_code(formula, tolerance, backend) -> None:
+    """backend None: the default path, the compiled float64 engine first, handing over where it declines."""
     text, function = formula
     claim_flint_context()  # one thread here; released below so other tests keep the reference default
     try:
