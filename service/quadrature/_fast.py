@@ -42,7 +42,7 @@ FUNCTION_CODES = dict(_FUNCTIONS)  # for the tests of the guarded layer
 MAX_POWER = 1024
 _FOLD_PRECISION = 128
 _STOPS = {0: "tolerance_met", 1: "node_budget", 2: "deadline"}
-DECLINED = {-1: "value", -2: "depth", -3: "resolution", -4: "unresolved", -5: "memory", -6: "rounding_mode", -7: "float_range"}
+DECLINED = {-1: "value", -2: "depth", -3: "resolution", -4: "unresolved", -5: "memory", -6: "rounding_mode", -7: "float_range", -8: "stalled"}
 
 
 @dataclass(frozen=True)

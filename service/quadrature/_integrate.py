@@ -134,8 +134,8 @@ def _try_fast(formula: Formula, values: dict[str, Fraction], lower: Formula, upp
         return None
     low, high = outcome.enclosure
     bound = error_bound(low, high)[1]
-    if not math.isfinite(bound) or (outcome.stop_reason == "tolerance_met" and bound > target(low, high)):
-        return None  # float64 got close but not provably there: the precise engine decides
+    if not math.isfinite(bound) or (bound > target(low, high) and outcome.stop_reason != "deadline"):
+        return None  # float64 did not get there within the budget: the precise engine may, with more bits
     if sign < 0:
         mesh = tuple(PanelReport(r.lower, r.upper, (-r.contribution[1], -r.contribution[0]), r.bound)
                      for r in outcome.mesh)

@@ -802,18 +802,21 @@ static double target_of(double tol, double rel, double lo, double hi) {
 /* status codes shared with _fast.py */
 enum { MET = 0, NODE_BUDGET = 1, DEADLINE = 2,
        DECLINE_VALUE = -1, DECLINE_DEPTH = -2, DECLINE_RESOLUTION = -3, DECLINE_UNRESOLVED = -4,
-       DECLINE_MEMORY = -5, DECLINE_ROUNDING_MODE = -6, DECLINE_RANGE = -7 };
+       DECLINE_MEMORY = -5, DECLINE_ROUNDING_MODE = -6, DECLINE_RANGE = -7, DECLINE_STALLED = -8 };
 
-static int make_panel(refiner *r, iv p, iv q, iv fp, iv fq, int depth, Py_ssize_t *index) {
-    if (grow(r)) return DECLINE_MEMORY;
-    panel *pn = &r->panels[r->count];
+/* a new panel in slot `reuse` (a panel just split, whose slot is free) or at the end */
+static int make_panel(refiner *r, iv p, iv q, iv fp, iv fq, int depth, Py_ssize_t reuse, Py_ssize_t *index) {
+    if (reuse < 0 && grow(r)) return DECLINE_MEMORY;
+    Py_ssize_t slot = reuse < 0 ? r->count : reuse;
+    panel *pn = &r->panels[slot];
     pn->p = p; pn->q = q; pn->fp = fp; pn->fq = fq; pn->depth = depth;
     pn->m = mk(0.5 * add_dn(p.lo, q.lo), 0.5 * add_up(p.hi, q.hi));   /* halving is exact above 2^-1021 */
     if (fabs(pn->m.lo) < 0x1p-1000 || fabs(pn->m.hi) < 0x1p-1000) pn->m = mk(dn(pn->m.lo), up(pn->m.hi));
     if (node_value(r, pn->m, &pn->fm)) return DECLINE_VALUE;
     r->nodes++;
     certify(r, pn);
-    *index = r->count++;
+    *index = slot;
+    if (reuse < 0) r->count++;
     return r->overflow ? DECLINE_RANGE : 0;
 }
 
@@ -822,10 +825,13 @@ static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nod
     if (node_value(r, a, &fa) || node_value(r, b, &fb)) return DECLINE_VALUE;
     r->nodes = 2;
     Py_ssize_t first;
-    int status = make_panel(r, a, b, fa, fb, 0, &first);
+    int status = make_panel(r, a, b, fa, fb, 0, -1, &first);
     if (status) return status;
     double width_sum = 0, centre_sum = 0, rounding_sum = 0, next_check = INFINITY;
+    double width_at_checkpoint = INFINITY;
     long long unresolved = 0, steps = 0;
+    Py_ssize_t checkpoint = 64;
+    int stalls = 0;
 #define ACCOUNT(i, s) do { panel *pp = &r->panels[i]; rounding_sum += (s) * pp->rounding; \
         if (pp->resolved) { width_sum += (s) * pp->width; centre_sum += (s) * pp->centre; } else unresolved += (s); } while (0)
     heap_push(r, first);
@@ -842,6 +848,14 @@ static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nod
                 next_check = width_sum * 0.95;
             }
             if (rounding_sum > 0.25 * goal) return DECLINE_RESOLUTION;   /* float64 cannot get there */
+            if (r->heap_size >= checkpoint) {
+                /* doubling the panels must shrink the total: if twice in a row it barely moves, the
+                   float64 floor has been reached before the tolerance */
+                stalls = width_sum > 0.9 * width_at_checkpoint ? stalls + 1 : 0;
+                if (stalls >= 2) return DECLINE_STALLED;
+                width_at_checkpoint = width_sum;
+                checkpoint *= 2;
+            }
         }
         if (r->nodes + 2 > max_nodes || ((++steps & 31) == 0 && deadline > 0 && now() > deadline)) {
             if (unresolved) return DECLINE_UNRESOLVED;
@@ -856,8 +870,10 @@ static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nod
         ACCOUNT(worst, -1);
         panel parent = r->panels[worst];
         Py_ssize_t left, right;
-        if ((status = make_panel(r, parent.p, parent.m, parent.fp, parent.fm, parent.depth + 1, &left))) return status;
-        if ((status = make_panel(r, parent.m, parent.q, parent.fm, parent.fq, parent.depth + 1, &right))) return status;
+        if ((status = make_panel(r, parent.p, parent.m, parent.fp, parent.fm, parent.depth + 1, worst, &left)))
+            return status;
+        if ((status = make_panel(r, parent.m, parent.q, parent.fm, parent.fq, parent.depth + 1, -1, &right)))
+            return status;
         heap_push(r, left);
         ACCOUNT(left, 1);
         heap_push(r, right);
