@@ -1,0 +1,68 @@
+"""Coverage-guided differential fuzz target for the compiled float64 engine (atheris).
+
+    python -m service.quadrature._fuzz -max_total_time=600      # ten minutes
+
+Each input that parses as a formula in x is compiled and run by the C engine over [0, 1] (and its Taylor
+enclosures over a small interval); the arbitrary-precision engine on the reference backend does the same
+work. Both are rigorous, so their enclosures must meet; a crash, an exception other than a coded one, or two
+disjoint enclosures is a finding.
+"""
+
+from __future__ import annotations
+
+import sys
+from fractions import Fraction
+
+
+def _meet(a: tuple, b: tuple) -> bool:
+    return Fraction(a[0]) <= Fraction(b[1]) and Fraction(b[0]) <= Fraction(a[1])
+
+
+def check_one(data: bytes) -> None:
+    from ..arithmetic import MpmathArithmetic
+    from ..derivatives import Program
+    from ..errors import QuadcertError
+    from ..formula import parse
+    from . import _fast
+    from ._integrate import integrate
+
+    text = data.decode("utf-8", errors="replace")
+    try:
+        formula = parse(text)
+        compiled = _fast.compile_formula(formula, {})
+    except QuadcertError:
+        return
+    if compiled is None:
+        return
+    # Taylor enclosures over [0.25, 0.25 + 2^-10] against the reference backend at the interval's start
+    ours = _fast.taylor(compiled, 0.25, 0.25 + 2.0**-10, 4)
+    if ours is not None:
+        ar = MpmathArithmetic(113)
+        try:
+            reference = Program(formula, ar).taylor(ar.exact(Fraction(1, 4)), 4)
+        except QuadcertError:
+            reference = []
+        for k in range(min(len(ours), len(reference))):
+            if not _meet(ours[k], ar.bounds(reference[k])):
+                raise AssertionError(f"coefficient {k} of {text!r}: {ours[k]} vs {ar.bounds(reference[k])}")
+    outcome = _fast.run(compiled, (Fraction(0),) * 2, (Fraction(1),) * 2, 1e-6, None, 801, None, False)
+    if isinstance(outcome, str):
+        return
+    try:
+        precise = integrate(formula, 0, 1, 1e-6, max_nodes=801, deadline_seconds=2, arithmetic=MpmathArithmetic)
+    except QuadcertError:
+        return
+    if not _meet(outcome.enclosure, precise.enclosure):
+        raise AssertionError(f"disjoint certificates for {text!r}: {outcome.enclosure} vs {precise.enclosure}")
+
+
+def main(argv: list[str]) -> None:
+    import atheris
+
+    atheris.instrument_all()
+    atheris.Setup(argv, check_one)
+    atheris.Fuzz()
+
+
+if __name__ == "__main__":
+    main(sys.argv)
