@@ -43,6 +43,14 @@ class Formula:
     parameters: tuple[str, ...] = ()
     node_count: int = field(default=0, compare=False)
 
+    def __hash__(self) -> int:
+        """Computed once: a formula is a key of the engine's caches, and hashing walks the whole tree."""
+        cached = self.__dict__.get("_hash")
+        if cached is None:
+            cached = hash((self.root, self.variable, self.parameters))
+            object.__setattr__(self, "_hash", cached)
+        return cached
+
     @cached_property
     def text(self) -> str:
         """Canonical text, stable across spellings (for caching and echoing)."""
@@ -266,7 +274,7 @@ def parse(text: str, variable: str = "x", parameters: tuple[str, ...] | list[str
     return _parse_cached(text, variable, tuple(parameters))
 
 
-@lru_cache(maxsize=1024)  # formulas are immutable: spreadsheets and CI jobs send the same ones over and over
+@lru_cache(maxsize=256)  # formulas are immutable: spreadsheets and CI jobs send the same ones over and over
 def _parse_cached(text: str, variable: str, parameters: tuple[str, ...]) -> Formula:
     return _parse(text, variable, parameters)
 

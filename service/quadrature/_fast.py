@@ -52,7 +52,7 @@ class Compiled:
     stack: int
 
 
-@dataclass(frozen=True)
+@dataclass
 class FastOutcome:
     """A run that finished: its enclosure is rigorous whatever the stop reason."""
 
@@ -62,6 +62,7 @@ class FastOutcome:
     panels: int
     bounds_used: dict[str, int]
     mesh: tuple[PanelReport, ...]
+    value_and_bound: tuple[float, float] = (math.nan, math.inf)  # filled in by the caller, from error_bound
 
 
 class _Compiler:
@@ -153,7 +154,7 @@ def compile_formula(formula: Formula, values: Mapping[str, Fraction]) -> Compile
     return _compile_cached(formula, tuple(sorted(values.items())))
 
 
-@lru_cache(maxsize=1024)  # a compiled formula is immutable, like the parsed one it comes from
+@lru_cache(maxsize=256)  # a compiled formula is immutable, like the parsed one it comes from
 def _compile_cached(formula: Formula, items: tuple[tuple[str, Fraction], ...]) -> Compiled | None:
     values = dict(items)
     compiler = _Compiler(formula, values)

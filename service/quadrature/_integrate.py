@@ -78,8 +78,7 @@ def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: Li
         fast = _try_fast(formula, values, lower_formula, upper_formula, tolerance, relative, target, max_nodes,
                          deadline, include_mesh)
         if fast is not None:
-            low, high = fast.enclosure
-            value, bound = error_bound(low, high)
+            (low, high), (value, bound) = fast.enclosure, fast.value_and_bound
             return IntegralResult(
                 value=value, enclosure=(low, high), error_bound=bound, tolerance=tolerance,
                 tolerance_met=bound <= target(low, high), stop_reason=fast.stop_reason, nodes=fast.nodes,
@@ -133,7 +132,7 @@ def _try_fast(formula: Formula, values: dict[str, Fraction], lower: Formula, upp
     if isinstance(outcome, str):
         return None
     low, high = outcome.enclosure
-    bound = error_bound(low, high)[1]
+    value, bound = error_bound(low, high)
     if not math.isfinite(bound) or (bound > target(low, high) and outcome.stop_reason != "deadline"):
         return None  # float64 did not get there within the budget: the precise engine may, with more bits
     if sign < 0:
@@ -141,6 +140,8 @@ def _try_fast(formula: Formula, values: dict[str, Fraction], lower: Formula, upp
                      for r in outcome.mesh)
         outcome = _fast.FastOutcome((-high, -low), outcome.stop_reason, outcome.nodes, outcome.panels,
                                     outcome.bounds_used, mesh)
+        value = -value
+    outcome.value_and_bound = (value, bound)
     return outcome
 
 

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import math
 import re
+from functools import lru_cache
 from fractions import Fraction
 from typing import Any
 
@@ -41,7 +42,11 @@ def limit_text(value: LimitValue, field: str) -> str:
 
 
 def parse_limit(value: LimitValue, field: str, parameters: tuple[str, ...] = ()) -> Formula:
-    text = limit_text(value, field)
+    return _parse_limit_text(limit_text(value, field), field, tuple(parameters))
+
+
+@lru_cache(maxsize=256)  # limits repeat even more than formulas do (0, 1, pi/2 ...)
+def _parse_limit_text(text: str, field: str, parameters: tuple[str, ...]) -> Formula:
     if _PLAIN.fullmatch(text):  # the common case, read without the parser into the tree it would build
         number = Number(Fraction(text.lstrip("-")))
         return Formula(Negate(number) if text.startswith("-") else number, "_")
