@@ -165,9 +165,10 @@ static iv iv_mul(iv a, iv b) {
     if (a.hi <= 0 && b.hi <= 0) return mk(mul_dn(a.hi, b.hi), mul_up(a.lo, b.lo));
     if (a.lo >= 0 && b.hi <= 0) return mk(mul_dn(a.hi, b.lo), mul_up(a.lo, b.hi));
     if (a.hi <= 0 && b.lo >= 0) return mk(mul_dn(a.lo, b.hi), mul_up(a.hi, b.lo));
-    double l = lesser(lesser(mul_dn(a.lo, b.lo), mul_dn(a.lo, b.hi)), lesser(mul_dn(a.hi, b.lo), mul_dn(a.hi, b.hi)));
-    double h = greater(greater(mul_up(a.lo, b.lo), mul_up(a.lo, b.hi)), greater(mul_up(a.hi, b.lo), mul_up(a.hi, b.hi)));
-    return mk(l, h);
+    /* mixed signs: rounding to nearest is monotone, so the extreme rounded products bracket the extreme
+       exact ones once moved outward (finite operands: a product may overflow to inf, never NaN) */
+    double p1 = a.lo * b.lo, p2 = a.lo * b.hi, p3 = a.hi * b.lo, p4 = a.hi * b.hi;
+    return mk(dn(lesser(lesser(p1, p2), lesser(p3, p4))), up(greater(greater(p1, p2), greater(p3, p4))));
 }
 
 static iv iv_sqr(iv a) {
@@ -256,7 +257,8 @@ static iv iv_sincos(iv a, int shift) {
     if (!(fabs(a.lo) <= TRIG_LIMIT && fabs(a.hi) <= TRIG_LIMIT)) return mk(-1.0, 1.0);
     iv t = quarter_turns(a);
     if (t.hi - t.lo >= 4.0) return mk(-1.0, 1.0);
-    double y1 = shift ? cos(a.lo) : sin(a.lo), y2 = shift ? cos(a.hi) : sin(a.hi);
+    double y1 = shift ? cos(a.lo) : sin(a.lo);
+    double y2 = a.lo == a.hi ? y1 : (shift ? cos(a.hi) : sin(a.hi));
     double l = g_dn(lesser(y1, y2)), h = g_up(greater(y1, y2));
     if (a.lo == a.hi && a.lo == 0) return shift ? point(1.0) : point(0.0);
     if (has_residue(t, (1 - shift + 4) % 4)) h = 1.0;
@@ -278,7 +280,7 @@ static const double HALF_PI_UP = 0x1.921fb54442d19p+0;   /* pi/2 and pi rounded 
 static const double PI_UP = 0x1.921fb54442d19p+1;
 
 static inline iv increasing(real_fn f, iv a, double floor_, double ceil_) {
-    double l = f(a.lo), h = f(a.hi);   /* NaN stays NaN and fails the validity check */
+    double l = f(a.lo), h = a.lo == a.hi ? l : f(a.hi);   /* NaN stays NaN and fails the validity check */
     return mk(greater(g_dn(l), floor_), lesser(g_up(h), ceil_));
 }
 
