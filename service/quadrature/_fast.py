@@ -168,11 +168,44 @@ def _compile_cached(formula: Formula, items: tuple[tuple[str, Fraction], ...]) -
     return Compiled(array("i", compiler.code).tobytes(), tuple(compiler.constants), max(1, compiler.most))
 
 
+# (function, argument) pairs the C library must get right for the compiled engine to be trusted on this
+# machine: ordinary arguments, arguments next to zeros, poles and extrema, and large ones
+_SELF_TEST = [(name, x) for name, points in {
+    "exp": (-700.5, -1.0, -1e-9, 0.5, 1.0, 3.7, 88.7, 690.25), "log": (1e-300, 0.1, 1.0000001, 2.0, 1e300),
+    "log10": (1e-300, 0.3, 1.0000001, 1000.0, 1e300), "sin": (1e-8, 1.0, 3.141592653589793, 22.0, 1e5, 1e9),
+    "cos": (1e-8, 1.5707963267948966, 3.0, 355.0, 1e5, 1e9), "tan": (0.5, 1.5707963267948, -1.4, 11.0),
+    "asin": (-0.99999, 0.001, 0.5, 1.0), "acos": (-1.0, 0.001, 0.7, 0.99999999),
+    "atan": (-1e10, -1.0, 1e-9, 2.5, 1e300), "sinh": (-690.0, -1e-9, 0.7, 30.0),
+    "cosh": (-690.0, 1e-9, 0.7, 30.0), "tanh": (-20.0, -1e-9, 0.3, 5.0), "erf": (-6.0, -1e-9, 0.4, 1.5, 5.0),
+}.items() for x in points]
+
+
+@lru_cache(maxsize=None)
+def trusted() -> bool:
+    """Whether this machine's C library passes the guarded layer's checks (once per process).
+
+    Each enclosure must contain mpmath's value at 100 bits, in a private context (no global precision is
+    touched); a library that fails is not used, and every request goes to the arbitrary-precision engine.
+    """
+    if _native is None:
+        return False
+    import mpmath
+
+    ref = mpmath.MPContext()
+    ref.prec = 100
+    for name, x in _SELF_TEST:
+        enclosure = _native.enclose(_FUNCTIONS[name], x, x)
+        value = getattr(ref, name)(ref.mpf(x))
+        if enclosure is None or not ref.mpf(enclosure[0]) <= value <= ref.mpf(enclosure[1]):
+            return False
+    return True
+
+
 def run(compiled: Compiled, a: tuple[Fraction, Fraction], b: tuple[Fraction, Fraction], tolerance: float,
         relative: float | None, max_nodes: int, deadline: float | None, want_mesh: bool
         ) -> FastOutcome | str:
     """Refine on [a, b] (exact enclosures of the limits, a < b); a FastOutcome, or why it declined."""
-    if _native is None:
+    if not trusted():
         return "unavailable"
     seconds = 0.0
     if deadline is not None:

@@ -303,3 +303,33 @@ def test_malformed_programs_are_rejected_not_run() -> None:
     with pytest.raises(ValueError):  # a constant index out of range
         _native.integrate((1).to_bytes(4, "little") + (5).to_bytes(4, "little"), [], 4, 0.0, 0.0, 1.0, 1.0,
                           1e-8, 0.0, 0.0, 1001, False)
+
+
+def test_this_machines_c_library_passes_the_self_test() -> None:
+    """Reference: mpmath at 100 bits at the self-test's arguments (service/quadrature/_fast.py)."""
+    _fast.trusted.cache_clear()
+    assert _fast.trusted()
+
+
+def test_a_library_that_fails_the_self_test_is_not_used(monkeypatch) -> None:
+    """A C library that misrounds sends every request to the arbitrary-precision engine."""
+    real = _fast._native
+
+    class Misrounding:
+        def __getattr__(self, name):
+            return getattr(real, name)
+
+        @staticmethod
+        def enclose(op, low, high):
+            lo, hi = real.enclose(op, low, high)
+            return (hi, hi + 1.0) if op == _fast.FUNCTION_CODES["exp"] else (lo, hi)  # exp rounded up wrongly
+
+    monkeypatch.setattr(_fast, "_native", Misrounding())
+    _fast.trusted.cache_clear()
+    try:
+        assert not _fast.trusted()
+        assert integrate("exp(x)", 0, 1, 1e-8).precision_bits > 53
+    finally:
+        monkeypatch.undo()
+        _fast.trusted.cache_clear()
+    assert integrate("exp(x)", 0, 1, 1e-8).precision_bits == 53
