@@ -35,14 +35,14 @@ AVAILABLE = _native is not None
 
 _OPS = {"x": 0, "const": 1, "neg": 2, "+": 3, "-": 4, "*": 5, "/": 6, "sqr": 7, "powi": 8, "^": 9,
         "min": 10, "max": 11}
-_FUNCTIONS = {name: 20 + i for i, name in enumerate(
+FUNCTION_CODES = {name: 20 + i for i, name in enumerate(
     ["sqrt", "exp", "log", "log10", "sin", "cos", "tan", "asin", "acos", "atan", "sinh", "cosh", "tanh", "erf",
      "abs"])}
-FUNCTION_CODES = dict(_FUNCTIONS)  # for the tests of the guarded layer
 MAX_POWER = 1024
 _FOLD_PRECISION = 128
 _STOPS = {0: "tolerance_met", 1: "node_budget", 2: "deadline"}
-DECLINED = {-1: "value", -2: "depth", -3: "resolution", -4: "unresolved", -5: "memory", -6: "rounding_mode", -7: "float_range", -8: "stalled"}
+DECLINED = {-1: "value", -2: "depth", -3: "resolution", -4: "unresolved", -5: "memory", -6: "rounding_mode",
+            -7: "float_range", -8: "stalled"}  # why the C engine handed a request over
 
 
 @dataclass(frozen=True)
@@ -73,6 +73,7 @@ class _Compiler:
         self.code: list[int] = []
         self.constants: list[tuple[float, float]] = []
         self.depth = self.most = 0
+        self.dependent: dict[int, bool] = {}  # id(node) -> does it involve the variable (computed once per node)
 
     def emit(self, op: str | int, arg: int = 0, effect: int = 0) -> None:
         self.code += [op if isinstance(op, int) else _OPS[op], arg]
@@ -88,8 +89,25 @@ class _Compiler:
         self.constants.append((fraction_down(low), fraction_up(high)))
         self.emit("const", len(self.constants) - 1, +1)
 
+    def depends(self, node: Node) -> bool:
+        known = self.dependent.get(id(node))
+        if known is None:
+            if isinstance(node, Variable):
+                known = True
+            elif isinstance(node, (Number, Constant, Parameter)):
+                known = False
+            elif isinstance(node, Negate):
+                known = self.depends(node.operand)
+            elif isinstance(node, Call):
+                known = any([self.depends(a) for a in node.args])
+            else:
+                assert isinstance(node, Binary)
+                known = self.depends(node.left) | self.depends(node.right)
+            self.dependent[id(node)] = known
+        return known
+
     def node(self, node: Node) -> None:
-        if not _depends(node):
+        if not self.depends(node):
             self.constant(node)
         elif isinstance(node, Variable):
             self.emit("x", 0, +1)
@@ -103,13 +121,13 @@ class _Compiler:
                     self.node(arg)
                     self.emit(node.function, 0, -1)
             else:
-                self.emit(_FUNCTIONS[node.function])
+                self.emit(FUNCTION_CODES[node.function])
         else:
             assert isinstance(node, Binary)
             self.binary(node)
 
     def binary(self, node: Binary) -> None:
-        if node.op == "^" and not _depends(node.right):
+        if node.op == "^" and not self.depends(node.right):
             exponent = self.exact_integer(node.right)
             if exponent is not None and abs(exponent) <= MAX_POWER:
                 self.node(node.left)
@@ -134,19 +152,6 @@ class _Compiler:
             return -inner.numerator if inner.denominator == 1 else None
         program = Program(Formula(node, self.formula.variable, self.formula.parameters), self.ar, self.values)
         return self.ar.is_exact_integer(program.value(self.ar.zero))
-
-
-def _depends(node: Node) -> bool:
-    if isinstance(node, Variable):
-        return True
-    if isinstance(node, (Number, Constant, Parameter)):
-        return False
-    if isinstance(node, Negate):
-        return _depends(node.operand)
-    if isinstance(node, Call):
-        return any(_depends(a) for a in node.args)
-    assert isinstance(node, Binary)
-    return _depends(node.left) or _depends(node.right)
 
 
 def compile_formula(formula: Formula, values: Mapping[str, Fraction]) -> Compiled | None:
@@ -194,7 +199,7 @@ def trusted() -> bool:
     ref = mpmath.MPContext()
     ref.prec = 100
     for name, x in _SELF_TEST:
-        enclosure = _native.enclose(_FUNCTIONS[name], x, x)
+        enclosure = _native.enclose(FUNCTION_CODES[name], x, x)
         value = getattr(ref, name)(ref.mpf(x))
         if enclosure is None or not ref.mpf(enclosure[0]) <= value <= ref.mpf(enclosure[1]):
             return False
@@ -237,7 +242,7 @@ def taylor(compiled: Compiled, low: float, high: float, order: int) -> list[tupl
 def enclose_function(name: str, low: float, high: float) -> tuple[float, float] | None:
     """The guarded layer's enclosure of one function over [low, high] (None: outside its domain)."""
     assert _native is not None
-    return _native.enclose(_FUNCTIONS[name], low, high)
+    return _native.enclose(FUNCTION_CODES[name], low, high)
 
 
 def operate(op: str, a: tuple[float, float], b: tuple[float, float] = (0.0, 0.0), n: int = 0

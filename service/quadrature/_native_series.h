@@ -1,0 +1,354 @@
+/* Taylor-mode automatic differentiation on float64 intervals: the recurrences of
+   derivatives/_series.py, and the stack machine that runs a compiled formula.  Included once, by
+   _native.c. */
+
+#ifndef QUADCERT_NATIVE_SERIES_H
+#define QUADCERT_NATIVE_SERIES_H
+
+#include "_native_interval.h"
+
+/* ---- Taylor series over an interval (the recurrences of derivatives/_series.py) ---------- */
+
+static const double WHOLE[TERMS] = {0, 1, 2, 3, 4};
+/* 1/k enclosed: 1/3 is not a float */
+static iv inverse(int k) {
+    switch (k) {
+    case 1: return point(1.0);
+    case 2: return point(0.5);
+    case 4: return point(0.25);
+    default: return mk(div_dn(1.0, (double)k), div_up(1.0, (double)k));
+    }
+}
+
+static void s_const(series *s, iv c, int len) {
+    s->len = len;
+    s->c[0] = c;
+    for (int k = 1; k < TERMS; k++) s->c[k] = point(0.0);
+}
+
+static iv dot(const iv *a, const iv *b, int k) {
+    iv total = iv_mul(a[0], b[k]);
+    for (int j = 1; j <= k; j++) total = iv_add(total, iv_mul(a[j], b[k - j]));
+    return total;
+}
+
+static void s_mul(series *out, const series *a, const series *b) {
+    int n = a->len < b->len ? a->len : b->len;
+    series r;
+    r.len = n;
+    for (int k = 0; k < n; k++) r.c[k] = dot(a->c, b->c, k);
+    *out = r;
+}
+
+static void s_square(series *out, const series *a) {
+    series r;
+    r.len = a->len;
+    r.c[0] = iv_sqr(a->c[0]);
+    for (int k = 1; k < a->len; k++) {
+        iv total = point(0.0);
+        for (int j = 0; j < (k + 1) / 2; j++) total = iv_add(total, iv_mul(a->c[j], a->c[k - j]));
+        total = iv_scale(total, 2.0);
+        if (k % 2 == 0) total = iv_add(total, iv_sqr(a->c[k / 2]));
+        r.c[k] = total;
+    }
+    *out = r;
+}
+
+static void s_div(machine *m, series *out, const series *a, const series *b) {
+    int n = a->len < b->len ? a->len : b->len;
+    series r;
+    r.len = n;
+    r.c[0] = iv_div(m, a->c[0], b->c[0]);
+    for (int k = 1; k < n; k++) {
+        iv acc = a->c[k];
+        for (int j = 1; j <= k; j++) acc = iv_sub(acc, iv_mul(b->c[j], r.c[k - j]));
+        r.c[k] = iv_div(m, acc, b->c[0]);
+    }
+    *out = r;
+}
+
+/* f(u) with f' = g(f): f_k = (1/k) sum_{j=1..k} j u_j g_{k-j}; kind 0: g = f (exp),
+   kind 1: g = 1 + f^2 (tan), kind -1: g = 1 - f^2 (tanh) */
+static void s_driven(series *out, const series *u, iv value, int kind) {
+    series r;
+    iv g[TERMS];
+    r.len = u->len;
+    r.c[0] = value;
+    for (int k = 1; k < u->len; k++) {
+        int mm = k - 1;
+        if (kind == 0) {
+            g[mm] = r.c[mm];
+        } else {
+            iv sq = dot(r.c, r.c, mm);
+            if (mm == 0) g[mm] = kind > 0 ? iv_add(point(1.0), sq) : iv_sub(point(1.0), sq);
+            else g[mm] = kind > 0 ? sq : iv_neg(sq);
+        }
+        iv acc = iv_mul(u->c[1], g[k - 1]);
+        for (int j = 2; j <= k; j++) acc = iv_add(acc, iv_scale(iv_mul(u->c[j], g[k - j]), WHOLE[j]));
+        r.c[k] = iv_mul(acc, inverse(k));
+    }
+    *out = r;
+}
+
+/* sin/cos (sign -1) or sinh/cosh (sign +1) together */
+static void s_pair(series *s, series *c, const series *u, iv s0, iv c0, int sign) {
+    s->len = c->len = u->len;
+    s->c[0] = s0;
+    c->c[0] = c0;
+    for (int k = 1; k < u->len; k++) {
+        iv as = point(0.0), ac = point(0.0);
+        for (int j = 1; j <= k; j++) {
+            as = iv_add(as, iv_scale(iv_mul(u->c[j], c->c[k - j]), WHOLE[j]));
+            ac = iv_add(ac, iv_scale(iv_mul(u->c[j], s->c[k - j]), WHOLE[j]));
+        }
+        s->c[k] = iv_mul(as, inverse(k));
+        c->c[k] = iv_mul(sign > 0 ? ac : iv_neg(ac), inverse(k));
+    }
+}
+
+/* the series with value `value` whose derivative series is d (length len - 1) */
+static void s_integrate(series *out, iv value, const series *d, int len) {
+    series r;
+    r.len = len;
+    r.c[0] = value;
+    for (int k = 1; k < len; k++) r.c[k] = iv_mul(d->c[k - 1], inverse(k));
+    *out = r;
+}
+
+static void s_derivative(series *out, const series *a) {
+    series r;
+    r.len = a->len - 1;
+    for (int k = 1; k < a->len; k++) r.c[k - 1] = iv_scale(a->c[k], WHOLE[k]);
+    *out = r;
+}
+
+static void s_truncate(series *out, const series *a, int len) {
+    *out = *a;
+    out->len = len;
+}
+
+static void s_sqrt(machine *m, series *out, const series *u) {
+    iv s0 = function_value(m, OP_SQRT, u->c[0]);
+    series r;
+    r.c[0] = s0;
+    if (u->len == 1 || iv_sign(s0) <= 0) { r.len = 1; *out = r; return; }
+    iv twice = iv_scale(s0, 2.0);
+    r.len = u->len;
+    for (int k = 1; k < u->len; k++) {
+        iv acc = u->c[k];
+        for (int j = 1; j < k; j++) acc = iv_sub(acc, iv_mul(r.c[j], r.c[k - j]));
+        r.c[k] = iv_div(m, acc, twice);
+    }
+    *out = r;
+}
+
+/* log, log10 (scale = ln 10) and atan: value plus the integral of u'/denominator */
+static void s_log(machine *m, series *out, const series *u, int op, const iv *ln10) {
+    iv value = function_value(m, op, u->c[0]);
+    if (u->len == 1) { s_const(out, value, 1); return; }
+    series du, base, q;
+    s_derivative(&du, u);
+    s_truncate(&base, u, u->len - 1);
+    if (op == OP_LOG10) for (int k = 0; k < base.len; k++) base.c[k] = iv_mul(base.c[k], *ln10);
+    s_div(m, &q, &du, &base);
+    s_integrate(out, value, &q, u->len);
+}
+
+static void s_atan(machine *m, series *out, const series *u) {
+    iv value = function_value(m, OP_ATAN, u->c[0]);
+    if (u->len == 1) { s_const(out, value, 1); return; }
+    series du, base, den, q;
+    s_derivative(&du, u);
+    s_truncate(&base, u, u->len - 1);
+    s_square(&den, &base);
+    den.c[0] = iv_add(den.c[0], point(1.0));
+    s_div(m, &q, &du, &den);
+    s_integrate(out, value, &q, u->len);
+}
+
+static void s_asin(machine *m, series *out, const series *u, int op) {
+    iv value = function_value(m, op, u->c[0]);
+    if (u->len == 1) { s_const(out, value, 1); return; }
+    series du, base, sq, root, q;
+    s_derivative(&du, u);
+    s_truncate(&base, u, u->len - 1);
+    s_square(&sq, &base);
+    for (int k = 0; k < sq.len; k++) sq.c[k] = iv_neg(sq.c[k]);
+    sq.c[0] = iv_add(sq.c[0], point(1.0));
+    s_sqrt(m, &root, &sq);
+    if (root.len < u->len - 1) { s_const(out, value, 1); return; }
+    s_div(m, &q, &du, &root);
+    if (op == OP_ACOS) for (int k = 0; k < q.len; k++) q.c[k] = iv_neg(q.c[k]);
+    s_integrate(out, value, &q, u->len);
+}
+
+static void s_erf(machine *m, series *out, const series *u, const iv *two_over_root_pi) {
+    iv value = function_value(m, OP_ERF, u->c[0]);
+    if (u->len == 1) { s_const(out, value, 1); return; }
+    series du, base, sq, gauss, slope;
+    s_derivative(&du, u);
+    s_truncate(&base, u, u->len - 1);
+    s_square(&sq, &base);
+    for (int k = 0; k < sq.len; k++) sq.c[k] = iv_neg(sq.c[k]);
+    s_driven(&gauss, &sq, function_value(m, OP_EXP, sq.c[0]), 0);
+    s_mul(&slope, &gauss, &du);
+    for (int k = 0; k < slope.len; k++) slope.c[k] = iv_mul(slope.c[k], *two_over_root_pi);
+    s_integrate(out, value, &slope, u->len);
+}
+
+/* value plus an almost-everywhere slope enclosure, for kinks of abs, min and max */
+static void s_lipschitz(series *out, iv value, const iv *slopes, int count, int len) {
+    out->c[0] = value;
+    if (len == 1 || count == 0) { out->len = 1; return; }
+    iv slope = slopes[0];
+    for (int i = 1; i < count; i++) slope = iv_hull(slope, slopes[i]);
+    out->c[1] = slope;
+    out->len = 2;
+}
+
+static void s_abs(series *out, const series *u) {
+    int side = iv_sign(u->c[0]);
+    if (side > 0) { *out = *u; return; }
+    if (side < 0) {
+        *out = *u;
+        for (int k = 0; k < u->len; k++) out->c[k] = iv_neg(u->c[k]);
+        return;
+    }
+    iv slopes[2];
+    int count = 0;
+    if (u->len > 1) { slopes[0] = u->c[1]; slopes[1] = iv_neg(u->c[1]); count = 2; }
+    s_lipschitz(out, iv_abs(u->c[0]), slopes, count, u->len < 2 ? u->len : 2);
+}
+
+static void s_extremum(series *out, const series *a, const series *b, int largest) {
+    iv gap = iv_sub(b->c[0], a->c[0]);
+    int side = iv_sign(gap);
+    if (side != 0) { *out = ((side > 0) == largest) ? *b : *a; return; }
+    int len = a->len < b->len ? a->len : b->len;
+    if (len > 2) len = 2;
+    iv value = largest ? mk(greater(a->c[0].lo, b->c[0].lo), greater(a->c[0].hi, b->c[0].hi))
+                       : mk(lesser(a->c[0].lo, b->c[0].lo), lesser(a->c[0].hi, b->c[0].hi));
+    iv slopes[2];
+    int count = 0;
+    if (len > 1) { slopes[0] = a->c[1]; slopes[1] = b->c[1]; count = 2; }
+    s_lipschitz(out, value, slopes, count, len);
+}
+
+static void s_pow_int(machine *m, series *out, const series *u, int n) {
+    int negative = n < 0;
+    if (negative) n = -n;
+    series result, base = *u;
+    if (n == 0) { s_const(out, point(1.0), u->len); return; }
+    int have = 0, k = n;
+    while (k) {
+        if (k & 1) {
+            if (have) s_mul(&result, &result, &base);
+            else { result = base; have = 1; }
+        }
+        k >>= 1;
+        if (k) s_square(&base, &base);
+    }
+    iv tight = iv_pow_int(m, u->c[0], n);
+    result.c[0] = mk(greater(result.c[0].lo, tight.lo), lesser(result.c[0].hi, tight.hi));
+    if (negative) {
+        series one;
+        s_const(&one, point(1.0), result.len);
+        s_div(m, out, &one, &result);
+    } else {
+        *out = result;
+    }
+}
+
+/* u^v: exp(v log u) for u > 0; with u reaching 0 only the value, for v > 0 */
+static void s_pow_real(machine *m, series *out, const series *u, const series *v) {
+    if (iv_sign(u->c[0]) > 0) {
+        series lg, prod;
+        s_log(m, &lg, u, OP_LOG, NULL);
+        s_mul(&prod, v, &lg);
+        s_driven(out, &prod, function_value(m, OP_EXP, prod.c[0]), 0);
+        return;
+    }
+    iv a = u->c[0], b = v->c[0];
+    if (a.lo < 0 || b.lo <= 0) { m->fault = 1; s_const(out, point(0), 1); return; }
+    /* x^y is increasing in x for y > 0 and monotone in y for fixed x: the range sits at corners */
+    double l = INFINITY, h = -INFINITY;
+    double xs[2] = {a.lo, a.hi}, ys[2] = {b.lo, b.hi};
+    for (int i = 0; i < 2; i++) {
+        for (int j = 0; j < 2; j++) {
+            iv corner;
+            if (xs[i] == 0) corner = point(0.0);
+            else corner = function_value(m, OP_EXP, iv_mul(point(ys[j]), function_value(m, OP_LOG, point(xs[i]))));
+            l = lesser(l, corner.lo);
+            h = greater(h, corner.hi);
+        }
+    }
+    s_const(out, mk(l, h), 1);
+}
+
+/* run the program on x = [X, 1, 0, ...] of length order + 1; returns 0 or sets m->fault */
+static int evaluate(machine *m, iv x, int order, series *result, const iv *ln10, const iv *two_over_root_pi) {
+    int top = 0;
+    series *st = m->stack;
+    m->fault = 0;
+    for (Py_ssize_t i = 0; i < m->ops; i++) {
+        int op = m->code[2 * i], arg = m->code[2 * i + 1];
+        series *a = top >= 1 ? &st[top - 1] : NULL, *b = top >= 2 ? &st[top - 2] : NULL;
+        switch (op) {
+        case OP_X:
+            st[top].len = order + 1;
+            st[top].c[0] = x;
+            for (int k = 1; k < TERMS; k++) st[top].c[k] = point(k == 1 ? 1.0 : 0.0);
+            top++;
+            break;
+        case OP_CONST: s_const(&st[top++], m->consts[arg], order + 1); break;
+        case OP_NEG: for (int k = 0; k < a->len; k++) a->c[k] = iv_neg(a->c[k]); break;
+        case OP_ADD:
+        case OP_SUB: {   /* b op a, b is below */
+            int n = a->len < b->len ? a->len : b->len;
+            for (int k = 0; k < n; k++) b->c[k] = op == OP_ADD ? iv_add(b->c[k], a->c[k]) : iv_sub(b->c[k], a->c[k]);
+            b->len = n;
+            top--;
+            break;
+        }
+        case OP_MUL: s_mul(b, b, a); top--; break;
+        case OP_DIV: s_div(m, b, b, a); top--; break;
+        case OP_SQR: s_square(a, a); break;
+        case OP_POWI: s_pow_int(m, a, a, arg); break;
+        case OP_POWR: s_pow_real(m, b, b, a); top--; break;
+        case OP_MIN:
+        case OP_MAX: s_extremum(b, b, a, op == OP_MAX); top--; break;
+        case OP_SQRT: s_sqrt(m, a, a); break;
+        case OP_EXP: s_driven(a, a, function_value(m, OP_EXP, a->c[0]), 0); break;
+        case OP_TAN: s_driven(a, a, function_value(m, OP_TAN, a->c[0]), 1); break;
+        case OP_TANH: s_driven(a, a, function_value(m, OP_TANH, a->c[0]), -1); break;
+        case OP_LOG:
+        case OP_LOG10: s_log(m, a, a, op, ln10); break;
+        case OP_ATAN: s_atan(m, a, a); break;
+        case OP_ASIN:
+        case OP_ACOS: s_asin(m, a, a, op); break;
+        case OP_ERF: s_erf(m, a, a, two_over_root_pi); break;
+        case OP_ABS: s_abs(a, a); break;
+        case OP_SIN:
+        case OP_COS:
+        case OP_SINH:
+        case OP_COSH: {
+            series s, c;
+            int hyperbolic = op == OP_SINH || op == OP_COSH;
+            iv s0 = function_value(m, hyperbolic ? OP_SINH : OP_SIN, a->c[0]);
+            iv c0 = function_value(m, hyperbolic ? OP_COSH : OP_COS, a->c[0]);
+            s_pair(&s, &c, a, s0, c0, hyperbolic ? 1 : -1);
+            *a = (op == OP_SIN || op == OP_SINH) ? s : c;
+            break;
+        }
+        default: m->fault = 1; return -1;
+        }
+        if (m->fault) return -1;
+        series *t = &st[top - 1];
+        for (int k = 0; k < t->len; k++) if (!valid_iv(t->c[k])) { m->fault = 1; return -1; }
+    }
+    if (top != 1) { m->fault = 1; return -1; }
+    *result = st[0];
+    return 0;
+}
+
+#endif
