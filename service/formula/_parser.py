@@ -51,6 +51,10 @@ class Formula:
             object.__setattr__(self, "_hash", cached)
         return cached
 
+    def __getstate__(self) -> dict:
+        """Pickle without the cached hash: string hashes differ between processes."""
+        return {k: v for k, v in self.__dict__.items() if k != "_hash"}
+
     @cached_property
     def text(self) -> str:
         """Canonical text, stable across spellings (for caching and echoing)."""

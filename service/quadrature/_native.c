@@ -71,15 +71,18 @@ static void certify(refiner *r, panel *pn) {
     int best_order = 0;
     iv candidates[4];
     int orders[4], n = 0;
+    iv powers[TERMS + 1];   /* width^k, built once by repeated products (which enclose the powers) */
+    powers[1] = width;
+    for (int k = 2; k <= TERMS; k++) powers[k] = iv_mul(powers[k - 1], width);
     if (s.len == TERMS) {
-        iv w5 = iv_pow_int(r->vm, width, 5);
+        iv w5 = powers[5];
         candidates[n] = iv_add(simpson, iv_mul(iv_mul(w5, r->c_signed), s.c[4]));
         orders[n++] = 4;
     }
     for (int k = 3; k >= 1; k--) {
         if (s.len > k) {
             iv size = iv_abs(s.c[k]);
-            iv radius = iv_mul(iv_mul(iv_pow_int(r->vm, width, k + 1), r->c_abs[k]), size);
+            iv radius = iv_mul(iv_mul(powers[k + 1], r->c_abs[k]), size);
             candidates[n] = iv_add(simpson, mk(-radius.hi, radius.hi));
             orders[n++] = k;
         }

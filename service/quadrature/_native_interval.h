@@ -162,9 +162,15 @@ static iv iv_sqr(iv a) {
 
 static iv iv_div(machine *m, iv a, iv b) {
     if (b.lo <= 0 && b.hi >= 0) { m->fault = 1; return point(0); }
-    double l = lesser(lesser(div_dn(a.lo, b.lo), div_dn(a.lo, b.hi)), lesser(div_dn(a.hi, b.lo), div_dn(a.hi, b.hi)));
-    double h = greater(greater(div_up(a.lo, b.lo), div_up(a.lo, b.hi)), greater(div_up(a.hi, b.lo), div_up(a.hi, b.hi)));
-    return mk(l, h);
+    /* the extremes of a/b sit at known corners once the signs are known: two divisions, not eight */
+    if (b.lo > 0) {
+        if (a.lo >= 0) return mk(div_dn(a.lo, b.hi), div_up(a.hi, b.lo));
+        if (a.hi <= 0) return mk(div_dn(a.lo, b.lo), div_up(a.hi, b.hi));
+        return mk(div_dn(a.lo, b.lo), div_up(a.hi, b.lo));
+    }
+    if (a.lo >= 0) return mk(div_dn(a.hi, b.hi), div_up(a.lo, b.lo));
+    if (a.hi <= 0) return mk(div_dn(a.hi, b.lo), div_up(a.lo, b.hi));
+    return mk(div_dn(a.hi, b.hi), div_up(a.lo, b.hi));
 }
 
 static inline iv iv_scale(iv a, double k) { return iv_mul(a, point(k)); }   /* k a float, exact */

@@ -332,6 +332,10 @@ static int evaluate(machine *m, iv x, int order, series *result, const iv *ln10,
         case OP_COS:
         case OP_SINH:
         case OP_COSH: {
+            if (a->len == 1) {   /* a value only (nodes): the partner function is not needed */
+                s_const(a, function_value(m, op, a->c[0]), 1);
+                break;
+            }
             series s, c;
             int hyperbolic = op == OP_SINH || op == OP_COSH;
             iv s0 = function_value(m, hyperbolic ? OP_SINH : OP_SIN, a->c[0]);
