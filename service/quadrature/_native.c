@@ -173,6 +173,26 @@ static int make_panel(refiner *r, iv p, iv q, iv fp, iv fq, int depth, Py_ssize_
     return r->overflow ? DECLINE_RANGE : 0;
 }
 
+/* The sum of the live panels' enclosures.  Adding N intervals with outward rounding at every step would
+   cost N ulps of the total (the float64 floor of a long mesh); instead each end is summed with TwoSum,
+   whose rounding errors are exact and are enclosed separately, so the total is
+   [s_lo + E_lo, s_hi + E_hi] with one outward rounding at the end. */
+static iv sum_of_panels(const refiner *r) {
+    double s[2] = {0.0, 0.0};
+    iv errors[2] = {{0.0, 0.0}, {0.0, 0.0}};
+    for (Py_ssize_t i = 0; i < r->heap_size; i++) {
+        const iv *e = &r->panels[r->heap[i]].enclosure;
+        double x[2] = {e->lo, e->hi};
+        for (int k = 0; k < 2; k++) {
+            double t = s[k] + x[k], bp = t - s[k];
+            double err = (s[k] - (t - bp)) + (x[k] - bp);   /* exact: s + x = t + err */
+            s[k] = t;
+            errors[k] = iv_add(errors[k], point(err));
+        }
+    }
+    return mk(add_dn(s[0], errors[0].lo), add_up(s[1], errors[1].hi));
+}
+
 static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nodes, double deadline, iv *total_out) {
     iv fa, fb;
     if (node_value(r, a, &fa) || node_value(r, b, &fb)) return DECLINE_VALUE;
@@ -194,17 +214,19 @@ static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nod
             double half = width_sum / 2;
             double goal = target_of(tol, rel, centre_sum - half, centre_sum + half);
             if (half <= goal * 1.01 && width_sum < next_check) {
-                iv total = point(0.0);
-                for (Py_ssize_t i = 0; i < r->heap_size; i++) total = iv_add(total, r->panels[r->heap[i]].enclosure);
+                iv total = sum_of_panels(r);
                 double bound = up(0.5 * iv_width(total));
                 if (bound <= target_of(tol, rel, total.lo, total.hi) * (1 - 1e-9)) { *total_out = total; return MET; }
                 next_check = width_sum * 0.95;
             }
             if (rounding_sum > 0.25 * goal) return DECLINE_RESOLUTION;   /* float64 cannot get there */
             if (r->heap_size >= checkpoint) {
-                /* doubling the panels must shrink the total: if twice in a row it barely moves, the
-                   float64 floor has been reached before the tolerance */
-                stalls = width_sum > 0.9 * width_at_checkpoint ? stalls + 1 : 0;
+                /* doubling the panels must shrink the total: if twice in a row it barely moves while
+                   rounding is already a visible share of it, the float64 floor has been reached before
+                   the tolerance (far from the floor, wide panels of an oscillating integrand can keep
+                   the total flat for a while, and that is no reason to give up) */
+                int near_floor = width_sum < 64 * rounding_sum;
+                stalls = (near_floor && width_sum > 0.9 * width_at_checkpoint) ? stalls + 1 : 0;
                 if (stalls >= 2) return DECLINE_STALLED;
                 width_at_checkpoint = width_sum;
                 checkpoint *= 2;
@@ -212,9 +234,7 @@ static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nod
         }
         if (r->nodes + 2 > max_nodes || ((++steps & 31) == 0 && deadline > 0 && now() > deadline)) {
             if (unresolved) return DECLINE_UNRESOLVED;
-            iv total = point(0.0);
-            for (Py_ssize_t i = 0; i < r->heap_size; i++) total = iv_add(total, r->panels[r->heap[i]].enclosure);
-            *total_out = total;
+            *total_out = sum_of_panels(r);
             return r->nodes + 2 > max_nodes ? NODE_BUDGET : DEADLINE;
         }
         Py_ssize_t worst = r->heap[0];

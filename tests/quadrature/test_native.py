@@ -333,3 +333,11 @@ def test_a_library_that_fails_the_self_test_is_not_used(monkeypatch) -> None:
         monkeypatch.undo()
         _fast.trusted.cache_clear()
     assert integrate("exp(x)", 0, 1, 1e-8).precision_bits == 53
+
+
+def test_deadline_returns_the_rigorous_enclosure_so_far() -> None:
+    """Reference: ∫₀³⁰ sin(50x)² dx = 15 − sin(3000)/200 (from memory of sin² = (1 − cos 2x)/2)."""
+    result = integrate("sin(50*x)^2", 0, 30, 1e-11, max_nodes=2_000_001, deadline_seconds=0.02)
+    assert result.stop_reason == "deadline" and not result.tolerance_met
+    exact = 15 - HP.sin(3000) / 200
+    assert HP.mpf(result.enclosure[0]) <= exact <= HP.mpf(result.enclosure[1])
