@@ -341,3 +341,12 @@ def test_deadline_returns_the_rigorous_enclosure_so_far() -> None:
     assert result.stop_reason == "deadline" and not result.tolerance_met
     exact = 15 - HP.sin(3000) / 200
     assert HP.mpf(result.enclosure[0]) <= exact <= HP.mpf(result.enclosure[1])
+
+
+def test_long_oscillating_mesh_stays_in_float64() -> None:
+    """~280,000 nodes: an outward rounding per addition would cost more than the tolerance, and the
+    early, flat phase of refinement is not a stall. Reference: 15 − sin(3000)/200 (from memory)."""
+    result = integrate("sin(50*x)^2", 0, 30, 1e-11, max_nodes=2_000_001)
+    assert result.precision_bits == 53 and result.tolerance_met
+    exact = 15 - HP.sin(3000) / 200
+    assert HP.mpf(result.enclosure[0]) <= exact <= HP.mpf(result.enclosure[1])
