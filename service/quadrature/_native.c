@@ -296,6 +296,41 @@ static int read_iv(PyObject *seq, Py_ssize_t i, iv *out) {
     return 0;
 }
 
+/* A checked machine for a program from Python: its constants read, its stack allocated, its code
+   validated.  Returns 0, or -1 with a Python exception set; release_machine frees it either way. */
+static int load_machine(machine *vm, const Py_buffer *code, PyObject *consts_obj, int stack_size) {
+    memset(vm, 0, sizeof *vm);
+    if (code->len % 8 != 0 || stack_size < 1 || stack_size > 1024) {
+        PyErr_SetString(PyExc_ValueError, "malformed program");
+        return -1;
+    }
+    PyObject *seq = PySequence_Fast(consts_obj, "constants must be a sequence");
+    if (!seq) return -1;
+    Py_ssize_t nconst = PySequence_Fast_GET_SIZE(seq);
+    iv *consts = PyMem_Malloc((size_t)(nconst + 1) * sizeof(iv));
+    vm->stack = PyMem_Malloc((size_t)stack_size * sizeof(series));
+    vm->consts = consts;
+    int status = 0;
+    if (!consts || !vm->stack) {
+        PyErr_NoMemory();
+        status = -1;
+    }
+    for (Py_ssize_t i = 0; status == 0 && i < nconst; i++) status = read_iv(seq, i, &consts[i]);
+    Py_DECREF(seq);
+    if (status) return -1;
+    vm->code = (const int32_t *)code->buf;
+    vm->ops = code->len / 8;
+    vm->stack_size = stack_size;
+    return check_program(vm, nconst);
+}
+
+static void release_machine(machine *vm) {
+    PyMem_Free((void *)vm->consts);
+    PyMem_Free(vm->stack);
+    vm->consts = NULL;
+    vm->stack = NULL;
+}
+
 static PyObject *native_integrate(PyObject *self, PyObject *args) {
     (void)self;
     Py_buffer code;
@@ -306,30 +341,11 @@ static PyObject *native_integrate(PyObject *self, PyObject *args) {
     if (!PyArg_ParseTuple(args, "y*OidddddddLp:integrate", &code, &consts_obj, &stack_size, &a_lo, &a_hi, &b_lo,
                           &b_hi, &tol, &rel, &seconds, &max_nodes, &want_mesh))
         return NULL;
-    PyObject *result = NULL, *consts_seq = NULL;
-    iv *consts = NULL;
-    series *stack = NULL;
+    PyObject *result = NULL;
     refiner r;
     memset(&r, 0, sizeof r);
     machine vm;
-    memset(&vm, 0, sizeof vm);
-    if (code.len % 8 != 0 || stack_size < 1 || stack_size > 1024) {
-        PyErr_SetString(PyExc_ValueError, "malformed program");
-        goto done;
-    }
-    consts_seq = PySequence_Fast(consts_obj, "constants must be a sequence");
-    if (!consts_seq) goto done;
-    Py_ssize_t nconst = PySequence_Fast_GET_SIZE(consts_seq);
-    consts = PyMem_Malloc((size_t)(nconst + 1) * sizeof(iv));
-    stack = PyMem_Malloc((size_t)stack_size * sizeof(series));
-    if (!consts || !stack) { PyErr_NoMemory(); goto done; }
-    for (Py_ssize_t i = 0; i < nconst; i++) if (read_iv(consts_seq, i, &consts[i])) goto done;
-    vm.code = (const int32_t *)code.buf;
-    vm.ops = code.len / 8;
-    vm.consts = consts;
-    vm.stack_size = stack_size;
-    vm.stack = stack;
-    if (check_program(&vm, nconst)) goto done;
+    if (load_machine(&vm, &code, consts_obj, stack_size)) goto done;
     int status;
     iv total = point(0.0);
     double started = now();
@@ -370,9 +386,7 @@ static PyObject *native_integrate(PyObject *self, PyObject *args) {
                            counts[1], counts[2], counts[3], counts[4], mesh);
 done:
     PyBuffer_Release(&code);
-    Py_XDECREF(consts_seq);
-    PyMem_Free(consts);
-    PyMem_Free(stack);
+    release_machine(&vm);
     free(r.panels);
     free(r.heap);
     return result;
@@ -382,36 +396,28 @@ done:
 static PyObject *native_taylor(PyObject *self, PyObject *args) {
     (void)self;
     Py_buffer code;
-    PyObject *consts_obj, *result = NULL, *consts_seq = NULL;
+    PyObject *consts_obj, *result = NULL;
     int stack_size, order;
     double lo, hi;
     if (!PyArg_ParseTuple(args, "y*Oiddi:taylor", &code, &consts_obj, &stack_size, &lo, &hi, &order)) return NULL;
-    iv *consts = NULL;
-    series *stack = NULL;
-    if (order < 0 || order > ORDER || stack_size < 1 || stack_size > 1024 || code.len % 8 || !(lo <= hi)) {
-        PyErr_SetString(PyExc_ValueError, "bad arguments");
+    machine vm;
+    if (load_machine(&vm, &code, consts_obj, stack_size)) goto done;
+    if (order < 0 || order > ORDER || !(lo <= hi)) {
+        PyErr_SetString(PyExc_ValueError, "bad order or interval");
         goto done;
     }
-    consts_seq = PySequence_Fast(consts_obj, "constants must be a sequence");
-    if (!consts_seq) goto done;
-    Py_ssize_t nconst = PySequence_Fast_GET_SIZE(consts_seq);
-    consts = PyMem_Malloc((size_t)(nconst + 1) * sizeof(iv));
-    stack = PyMem_Malloc((size_t)stack_size * sizeof(series));
-    if (!consts || !stack) { PyErr_NoMemory(); goto done; }
-    for (Py_ssize_t i = 0; i < nconst; i++) if (read_iv(consts_seq, i, &consts[i])) goto done;
-    machine vm = {(const int32_t *)code.buf, code.len / 8, consts, stack_size, stack, 0};
-    if (check_program(&vm, nconst)) goto done;
     iv ln10 = LN10, two = TWO_OVER_ROOT_PI;
     series s;
     if (evaluate(&vm, mk(lo, hi), order, &s, &ln10, &two)) { result = Py_None; Py_INCREF(result); goto done; }
     result = PyList_New(s.len);
-    if (!result) goto done;
-    for (int k = 0; k < s.len; k++) PyList_SET_ITEM(result, k, Py_BuildValue("(dd)", s.c[k].lo, s.c[k].hi));
+    for (int k = 0; result && k < s.len; k++) {
+        PyObject *pair = Py_BuildValue("(dd)", s.c[k].lo, s.c[k].hi);
+        if (!pair) { Py_CLEAR(result); break; }
+        PyList_SET_ITEM(result, k, pair);
+    }
 done:
     PyBuffer_Release(&code);
-    Py_XDECREF(consts_seq);
-    PyMem_Free(consts);
-    PyMem_Free(stack);
+    release_machine(&vm);
     return result;
 }
 
