@@ -52,7 +52,7 @@ class Compiled:
     stack: int
 
 
-@dataclass
+@dataclass(frozen=True)
 class FastOutcome:
     """A run that finished: its enclosure is rigorous whatever the stop reason."""
 
@@ -62,7 +62,6 @@ class FastOutcome:
     panels: int
     bounds_used: dict[str, int]
     mesh: tuple[PanelReport, ...]
-    value_and_bound: tuple[float, float] = (math.nan, math.inf)  # filled in by the caller, from error_bound
 
 
 class _Compiler:

@@ -78,7 +78,8 @@ def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: Li
         fast = _try_fast(formula, values, lower_formula, upper_formula, tolerance, relative, target, max_nodes,
                          deadline, include_mesh)
         if fast is not None:
-            (low, high), (value, bound) = fast.enclosure, fast.value_and_bound
+            fast, value, bound = fast
+            low, high = fast.enclosure
             return IntegralResult(
                 value=value, enclosure=(low, high), error_bound=bound, tolerance=tolerance,
                 tolerance_met=bound <= target(low, high), stop_reason=fast.stop_reason, nodes=fast.nodes,
@@ -114,7 +115,7 @@ def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: Li
 
 def _try_fast(formula: Formula, values: dict[str, Fraction], lower: Formula, upper: Formula, tolerance: float,
               relative: float | None, target: Callable[[float, float], float], max_nodes: int,
-              deadline: float | None, include_mesh: bool) -> _fast.FastOutcome | None:
+              deadline: float | None, include_mesh: bool) -> tuple[_fast.FastOutcome, float, float] | None:
     """The compiled float64 engine's answer when it is a usable one; None hands over to the precise engine."""
     if lower.text == upper.text:
         return None
@@ -131,18 +132,17 @@ def _try_fast(formula: Formula, values: dict[str, Fraction], lower: Formula, upp
     outcome = _fast.run(compiled, a, b, tolerance, relative, max_nodes, deadline, include_mesh)
     if isinstance(outcome, str):
         return None
+    if sign < 0:
+        mesh = tuple(PanelReport(r.lower, r.upper, (-r.contribution[1], -r.contribution[0]), r.bound)
+                     for r in outcome.mesh)
+        low, high = outcome.enclosure
+        outcome = _fast.FastOutcome((-high, -low), outcome.stop_reason, outcome.nodes, outcome.panels,
+                                    outcome.bounds_used, mesh)
     low, high = outcome.enclosure
     value, bound = error_bound(low, high)
     if not math.isfinite(bound) or (bound > target(low, high) and outcome.stop_reason != "deadline"):
         return None  # float64 did not get there within the budget: the precise engine may, with more bits
-    if sign < 0:
-        mesh = tuple(PanelReport(r.lower, r.upper, (-r.contribution[1], -r.contribution[0]), r.bound)
-                     for r in outcome.mesh)
-        outcome = _fast.FastOutcome((-high, -low), outcome.stop_reason, outcome.nodes, outcome.panels,
-                                    outcome.bounds_used, mesh)
-        value = -value
-    outcome.value_and_bound = (value, bound)
-    return outcome
+    return outcome, value, bound
 
 
 def _exact_bounds(limit: Formula, values: dict[str, Fraction], field: str) -> tuple[Fraction, Fraction]:
