@@ -3,9 +3,6 @@
 from __future__ import annotations
 
 import math
-from fractions import Fraction
-
-from ..arithmetic import fraction_up
 
 
 def difference_up(x: float, y: float) -> float:
@@ -14,8 +11,8 @@ def difference_up(x: float, y: float) -> float:
     if not math.isfinite(s):
         return s
     bp = s - x
-    error = (x - (s - bp)) + (-y - bp)
-    return math.nextafter(s, math.inf) if error > 0 else s
+    error = (x - (s - bp)) + (-y - bp)  # exact, subnormal results included; NaN only next to overflow
+    return s if error <= 0 else math.nextafter(s, math.inf)
 
 
 def error_bound(low: float, high: float) -> tuple[float, float]:
@@ -24,8 +21,4 @@ def error_bound(low: float, high: float) -> tuple[float, float]:
         return math.nan, math.inf
     value = low / 2 + high / 2
     value = min(max(value, low), high)
-    bound = max(difference_up(value, low), difference_up(high, value))
-    if bound < 1e-290:  # TwoSum's error term may underflow: fall back to exact rationals
-        exact = Fraction(value)
-        bound = fraction_up(max(exact - Fraction(low), Fraction(high) - exact))
-    return value, bound
+    return value, max(difference_up(value, low), difference_up(high, value))
