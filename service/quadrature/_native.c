@@ -455,7 +455,7 @@ static PyObject *native_operate(PyObject *self, PyObject *args) {
     case 4: r = iv_sqr(a); break;
     case 5:
         if (n < 1 || n > 1024) { PyErr_SetString(PyExc_ValueError, "power out of range"); return NULL; }
-        r = iv_pow_int(&vm, a, n);
+        r = iv_pow_int(a, n);
         break;
     default: PyErr_SetString(PyExc_ValueError, "unknown operation"); return NULL;
     }

@@ -194,14 +194,13 @@ static double pos_pow(double x, int n, int upward) {
     return result;
 }
 
-static iv iv_pow_int(machine *m, iv a, int n) {   /* n >= 1 */
+static iv iv_pow_int(iv a, int n) {   /* n >= 1 */
     if (n % 2 == 1) {
         double l = a.lo >= 0 ? pos_pow(a.lo, n, 0) : -pos_pow(-a.lo, n, 1);
         double h = a.hi >= 0 ? pos_pow(a.hi, n, 1) : -pos_pow(-a.hi, n, 0);
         return mk(l, h);
     }
     iv b = iv_abs(a);
-    (void)m;
     return mk(pos_pow(b.lo, n, 0), pos_pow(b.hi, n, 1));
 }
 

@@ -166,14 +166,21 @@ static void s_atan(machine *m, series *out, const series *u) {
     s_integrate(out, value, &q, u->len);
 }
 
+/* u' and -(u without its last term)^2: the shared start of asin/acos (1 - u^2 under a root) and
+   erf (exp of -u^2) */
+static void s_slope_and_minus_square(series *du, series *minus_sq, const series *u) {
+    series base;
+    s_derivative(du, u);
+    s_truncate(&base, u, u->len - 1);
+    s_square(minus_sq, &base);
+    for (int k = 0; k < minus_sq->len; k++) minus_sq->c[k] = iv_neg(minus_sq->c[k]);
+}
+
 static void s_asin(machine *m, series *out, const series *u, int op) {
     iv value = function_value(m, op, u->c[0]);
     if (u->len == 1) { s_const(out, value, 1); return; }
-    series du, base, sq, root, q;
-    s_derivative(&du, u);
-    s_truncate(&base, u, u->len - 1);
-    s_square(&sq, &base);
-    for (int k = 0; k < sq.len; k++) sq.c[k] = iv_neg(sq.c[k]);
+    series du, sq, root, q;
+    s_slope_and_minus_square(&du, &sq, u);
     sq.c[0] = iv_add(sq.c[0], point(1.0));
     s_sqrt(m, &root, &sq);
     if (root.len < u->len - 1) { s_const(out, value, 1); return; }
@@ -185,11 +192,8 @@ static void s_asin(machine *m, series *out, const series *u, int op) {
 static void s_erf(machine *m, series *out, const series *u, const iv *two_over_root_pi) {
     iv value = function_value(m, OP_ERF, u->c[0]);
     if (u->len == 1) { s_const(out, value, 1); return; }
-    series du, base, sq, gauss, slope;
-    s_derivative(&du, u);
-    s_truncate(&base, u, u->len - 1);
-    s_square(&sq, &base);
-    for (int k = 0; k < sq.len; k++) sq.c[k] = iv_neg(sq.c[k]);
+    series du, sq, gauss, slope;
+    s_slope_and_minus_square(&du, &sq, u);
     s_driven(&gauss, &sq, function_value(m, OP_EXP, sq.c[0]), 0);
     s_mul(&slope, &gauss, &du);
     for (int k = 0; k < slope.len; k++) slope.c[k] = iv_mul(slope.c[k], *two_over_root_pi);
@@ -248,7 +252,7 @@ static void s_pow_int(machine *m, series *out, const series *u, int n) {
         k >>= 1;
         if (k) s_square(&base, &base);
     }
-    iv tight = iv_pow_int(m, u->c[0], n);
+    iv tight = iv_pow_int(u->c[0], n);
     result.c[0] = mk(greater(result.c[0].lo, tight.lo), lesser(result.c[0].hi, tight.hi));
     if (negative) {
         series one;
