@@ -19,6 +19,7 @@ from typing import Any, Callable
 import flint
 
 from ..errors import DomainViolation, InvalidInput, MagnitudeExceeded, Unbounded
+from ._interval import binary_directed
 
 arb = flint.arb
 _owner: int | None = None
@@ -52,22 +53,17 @@ def _exact_fraction(point: arb) -> Fraction:
     return Fraction(man) * Fraction(2) ** exp
 
 
-def _float_down(point: arb) -> float:
-    """The largest float <= an exact arb point, compared exactly in arb (fast: no Fractions)."""
-    value = float(point)
-    if value == math.inf:
-        return math.nextafter(math.inf, 0)
-    if value == -math.inf:
-        return -math.inf
-    if arb(value) > point:
-        value = math.nextafter(value, -math.inf)
-    return value
+def _point_directed(point: arb, up: bool) -> float:
+    """The float next to an exact arb point in one direction, from its exact mantissa and exponent."""
+    man, exp = point.mid().man_exp()
+    man = int(man)
+    return binary_directed(man < 0, abs(man), int(exp), up)
 
 
 def _bounds(x: arb) -> tuple[float, float]:
     if not x.is_finite():
         return -math.inf, math.inf
-    return _float_down(x.lower()), -_float_down(-x.upper())
+    return _point_directed(x.lower(), up=False), _point_directed(x.upper(), up=True)
 
 
 def _log2_magnitude(x: arb) -> int:

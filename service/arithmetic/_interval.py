@@ -37,12 +37,80 @@ class Interval(NamedTuple):
         return libmp.mpf_le(self.lo, value) and libmp.mpf_le(value, self.hi)
 
     def floats(self) -> tuple[float, float]:
-        """Endpoints as float64, rounded outward, so the pair still encloses."""
-        return libmp.to_float(self.lo, rnd=libmp.round_floor), libmp.to_float(self.hi, rnd=libmp.round_ceiling)
+        """Endpoints as float64, rounded outward, so the pair still encloses.
+
+        libmp's own ``to_float`` ignores the rounding direction below the normal range (5e-435 becomes 0.0
+        both ways), so the conversion is done here from the exact mantissa and exponent.
+        """
+        return raw_down(self.lo), raw_up(self.hi)
 
     def __repr__(self) -> str:
         lo, hi = (libmp.to_str(v, 20) for v in self)
         return f"Interval[{lo}, {hi}]"
+
+
+_MIN_EXPONENT = -1074   # the weight of the last bit of the smallest subnormal float64
+_MAX_TOP = 1024          # every finite float64 is below 2**1024
+
+
+def binary_directed(negative: bool, mantissa: int, exponent: int, up: bool) -> float:
+    """The float64 next to ±mantissa·2**exponent in one direction (up: towards +inf), exactly.
+
+    Works in every range: a magnitude below the smallest subnormal goes to 0 or to ±5e-324, one above the
+    largest float to ±max or ±inf, and zero comes back as +0.0 (never -0.0, which would print as a bound of
+    its own). Only exact integer arithmetic is used; the final ``ldexp`` is exact because the rounded
+    significand has at most 53 bits and its last bit weighs at least 2**-1074.
+
+    >>> binary_directed(False, 5, -1450, up=False), binary_directed(False, 5, -1450, up=True)
+    (0.0, 5e-324)
+    >>> binary_directed(True, 1, 1100, up=True), binary_directed(True, 1, 1100, up=False)
+    (-1.7976931348623157e+308, -inf)
+    """
+    if mantissa == 0:
+        return 0.0
+    away = up != negative  # does this direction move the magnitude away from zero?
+    top = exponent + mantissa.bit_length()
+    if top > _MAX_TOP:
+        magnitude = math.inf if away else sys.float_info.max
+    else:
+        last = max(top - 53, _MIN_EXPONENT)  # weight of the last significand bit the result can have
+        if exponent >= last:
+            significand = mantissa << (exponent - last)
+        else:
+            shift = last - exponent
+            significand = mantissa >> shift
+            if away and (significand << shift) != mantissa:
+                significand += 1
+        try:
+            magnitude = math.ldexp(significand, last)
+        except OverflowError:  # rounded up to 2**1024
+            magnitude = math.inf
+    if magnitude == 0.0:
+        return 0.0
+    return -magnitude if negative else magnitude
+
+
+def raw_down(value: Raw) -> float:
+    """The largest float64 <= an mpmath raw float."""
+    return _raw_directed(value, up=False)
+
+
+def raw_up(value: Raw) -> float:
+    """The smallest float64 >= an mpmath raw float."""
+    return _raw_directed(value, up=True)
+
+
+def _raw_directed(value: Raw, up: bool) -> float:
+    sign, mantissa, exponent, _ = value
+    if mantissa == 0:
+        if value == libmp.fzero:
+            return 0.0
+        if value == libmp.finf:
+            return math.inf
+        if value == libmp.fninf:
+            return -math.inf
+        raise ArithmeticError("NaN reached a bound: a kernel is wrong")
+    return binary_directed(bool(sign), int(mantissa), int(exponent), up)
 
 
 def to_fraction(value: Raw) -> Fraction:
@@ -69,4 +137,5 @@ def fraction_up(value: Fraction) -> float:
     """The smallest float64 >= value (+inf above the float range)."""
     if value.denominator == 1 and -_EXACT_INTEGER <= value.numerator <= _EXACT_INTEGER:
         return float(value.numerator)
-    return -fraction_down(-value)
+    result = -fraction_down(-value)
+    return result if result != 0.0 else 0.0  # never -0.0

@@ -127,3 +127,19 @@ def test_deepest_accepted_formulas_evaluate_without_recursion_trouble(integrand)
     terms = integrand.count("x")
     result = integrate(integrand, 0, 1, 1e-6, max_nodes=201)
     assert result.error_bound >= 0 and terms > 100
+
+
+@pytest.mark.parametrize("integrand, a, b, exact, source", [
+    ("exp(x)*exp(-2*x)", 1000, 1010, HP.exp(-1000) - HP.exp(-1010), "closed form e^-1000 - e^-1010, about 5.08e-435"),
+    ("x*1e-700*1e390", 0, 1, HP.mpf("5e-311"), "closed form 1e-310/2, a subnormal that is not a float64"),
+    ("exp(-x)", 745, 746, HP.exp(-745) - HP.exp(-746), "closed form e^-745 - e^-746, at the subnormal edge"),
+    ("1e-320*x^2", 0, 3, HP.mpf("9e-320"), "closed form 9e-320, subnormal"),
+])
+@pytest.mark.parametrize("backend", [None, MpmathArithmetic])
+def test_results_below_the_float_range_are_enclosed(integrand, a, b, exact, source, backend) -> None:
+    """Regression: the reference backend once rounded sub-float-range enclosures to nearest ([0, 0], bound 0)."""
+    result = integrate(integrand, a, b, 1e-8, arithmetic=backend)
+    assert encloses(result.enclosure, exact), (source, result.enclosure)
+    assert result.error_bound > 0, source
+    low, high = result.enclosure
+    assert math.copysign(1, low) > 0 or low < 0, "a zero bound prints as 0, never -0"
