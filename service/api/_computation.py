@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import logging
 import time
+from decimal import Decimal
 from fractions import Fraction
 from typing import Any
 
@@ -34,6 +35,13 @@ def _fraction_text(value: Fraction) -> str:
     return f"{value.numerator}/{value.denominator}"
 
 
+def _exact_text(value: Any) -> Any:
+    """Decimals (JSON numbers as typed) keyed by their exact value, so 1e-8 and 0.00000001 share an entry."""
+    if isinstance(value, Decimal) and value.is_finite():
+        return _fraction_text(Fraction(value)) if abs(value.adjusted()) <= 1000 else str(value)
+    return str(value) if isinstance(value, Decimal) else value
+
+
 class Computation:
     def __init__(self, settings: Settings, pool: WorkerPool, cache: ResultCache, metrics: Metrics) -> None:
         self.settings = settings
@@ -50,8 +58,8 @@ class Computation:
         upper = parse_limit(body["upper_limit"], "upper_limit", tuple(values))
         return {"integrand": formula.text, "variable": formula.variable, "lower": lower.text, "upper": upper.text,
                 "parameters": {k: _fraction_text(v) for k, v in sorted(values.items())},
-                **{k: body.get(k) for k in ("tolerance", "relative_tolerance", "max_nodes", "include_mesh",
-                                             "claimed_value") if k in body}}
+                **{k: _exact_text(body.get(k)) for k in ("tolerance", "relative_tolerance", "max_nodes",
+                                                         "include_mesh", "claimed_value") if k in body}}
 
     def _engine_request(self, kind: str, body: dict[str, Any], deadline: float) -> dict[str, Any]:
         request = {k: v for k, v in body.items() if v is not None}
@@ -95,7 +103,7 @@ class Computation:
         (status, result), key = await self._run("integral", body, deadline, wait, context)
         if status != 200 or result.get("cached"):
             return (_status(status, result), result), key
-        response = _integral_response(result, body.get("variable", "x"))
+        response = _integral_response(result, body)
         if key is not None and result["stop_reason"] != "deadline":
             self.cache.put(key, response)
         return (200, {**response, "cached": False}), key
@@ -104,9 +112,9 @@ class Computation:
         (status, result), key = await self._run("check", body, self.settings.request_deadline_seconds, 0.0, context)
         if status != 200 or result.get("cached"):
             return _status(status, result), result
-        integral = _integral_response(result["integral"], body.get("variable", "x"))
+        integral = _integral_response(result["integral"], body)
         response = {
-            "verdict": result["verdict"], "claimed_value": result["claimed_value"], "tolerance": result["tolerance"],
+            "verdict": result["verdict"], "claimed_value": body["claimed_value"], "tolerance": body["tolerance"],
             "distance": list(result["distance"]), "enclosure": integral["enclosure"],
             "integral": {**integral, "cached": False}, "engine_version": ENGINE_VERSION,
         }
@@ -138,13 +146,14 @@ def _status(status: int, body: dict[str, Any]) -> int:
     return body["status"] if status == 0 else status
 
 
-def _integral_response(result: dict[str, Any], variable: str) -> dict[str, Any]:
+def _integral_response(result: dict[str, Any], body: dict[str, Any]) -> dict[str, Any]:
+    """The HTTP shape of an engine result; typed numbers (tolerance) are echoed exactly as the request had them."""
     mesh = result.get("mesh")
     return {
         "value": result["value"], "enclosure": list(result["enclosure"]), "error_bound": result["error_bound"],
-        "tolerance": result["tolerance"], "tolerance_met": result["tolerance_met"],
+        "tolerance": body.get("tolerance", result["tolerance"]), "tolerance_met": result["tolerance_met"],
         "stop_reason": result["stop_reason"], "nodes": result["nodes"], "panels": result["panels"],
-        "integrand": result["integrand"], "variable": variable, "lower_limit": result["lower_limit"],
+        "integrand": result["integrand"], "variable": body.get("variable", "x"), "lower_limit": result["lower_limit"],
         "upper_limit": result["upper_limit"], "precision_bits": result["precision_bits"],
         "compute_seconds": result["compute_seconds"], "engine_version": ENGINE_VERSION,
         "bounds_used": result["bounds_used"],

@@ -6,6 +6,8 @@ from typing import Any
 
 from fastapi.responses import JSONResponse
 
+from ._exact_json import ExactJSONResponse
+
 from .. import __version__
 
 PROBLEM_MEDIA_TYPE = "application/problem+json"
@@ -64,7 +66,7 @@ def problem_body(code: str, detail: str, *, kind: str | None = None, instance: s
 def problem_response(body: dict[str, Any], retry_after: int | None = None) -> JSONResponse:
     headers = {"Retry-After": str(retry_after)} if retry_after is not None and body["status"] == 503 else {}
     headers["X-Quadcert-Version"] = __version__
-    return JSONResponse(body, status_code=body["status"], media_type=PROBLEM_MEDIA_TYPE, headers=headers)
+    return ExactJSONResponse(body, status_code=body["status"], media_type=PROBLEM_MEDIA_TYPE, headers=headers)
 
 
 def from_engine_error(error: dict[str, Any], **context: Any) -> dict[str, Any]:

@@ -2,13 +2,24 @@
 
 from __future__ import annotations
 
-from typing import Annotated, Literal
+from decimal import Decimal
+from typing import Annotated, Any, Literal
 
+from pydantic import BaseModel, ConfigDict, Field, PlainValidator, StrictBool, StrictInt, StrictStr, WithJsonSchema
 from pydantic import conlist
 
-from pydantic import BaseModel, ConfigDict, Field, StrictBool, StrictFloat, StrictInt, StrictStr
 
-Number = StrictFloat | StrictInt
+def _json_number(value: Any) -> Decimal | int:
+    """A JSON number as read by the exact reader (Decimal or int); Python floats as the decimal they print as."""
+    if isinstance(value, float):
+        value = Decimal(repr(value))
+    if isinstance(value, bool) or not isinstance(value, (Decimal, int)):
+        raise ValueError("must be a JSON number")
+    return value  # NaN and infinities pass here, so that the engine refuses them with the field's own code
+
+
+#: a JSON number, kept as the exact decimal it spells
+Number = Annotated[Decimal | int, PlainValidator(_json_number), WithJsonSchema({"type": "number"})]
 Limit = Annotated[Number | Annotated[StrictStr, Field(max_length=512)],
                   Field(description="A number, or text: an exact decimal such as \"0.1\" or a constant "
                                     "expression such as \"pi/2\". JSON numbers are read as the decimal they spell.")]
@@ -28,7 +39,8 @@ class IntegralRequest(_Strict):
     variable: Annotated[StrictStr, Field(max_length=64)] = "x"
     lower_limit: Limit
     upper_limit: Limit
-    tolerance: Annotated[Number, Field(description="Absolute tolerance on |exact − value|, > 0")] = 1e-8
+    tolerance: Annotated[Number, Field(description="Absolute tolerance on |exact − value|, > 0; read as the exact "
+                                               "decimal it spells", json_schema_extra={"default": 1e-8})] = Decimal("1e-8")
     relative_tolerance: Number | None = Field(None, description="Also accept error <= this × |integral|")
     parameters: dict[Annotated[str, Field(max_length=64)], Number | Annotated[StrictStr, Field(max_length=80)]] = \
         Field(default_factory=dict, max_length=32)
@@ -45,7 +57,7 @@ class PlanRequest(_Strict):
     variable: Annotated[StrictStr, Field(max_length=64)] = "x"
     lower_limit: Limit
     upper_limit: Limit
-    tolerance: Number = 1e-8
+    tolerance: Annotated[Number, Field(json_schema_extra={"default": 1e-8})] = Decimal("1e-8")
     parameters: dict[Annotated[str, Field(max_length=64)], Number | Annotated[StrictStr, Field(max_length=80)]] = \
         Field(default_factory=dict, max_length=32)
 

@@ -21,20 +21,21 @@ class CheckResult:
     ``undecided``: the budget or deadline ran out before either could be proven."""
 
     verdict: str
-    claimed_value: float
-    tolerance: float
+    claimed_value: Any                # the caller's number, unchanged (a JSON number arrives as its exact Decimal)
+    tolerance: float                  # applied: the largest float64 not above the tolerance given
     distance: tuple[float, float]   # certified lower and upper bounds of |claimed − exact|
     integral: IntegralResult
 
 
-def distance_bounds(claimed: float, low: float, high: float) -> tuple[float, float]:
+def distance_bounds(claimed: Fraction, low: float, high: float) -> tuple[float, float]:
     c, lo, hi = Fraction(claimed), Fraction(low), Fraction(high)
     far = max(abs(c - lo), abs(c - hi))
     near = Fraction(0) if lo <= c <= hi else min(abs(c - lo), abs(c - hi))
     return max(fraction_down(near), 0.0), fraction_up(far)
 
 
-def check(integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: float, tolerance: float, *,
+def check(integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: _inputs.NumberLike,
+          tolerance: _inputs.NumberLike, *,
           deadline_seconds: float | None = None, **options: Any) -> CheckResult:
     """Decide a claim, refining the enclosure only as far as the decision needs.
 
@@ -42,12 +43,11 @@ def check(integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: flo
     'pass'
     >>> check("x^2", 0, 3, claimed_value=9.01, tolerance=1e-6).verdict
     'fail'
+    >>> check("x^2", 0, 3, claimed_value="9.00000000000000015", tolerance="1e-16").verdict
+    'fail'
     """
-    if isinstance(claimed_value, bool) or not isinstance(claimed_value, (int, float)) \
-            or not math.isfinite(claimed_value):
-        raise InvalidInput("claimed_value must be a finite number", code="invalid_claim", field="claimed_value")
+    claimed = _inputs.exact_number(claimed_value, "claimed_value", code="invalid_claim")
     tolerance = _inputs.check_tolerance(tolerance)  # type: ignore[assignment]
-    claimed = float(claimed_value)
     started = time.monotonic()
     engine_tolerance = max(tolerance / 4, _inputs.MIN_TOLERANCE)
     while True:
@@ -56,9 +56,9 @@ def check(integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: flo
                            **options)
         near, far = distance_bounds(claimed, *result.enclosure)
         if far <= tolerance:
-            return CheckResult("pass", claimed, tolerance, (near, far), result)
+            return CheckResult("pass", claimed_value, tolerance, (near, far), result)
         if near > tolerance:
-            return CheckResult("fail", claimed, tolerance, (near, far), result)
+            return CheckResult("fail", claimed_value, tolerance, (near, far), result)
         engine_tolerance /= 64
         if result.stop_reason != "tolerance_met" or engine_tolerance < _inputs.MIN_TOLERANCE:
-            return CheckResult("undecided", claimed, tolerance, (near, far), result)
+            return CheckResult("undecided", claimed_value, tolerance, (near, far), result)

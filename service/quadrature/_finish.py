@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+from decimal import ROUND_CEILING, ROUND_FLOOR, ROUND_HALF_EVEN, Context, Decimal
 
 
 def difference_up(x: float, y: float) -> float:
@@ -22,3 +23,77 @@ def error_bound(low: float, high: float) -> tuple[float, float]:
     value = low / 2 + high / 2
     value = min(max(value, low), high)
     return value, max(difference_up(value, low), difference_up(high, value))
+
+
+_DOWN = Context(prec=17, rounding=ROUND_FLOOR)
+_UP = Context(prec=17, rounding=ROUND_CEILING)
+
+
+def shown(value: float, digits: int, direction: str) -> str:
+    """``value`` printed with at most ``digits`` significant digits, rounded in ``direction`` ("down", "up" or
+    "near"), so that a printed bound never says less than the certified one. Zero prints as ``0`` whatever its
+    sign. Uses private decimal contexts: the process-wide one is never touched.
+
+    >>> shown(0.30000000000000004, 6, "down"), shown(0.30000000000000004, 6, "up"), shown(-0.0, 6, "up")
+    ('0.3', '0.300001', '0')
+    >>> shown(9.11497544109352e-11, 3, "up"), shown(5e-324, 3, "up"), shown(float("inf"), 3, "up")
+    ('9.12e-11', '4.95e-324', 'inf')
+    """
+    if value == 0:
+        return "0"
+    if not math.isfinite(value):
+        return "nan" if math.isnan(value) else ("inf" if value > 0 else "-inf")
+    exact = Decimal(value)  # exact: every float is a finite decimal
+    if direction == "near":
+        rounded = Context(prec=digits, rounding=ROUND_HALF_EVEN).create_decimal(exact)
+    else:
+        context = (_DOWN if direction == "down" else _UP).copy()
+        context.prec = digits
+        rounded = context.create_decimal(exact)
+    text = f"{rounded.normalize(Context(prec=digits)):g}"
+    return text if "e" not in text else text.replace("e+", "e")
+
+
+def shown_enclosure(low: float, high: float, digits: int = 17) -> tuple[str, str]:
+    """An enclosure printed outward: low rounded down, high rounded up."""
+    return shown(low, digits, "down"), shown(high, digits, "up")
+
+
+def bound_decimal(value: float, up: bool) -> Decimal | float:
+    """The shortest decimal on the safe side of a float bound that still reads back as that same float.
+
+    A plain ``repr`` may print a decimal on the wrong side (the float nearest 0.1 is above one tenth, yet
+    prints as ``0.1``); a reader who takes the printed decimal at its word would then hold a bound the engine
+    never certified. This one is on the safe side as a decimal and is the same float to a float64 reader.
+    Infinite bounds stay floats.
+
+    >>> bound_decimal(0.1, up=False), bound_decimal(0.1, up=True)
+    (Decimal('0.1'), Decimal('0.10000000000000001'))
+    >>> bound_decimal(-0.0, up=True), bound_decimal(5e-324, up=False)
+    (Decimal('0'), Decimal('4E-324'))
+    """
+    if value == 0:
+        return Decimal(0)
+    if not math.isfinite(value):
+        return value
+    exact = Decimal(value)
+    context = (_UP if up else _DOWN).copy()
+    for digits in range(len(repr(abs(value)).split("e")[0].replace(".", "").strip("0")), 18):
+        context.prec = digits
+        candidate = context.create_decimal(exact)
+        if float(candidate) == value:
+            return candidate
+    return context.create_decimal(exact)  # 17 digits always read back (unreachable in practice)
+
+
+def bound_text(value: float, up: bool) -> str:
+    """:func:`bound_decimal` as text, with a lower-case exponent.
+
+    >>> bound_text(0.30000000000000004, up=True), bound_text(1e300, up=False), bound_text(-0.0, up=False)
+    ('0.30000000000000005', '1e300', '0')
+    """
+    rounded = bound_decimal(value, up)
+    if isinstance(rounded, float):
+        return "inf" if rounded > 0 else "-inf"
+    text = f"{rounded:g}"
+    return text.replace("e+", "e")

@@ -3,34 +3,104 @@
 from __future__ import annotations
 
 import math
+import re
+from decimal import Decimal
 from fractions import Fraction
 from typing import Mapping
 
+from ..arithmetic import fraction_down
 from ..errors import InvalidInput
+from ..formula._limits import MAX_LITERAL_DIGITS, MAX_LITERAL_EXPONENT
 
 MIN_TOLERANCE = 1e-60
 MAX_TOLERANCE = 1e300
 DEFAULT_MAX_NODES = 200_001
 MAX_NODES_LIMIT = 2_000_001
 MAX_PARAMETERS = 32
+_MIN_TOLERANCE_EXACT = Fraction(1, 10 ** 60)
+_MAX_TOLERANCE_EXACT = Fraction(10) ** 300
+_MAGNITUDE_LIMIT = Fraction(10) ** MAX_LITERAL_EXPONENT
+_DECIMAL = re.compile(r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?")
+_RATIO = re.compile(r"([+-]?\d{1,80})\s*/\s*(\d{1,80})")
+
+#: what a caller may pass for a number: JSON numbers arrive as Decimal (their exact text), Python floats are
+#: read as the shortest decimal that round-trips them, text as the decimal or ratio it spells
+NumberLike = int | float | Decimal | Fraction | str
 
 
-def check_tolerance(value: float, field: str = "tolerance", optional: bool = False) -> float | None:
+def exact_number(value: object, field: str, code: str = "invalid_parameter") -> Fraction:
+    """The exact rational a caller's number spells, with the formula language's literal limits.
+
+    Magnitudes are checked on the decimal's digits and exponent before any big number is built, so text such
+    as ``1e-999999999`` costs nothing.
+
+    >>> exact_number("9.00000000000000015", "claimed_value")
+    Fraction(180000000000000003, 20000000000000000)
+    >>> exact_number(0.1, "k"), exact_number(Decimal("1E+2"), "k"), exact_number("1/3", "k")
+    (Fraction(1, 10), Fraction(100, 1), Fraction(1, 3))
+    """
+    if isinstance(value, bool):
+        raise InvalidInput(f"{field} must be a number", code=code, field=field)
+    if isinstance(value, Fraction):
+        return _in_range(value, field, code)
+    if isinstance(value, int):
+        return _in_range(Fraction(value), field, code)
+    if isinstance(value, float):
+        if not math.isfinite(value):
+            raise InvalidInput(f"{field} must be finite, got {value!r}", code=code, field=field)
+        value = Decimal(repr(value))
+    elif isinstance(value, str):
+        text = value.strip()
+        ratio = _RATIO.fullmatch(text)
+        if len(text) <= 80 and ratio and int(ratio.group(2)) != 0:
+            return _in_range(Fraction(int(ratio.group(1)), int(ratio.group(2))), field, code)
+        if len(text) > 80 or not _DECIMAL.fullmatch(text):
+            raise InvalidInput(f"{field} must be a finite number such as 0.5 or 1e-3, got {text[:40]!r}",
+                               code=code, field=field)
+        value = Decimal(text)  # cheap whatever the exponent: Decimal keeps it as an integer
+    if not isinstance(value, Decimal) or not value.is_finite():
+        raise InvalidInput(f"{field} must be a finite number", code=code, field=field)
+    sign, digits, exponent = value.as_tuple()
+    significant = len(digits) - next((i for i, d in enumerate(digits) if d), len(digits))
+    if significant > MAX_LITERAL_DIGITS:
+        raise InvalidInput(f"{field} has more than {MAX_LITERAL_DIGITS} significant digits", code=code,
+                           field=field)
+    if significant and abs(value.adjusted()) > MAX_LITERAL_EXPONENT:
+        raise InvalidInput(f"{field} is beyond the range 1e-{MAX_LITERAL_EXPONENT} to 1e+{MAX_LITERAL_EXPONENT}",
+                           code=code, field=field)
+    return Fraction(value)
+
+
+def _in_range(value: Fraction, field: str, code: str) -> Fraction:
+    if abs(value) > _MAGNITUDE_LIMIT:
+        raise InvalidInput(f"{field} is beyond the range 1e-{MAX_LITERAL_EXPONENT} to 1e+{MAX_LITERAL_EXPONENT}",
+                           code=code, field=field)
+    return value
+
+
+def check_tolerance(value: NumberLike | None, field: str = "tolerance", optional: bool = False) -> float | None:
+    """The tolerance to apply: the largest float64 not above the exact number given, so that a bound that
+    meets it meets the caller's number too. The allowed range [1e-60, 1e300] is closed at both ends."""
     if value is None and optional:
         return None
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
+    if isinstance(value, bool) or not isinstance(value, (int, float, Decimal, Fraction, str)):
         raise InvalidInput(f"{field} must be a number", code="invalid_tolerance", field=field)
-    value = float(value)
-    if not math.isfinite(value) or value <= 0:
-        raise InvalidInput(f"{field} must be a finite number > 0, got {value!r}", code="invalid_tolerance",
+    exact = exact_number(value, field, code="invalid_tolerance")
+    if exact <= 0:
+        raise InvalidInput(f"{field} must be a number > 0, got {_shown(value)}", code="invalid_tolerance",
                            field=field)
-    low = 0.0 if optional else MIN_TOLERANCE
-    if not low < value <= MAX_TOLERANCE or (not optional and value < MIN_TOLERANCE):
-        raise InvalidInput(f"{field} {value!r} is outside [{MIN_TOLERANCE:g}, {MAX_TOLERANCE:g}]",
+    if optional:
+        if exact >= 1:
+            raise InvalidInput(f"{field} must be below 1, got {_shown(value)}", code="tolerance_out_of_range",
+                               field=field)
+    elif not _MIN_TOLERANCE_EXACT <= exact <= _MAX_TOLERANCE_EXACT:
+        raise InvalidInput(f"{field} {_shown(value)} is outside [{MIN_TOLERANCE:g}, {MAX_TOLERANCE:g}]",
                            code="tolerance_out_of_range", field=field)
-    if optional and value >= 1:
-        raise InvalidInput(f"{field} must be below 1, got {value!r}", code="tolerance_out_of_range", field=field)
-    return value
+    return fraction_down(exact)
+
+
+def _shown(value: object) -> str:
+    return str(value).strip()[:40] if not isinstance(value, float) else repr(value)
 
 
 def check_max_nodes(value: int) -> int:
@@ -40,29 +110,6 @@ def check_max_nodes(value: int) -> int:
         raise InvalidInput(f"max_nodes must be between 3 and {MAX_NODES_LIMIT}, got {value}",
                            code="budget_out_of_range", field="max_nodes")
     return value
-
-
-def exact_number(value: object, field: str) -> Fraction:
-    """A parameter value as an exact rational: floats are read as the decimal they print as."""
-    if isinstance(value, bool):
-        raise InvalidInput(f"{field} must be a number", code="invalid_parameter", field=field)
-    if isinstance(value, Fraction):
-        return value
-    if isinstance(value, int):
-        return Fraction(value)
-    if isinstance(value, float):
-        if not math.isfinite(value):
-            raise InvalidInput(f"{field} must be finite, got {value!r}", code="invalid_parameter", field=field)
-        return Fraction(repr(value))
-    if isinstance(value, str) and len(value) <= 80:
-        try:
-            result = Fraction(value.strip())
-        except (ValueError, ZeroDivisionError):
-            pass
-        else:
-            if abs(result) < Fraction(10) ** 1000:
-                return result
-    raise InvalidInput(f"{field} must be a finite number", code="invalid_parameter", field=field)
 
 
 def check_parameters(parameters: Mapping[str, object] | None) -> dict[str, Fraction]:

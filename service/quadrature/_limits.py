@@ -5,6 +5,7 @@ from __future__ import annotations
 import math
 import re
 from functools import lru_cache
+from decimal import Decimal
 from fractions import Fraction
 from typing import Any
 
@@ -15,11 +16,12 @@ from ..formula import Formula, Negate, Number, parse
 
 _PLAIN = re.compile(r"-?[0-9]{1,15}(\.[0-9]{1,15})?")
 _INFINITE = {"inf", "+inf", "-inf", "infinity", "+infinity", "-infinity", "oo", "-oo"}
-LimitValue = str | int | float | Fraction
+LimitValue = str | int | float | Fraction | Decimal
 
 
 def limit_text(value: LimitValue, field: str) -> str:
-    """The decimal text a limit spells; a float is read as its shortest round-trip decimal."""
+    """The decimal text a limit spells: a JSON number (Decimal) exactly as typed, a Python float as its
+    shortest round-trip decimal."""
     if isinstance(value, bool):
         raise InvalidInput(f"{field} must be a number or text", code="invalid_limit", field=field)
     if isinstance(value, float):
@@ -29,6 +31,12 @@ def limit_text(value: LimitValue, field: str) -> str:
         if math.isnan(value):
             raise InvalidInput(f"{field} is not a number", code="invalid_limit", field=field)
         return repr(value)
+    if isinstance(value, Decimal):  # a JSON number: exactly the decimal it spells
+        if value.is_infinite():
+            return limit_text(float(value), field)
+        if value.is_nan():
+            raise InvalidInput(f"{field} is not a number", code="invalid_limit", field=field)
+        return str(value).lower().replace("e+", "e")
     if isinstance(value, Fraction):
         return f"{value.numerator}/{value.denominator}" if value.denominator != 1 else str(value.numerator)
     if isinstance(value, int):

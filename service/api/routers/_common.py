@@ -7,6 +7,8 @@ from typing import Any
 from fastapi import Request
 from fastapi.responses import JSONResponse
 
+from .._exact_json import ExactJSONResponse
+
 from .._computation import Computation
 from .._problems import problem_response
 
@@ -29,5 +31,5 @@ def context(request: Request) -> dict[str, Any]:
 
 def respond(request: Request, status: int, body: dict[str, Any]) -> JSONResponse:
     if status == 200:
-        return JSONResponse(body)
+        return ExactJSONResponse(body)
     return problem_response(body, retry_after=request.app.state.settings.retry_after_seconds)

@@ -5,10 +5,11 @@ from __future__ import annotations
 from fastapi import APIRouter, Request
 from fastapi.responses import JSONResponse
 
+from .._exact_json import ExactJSONResponse, ExactRoute
 from .._schemas import CheckRequest, CheckResponse
 from ._common import PROBLEM_RESPONSES, computation, context, respond
 
-router = APIRouter(tags=["checks"])
+router = APIRouter(tags=["checks"], route_class=ExactRoute)
 
 
 @router.post("/v1/checks", response_model=CheckResponse, responses=PROBLEM_RESPONSES,

@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import asyncio
 import hashlib
+import re
+from decimal import Decimal
 from typing import Annotated, Literal
 
 from fastapi import APIRouter, Query, Request
@@ -15,10 +17,13 @@ from .._cache import cache_key
 from .._formats import MEDIA_TYPES, render, render_problem
 from .._jobs import _error
 from .._problems import PROBLEM_MEDIA_TYPE, problem_body
+from .._exact_json import ExactJSONResponse, ExactRoute
 from .._schemas import BatchRequest, BatchResponse, IntegralRequest, IntegralResponse
 from ._common import PROBLEM_RESPONSES, computation, context, respond
 
-router = APIRouter(tags=["integrals"])
+_DECIMAL = re.compile(r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,9})?")
+
+router = APIRouter(tags=["integrals"], route_class=ExactRoute)
 
 #: GET failures come in the requested format: one line of text (text, csv), XML, or problem JSON (json)
 PLAIN_PROBLEM_RESPONSES = {
@@ -55,7 +60,7 @@ async def create_batch(body: BatchRequest, request: Request) -> JSONResponse:
         return answer
 
     results = await asyncio.gather(*(one(i, item) for i, item in enumerate(body.items)))
-    return JSONResponse({"results": list(results)})
+    return ExactJSONResponse({"results": list(results)})
 
 
 @router.get("/v1/integral", summary="One number for a spreadsheet cell",
@@ -68,15 +73,17 @@ async def read_integral(
     integrand: Annotated[str, Query(max_length=4096)],
     lower_limit: Annotated[str, Query(max_length=512)],
     upper_limit: Annotated[str, Query(max_length=512)],
-    tolerance: float = 1e-8,
+    tolerance: Annotated[str, Query(max_length=80, description="Absolute tolerance, read as the exact decimal "
+                                    "it spells")] = "1e-8",
     variable: Annotated[str, Query(max_length=64)] = "x",
-    relative_tolerance: float | None = None,
+    relative_tolerance: Annotated[str | None, Query(max_length=80)] = None,
     parameter: Annotated[list[str] | None, Query(description="name:value, repeatable")] = None,
     format: Literal["text", "csv", "xml", "json"] = "text",
     field: Literal["value", "error_bound", "low", "high", "nodes"] | None = None,
 ) -> Response:
-    body = {"integrand": integrand, "lower_limit": lower_limit, "upper_limit": upper_limit, "tolerance": tolerance,
-            "variable": variable, "relative_tolerance": relative_tolerance}
+    body = {"integrand": integrand, "lower_limit": lower_limit, "upper_limit": upper_limit,
+            "tolerance": _query_number(tolerance), "variable": variable,
+            "relative_tolerance": None if relative_tolerance is None else _query_number(relative_tolerance)}
     engine = computation(request)
     try:
         body["parameters"] = _parameters(parameter or [])
@@ -96,8 +103,14 @@ async def read_integral(
                   f"{answer['stop_reason']}), not the tolerance {tolerance:g}")
         return _plain_problem(problem_body(code, detail, **context(request)), format, request)
     if format == "json":
-        return JSONResponse(answer, headers=headers)
+        return ExactJSONResponse(answer, headers=headers)
     return Response(render(answer, format, field), media_type=MEDIA_TYPES[format], headers=headers)
+
+
+def _query_number(text: str) -> Decimal | str:
+    """A number typed in a URL as the exact decimal it spells; anything else is left for the engine to refuse."""
+    text = text.strip()
+    return Decimal(text) if _DECIMAL.fullmatch(text) else text
 
 
 def _parameters(pairs: list[str]) -> dict[str, str]:
@@ -125,6 +138,6 @@ def _plain_problem(body: dict, fmt: str, request: Request) -> Response:
     if body["status"] == 503:
         headers["Retry-After"] = str(request.app.state.settings.retry_after_seconds)
     if fmt == "json":
-        return JSONResponse(body, status_code=body["status"], media_type=PROBLEM_MEDIA_TYPE, headers=headers)
+        return ExactJSONResponse(body, status_code=body["status"], media_type=PROBLEM_MEDIA_TYPE, headers=headers)
     media = MEDIA_TYPES["xml"] if fmt == "xml" else "text/plain; charset=utf-8"
     return Response(render_problem(body, fmt), status_code=body["status"], media_type=media, headers=headers)

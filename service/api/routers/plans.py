@@ -5,10 +5,11 @@ from __future__ import annotations
 from fastapi import APIRouter, Request
 from fastapi.responses import JSONResponse
 
+from .._exact_json import ExactJSONResponse, ExactRoute
 from .._schemas import PlanRequest, PlanResponse
 from ._common import PROBLEM_RESPONSES, computation, context, respond
 
-router = APIRouter(tags=["plans"])
+router = APIRouter(tags=["plans"], route_class=ExactRoute)
 
 
 @router.post("/v1/plans", response_model=PlanResponse, responses=PROBLEM_RESPONSES,
