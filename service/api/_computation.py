@@ -16,6 +16,7 @@ from typing import Any
 from .._version import ENGINE_VERSION
 from ..errors import QuadcertError
 from ..formula import parse
+from ..quadrature import bound_decimal
 from ..quadrature._inputs import check_parameters
 from ..quadrature._limits import parse_limit
 from ._cache import ResultCache, cache_key
@@ -115,7 +116,8 @@ class Computation:
         integral = _integral_response(result["integral"], body)
         response = {
             "verdict": result["verdict"], "claimed_value": body["claimed_value"], "tolerance": body["tolerance"],
-            "distance": list(result["distance"]), "enclosure": integral["enclosure"],
+            "distance": [bound_decimal(result["distance"][0], up=False), bound_decimal(result["distance"][1], up=True)],
+            "enclosure": integral["enclosure"],
             "integral": {**integral, "cached": False}, "engine_version": ENGINE_VERSION,
         }
         if key is not None and result["verdict"] != "undecided":
@@ -149,8 +151,10 @@ def _status(status: int, body: dict[str, Any]) -> int:
 def _integral_response(result: dict[str, Any], body: dict[str, Any]) -> dict[str, Any]:
     """The HTTP shape of an engine result; typed numbers (tolerance) are echoed exactly as the request had them."""
     mesh = result.get("mesh")
+    low, high = result["enclosure"]
     return {
-        "value": result["value"], "enclosure": list(result["enclosure"]), "error_bound": result["error_bound"],
+        "value": result["value"], "enclosure": [bound_decimal(low, up=False), bound_decimal(high, up=True)],
+        "error_bound": bound_decimal(result["error_bound"], up=True),
         "tolerance": body.get("tolerance", result["tolerance"]), "tolerance_met": result["tolerance_met"],
         "stop_reason": result["stop_reason"], "nodes": result["nodes"], "panels": result["panels"],
         "integrand": result["integrand"], "variable": body.get("variable", "x"), "lower_limit": result["lower_limit"],

@@ -5,6 +5,8 @@ from __future__ import annotations
 from typing import Any
 from xml.sax.saxutils import escape
 
+from ..quadrature import bound_text
+
 FIELDS = ("value", "error_bound", "low", "high", "nodes")
 MEDIA_TYPES = {"text": "text/plain; charset=utf-8", "csv": "text/csv; charset=utf-8",
                "xml": "application/xml; charset=utf-8", "json": "application/json"}
@@ -18,8 +20,10 @@ def number_text(value: float | int) -> str:
 
 
 def field_values(result: dict[str, Any]) -> dict[str, str]:
-    return {"value": number_text(result["value"]), "error_bound": number_text(result["error_bound"]),
-            "low": number_text(result["enclosure"][0]), "high": number_text(result["enclosure"][1]),
+    """Bounds printed outward (low down, high and error bound up), each still reading back as its float."""
+    low, high = result["enclosure"]
+    return {"value": number_text(result["value"]), "error_bound": bound_text(float(result["error_bound"]), up=True),
+            "low": bound_text(float(low), up=False), "high": bound_text(float(high), up=True),
             "nodes": str(result["nodes"])}
 
 

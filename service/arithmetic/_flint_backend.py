@@ -19,7 +19,7 @@ from typing import Any, Callable
 import flint
 
 from ..errors import DomainViolation, InvalidInput, MagnitudeExceeded, Unbounded
-from ._interval import binary_directed
+from ._interval import binary_directed, interval_text
 
 arb = flint.arb
 _owner: int | None = None
@@ -43,8 +43,7 @@ def flint_context_claimed() -> bool:
 
 
 def _text(x: arb) -> str:
-    lo, hi = _bounds(x)
-    return f"[{lo:.17g}, {hi:.17g}]"
+    return interval_text(*_bounds(x))
 
 
 def _exact_fraction(point: arb) -> Fraction:

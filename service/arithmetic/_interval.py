@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import math
 import sys
+from decimal import ROUND_CEILING, ROUND_FLOOR, ROUND_HALF_EVEN, Context, Decimal
 from fractions import Fraction
 from typing import NamedTuple
 
@@ -88,6 +89,44 @@ def binary_directed(negative: bool, mantissa: int, exponent: int, up: bool) -> f
     if magnitude == 0.0:
         return 0.0
     return -magnitude if negative else magnitude
+
+
+def interval_text(low: float, high: float) -> str:
+    """[low, high] for a message: 17 significant digits rounded outward, zero as 0 whatever its sign.
+
+    >>> interval_text(-0.0, 0.0), interval_text(0.1, 0.30000000000000004)
+    ('[0, 0]', '[0.1, 0.30000000000000005]')
+    """
+    return f"[{shown(low, 17, 'down')}, {shown(high, 17, 'up')}]"
+
+
+_DOWN = Context(prec=17, rounding=ROUND_FLOOR)
+_UP = Context(prec=17, rounding=ROUND_CEILING)
+
+
+def shown(value: float, digits: int, direction: str) -> str:
+    """``value`` printed with at most ``digits`` significant digits, rounded in ``direction`` ("down", "up" or
+    "near"), so that a printed bound never says less than the certified one. Zero prints as ``0`` whatever its
+    sign. Uses private decimal contexts: the process-wide one is never touched.
+
+    >>> shown(0.30000000000000004, 6, "down"), shown(0.30000000000000004, 6, "up"), shown(-0.0, 6, "up")
+    ('0.3', '0.300001', '0')
+    >>> shown(9.11497544109352e-11, 3, "up"), shown(5e-324, 3, "up"), shown(float("inf"), 3, "up")
+    ('9.12e-11', '4.95e-324', 'inf')
+    """
+    if value == 0:
+        return "0"
+    if not math.isfinite(value):
+        return "nan" if math.isnan(value) else ("inf" if value > 0 else "-inf")
+    exact = Decimal(value)  # exact: every float is a finite decimal
+    if direction == "near":
+        rounded = Context(prec=digits, rounding=ROUND_HALF_EVEN).create_decimal(exact)
+    else:
+        context = (_DOWN if direction == "down" else _UP).copy()
+        context.prec = digits
+        rounded = context.create_decimal(exact)
+    text = f"{rounded.normalize(Context(prec=digits)):g}"
+    return text if "e" not in text else text.replace("e+", "e")
 
 
 def raw_down(value: Raw) -> float:

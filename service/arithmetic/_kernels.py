@@ -24,7 +24,7 @@ from typing import Callable
 from mpmath import libmp as M
 
 from ..errors import DomainViolation, MagnitudeExceeded, Unbounded
-from ._interval import ONE, ZERO, Interval, Raw
+from ._interval import ONE, ZERO, Interval, Raw, interval_text
 
 EXTRA_BITS = 24
 GUARD_BITS = 8
@@ -41,8 +41,8 @@ _MINUS_ONE = M.from_int(-1)
 
 
 def _text(x: Interval) -> str:
-    lo, hi = x.floats()
-    return f"[{lo:.17g}, {hi:.17g}]"
+    """An enclosure for a message, printed outward; a zero bound prints as 0, never -0."""
+    return interval_text(*x.floats())
 
 
 def _check_magnitude(value: Raw) -> Raw:

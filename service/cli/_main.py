@@ -7,11 +7,14 @@ import dataclasses
 import json
 import sys
 import time
+from decimal import Decimal
 from typing import Any, Sequence
+
+import simplejson
 
 from .. import __version__
 from ..errors import ProblemError, QuadcertError
-from ..quadrature import CheckResult, IntegralResult, Plan, check, integrate, plan
+from ..quadrature import CheckResult, IntegralResult, Plan, bound_decimal, bound_text, check, integrate, plan, shown
 from . import _junit, _table
 
 EXIT_OK, EXIT_FAIL, EXIT_UNDECIDED = 0, 1, 2
@@ -31,8 +34,9 @@ def _common(parser: argparse.ArgumentParser, tolerance_required: bool = False) -
     parser.add_argument("formula", help="integrand, e.g. 'exp(-x^2)'")
     parser.add_argument("lower", help="lower limit: a number or a constant expression such as pi/2")
     parser.add_argument("upper", help="upper limit")
-    parser.add_argument("--tol", type=float, default=None if tolerance_required else 1e-8,
-                        required=tolerance_required, help="absolute tolerance (default 1e-8)")
+    parser.add_argument("--tol", default=None if tolerance_required else "1e-8", required=tolerance_required,
+                        help="absolute tolerance, read as the exact decimal typed"
+                             + ("" if tolerance_required else " (default 1e-8)"))
     parser.add_argument("--var", default="x", help="name of the integration variable (default x)")
     parser.add_argument("--param", action="append", default=[], metavar="NAME=VALUE", help="a named parameter")
     parser.add_argument("--url", help="use the service at this URL instead of computing in-process")
@@ -72,7 +76,7 @@ def _integrate(args: argparse.Namespace) -> int:
     else:
         result = integrate(args.formula, args.lower, args.upper, args.tol, **options)
     if args.json:
-        print(json.dumps(dataclasses.asdict(result)))
+        print(_json(_outward(dataclasses.asdict(result))))
     else:
         print(_describe(result))
     return EXIT_OK if result.tolerance_met else EXIT_UNDECIDED
@@ -82,12 +86,14 @@ def _describe(result: IntegralResult) -> str:
     status = "certified" if result.tolerance_met else f"NOT within tolerance ({result.stop_reason})"
     lines = [f"integral of {result.integrand} from {result.lower_limit} to {result.upper_limit}",
              f"value        {result.value!r}",
-             f"enclosure    [{result.enclosure[0]!r}, {result.enclosure[1]!r}]",
-             f"error bound  {result.error_bound:.6g}  (tolerance {result.tolerance:g}: {status})",
+             f"enclosure    [{bound_text(result.enclosure[0], up=False)}, {bound_text(result.enclosure[1], up=True)}]",
+             f"error bound  {shown(result.error_bound, 6, 'up')}  (tolerance {shown(result.tolerance, 6, 'near')}: "
+             f"{status})",
              f"nodes        {result.nodes}  panels {result.panels}"]
     if result.mesh:
         lines.append("mesh:")
-        lines.extend(f"  [{p.lower!r}, {p.upper!r}]  {p.contribution[0]!r} .. {p.contribution[1]!r}  {p.bound}"
+        lines.extend(f"  [{bound_text(p.lower, up=False)}, {bound_text(p.upper, up=True)}]  "
+                     f"{bound_text(p.contribution[0], up=False)} .. {bound_text(p.contribution[1], up=True)}  {p.bound}"
                      for p in result.mesh)
     return "\n".join(lines)
 
@@ -109,7 +115,7 @@ def _check(args: argparse.Namespace) -> int:
                                                                 time.perf_counter() - started)])
         return EXIT_UNDECIDED
     message = _verdict_text(outcome)
-    print(json.dumps(_verdict_json(outcome)) if args.json else message)
+    print(_json(_verdict_json(outcome)) if args.json else message)
     if args.junit:
         _junit.write_report(args.junit, [_junit.CaseOutcome(name, outcome.verdict, message,
                                                             time.perf_counter() - started)])
@@ -118,15 +124,32 @@ def _check(args: argparse.Namespace) -> int:
 
 def _verdict_text(outcome: CheckResult) -> str:
     low, high = outcome.integral.enclosure
-    return (f"{outcome.verdict}: claimed {outcome.claimed_value!r}, exact integral in [{low!r}, {high!r}], "
-            f"|claimed - exact| in [{outcome.distance[0]:.6g}, {outcome.distance[1]:.6g}], "
-            f"tolerance {outcome.tolerance:g}")
+    near, far = outcome.distance
+    return (f"{outcome.verdict}: claimed {outcome.claimed_value}, exact integral in "
+            f"[{bound_text(low, up=False)}, {bound_text(high, up=True)}], "
+            f"|claimed - exact| in [{shown(near, 6, 'down')}, {shown(far, 6, 'up')}], "
+            f"tolerance {shown(outcome.tolerance, 6, 'near')}")
 
 
 def _verdict_json(outcome: CheckResult) -> dict[str, Any]:
-    return {"verdict": outcome.verdict, "claimed_value": outcome.claimed_value, "tolerance": outcome.tolerance,
-            "distance": list(outcome.distance), "enclosure": list(outcome.integral.enclosure),
+    claimed = outcome.claimed_value
+    return {"verdict": outcome.verdict, "claimed_value": Decimal(claimed) if isinstance(claimed, str) else claimed,
+            "tolerance": outcome.tolerance,
+            "distance": [bound_decimal(outcome.distance[0], up=False), bound_decimal(outcome.distance[1], up=True)],
+            "enclosure": [bound_decimal(outcome.integral.enclosure[0], up=False),
+                          bound_decimal(outcome.integral.enclosure[1], up=True)],
             "nodes": outcome.integral.nodes}
+
+
+def _outward(result: dict[str, Any]) -> dict[str, Any]:
+    """A result dict with its bounds as outward decimals (low down, high and error bound up)."""
+    low, high = result["enclosure"]
+    return {**result, "enclosure": [bound_decimal(low, up=False), bound_decimal(high, up=True)],
+            "error_bound": bound_decimal(result["error_bound"], up=True)}
+
+
+def _json(content: Any) -> str:
+    return simplejson.dumps(content, use_decimal=True, allow_nan=False)
 
 
 def _batch(args: argparse.Namespace) -> int:
@@ -163,18 +186,31 @@ def _plan(args: argparse.Namespace) -> int:
             result = client.plan(args.formula, args.lower, args.upper, args.tol, **options)
     else:
         result = plan(args.formula, args.lower, args.upper, args.tol, **options)
-    print(json.dumps(dataclasses.asdict(result)) if args.json else _describe_plan(result))
+    print(_json(_plan_json(result)) if args.json else _describe_plan(result))
     return EXIT_OK
+
+
+def _plan_json(result: Plan) -> dict[str, Any]:
+    """The plan with its spacing rounded down and its bounds rounded up as decimals."""
+    content = dataclasses.asdict(result)
+    for name in ("simpson", "trapezoid"):
+        rule = content[name]
+        rule["spacing"] = bound_decimal(rule["spacing"], up=False)
+        for key in ("derivative_bound", "error_bound"):
+            if rule[key] is not None:
+                rule[key] = bound_decimal(rule[key], up=True)
+    return content
 
 
 def _describe_plan(result: Plan) -> str:
     lines = [f"uniform meshes for {result.integrand} on [{result.lower_limit}, {result.upper_limit}], "
-             f"tolerance {result.tolerance:g}"]
+             f"tolerance {shown(result.tolerance, 6, 'near')}"]
     for rule in (result.simpson, result.trapezoid):
         if rule.available:
-            lines.append(f"{rule.rule:10s} {rule.intervals} intervals, {rule.nodes} nodes, h = {rule.spacing:.6g}, "
-                         f"max|f^({rule.derivative_order})| <= {rule.derivative_bound:.6g}, "
-                         f"bound {rule.error_bound:.3g}")
+            lines.append(f"{rule.rule:10s} {rule.intervals} intervals, {rule.nodes} nodes, "
+                         f"h = {shown(rule.spacing, 6, 'down')}, "
+                         f"max|f^({rule.derivative_order})| <= {shown(rule.derivative_bound, 6, 'up')}, "
+                         f"bound {shown(rule.error_bound, 3, 'up')}")
         else:
             lines.append(f"{rule.rule:10s} not available: {rule.reason}")
     return "\n".join(lines)
@@ -199,7 +235,8 @@ def build_parser() -> argparse.ArgumentParser:
 
     one = commands.add_parser("integrate", help="certify one integral")
     _common(one)
-    one.add_argument("--rel-tol", dest="relative_tolerance", type=float)
+    one.add_argument("--rel-tol", dest="relative_tolerance",
+                     help="also accept an error bound <= this times |integral| (below 1)")
     one.add_argument("--max-nodes", dest="max_nodes", type=int)
     one.add_argument("--mesh", action="store_true", help="also print every panel")
     one.add_argument("--json", action="store_true", help="machine-readable output")
@@ -207,7 +244,8 @@ def build_parser() -> argparse.ArgumentParser:
 
     verdict = commands.add_parser("check", help="pass/fail verdict on a claimed value (exit 0/1/2)")
     _common(verdict, tolerance_required=True)
-    verdict.add_argument("--claimed", type=float, required=True, help="the value under test")
+    verdict.add_argument("--claimed", required=True,
+                         help="the value under test, read as the exact decimal typed (not rounded to float64)")
     verdict.add_argument("--max-nodes", dest="max_nodes", type=int)
     verdict.add_argument("--junit", metavar="FILE", help="write a JUnit XML report")
     verdict.add_argument("--name", help="test case name in the report")
@@ -217,7 +255,7 @@ def build_parser() -> argparse.ArgumentParser:
     table = commands.add_parser("batch", help="certify one integral per CSV row")
     table.add_argument("input", help="CSV with integrand, lower_limit, upper_limit[, tolerance, variable, ...]")
     table.add_argument("-o", "--output", help="output CSV (default: standard output)")
-    table.add_argument("--tol", type=float, default=1e-8, help="tolerance for rows without one")
+    table.add_argument("--tol", default="1e-8", help="tolerance for rows without one (default 1e-8)")
     table.add_argument("--url")
     table.set_defaults(run=_batch)
 

@@ -6,6 +6,7 @@ import csv
 from typing import Any, Iterable, TextIO
 
 from ..errors import InvalidInput
+from ..quadrature import bound_text
 
 REQUIRED = ("integrand", "lower_limit", "upper_limit")
 OPTIONAL = ("tolerance", "variable", "relative_tolerance", "max_nodes")
@@ -34,10 +35,7 @@ def read_rows(stream: TextIO, default_tolerance: float) -> tuple[list[str], list
             elif column == "max_nodes":
                 request[column] = int(text) if text.isdigit() else text
             else:
-                try:
-                    request[column] = float(text)
-                except ValueError:
-                    request[column] = text
+                request[column] = text  # read as the exact decimal it spells by the engine
         requests.append(request)
     return header, rows, requests
 
@@ -55,6 +53,6 @@ def outcome_of(result: Any = None, problem: dict[str, Any] | None = None) -> dic
     if problem is not None:
         return {"status": "error", "code": problem.get("code", ""), "detail": problem.get("detail", "")}
     return {"status": "certified" if result.tolerance_met else "not_met", "value": repr(result.value),
-            "low": repr(result.enclosure[0]), "high": repr(result.enclosure[1]),
-            "error_bound": repr(result.error_bound), "nodes": result.nodes,
+            "low": bound_text(result.enclosure[0], up=False), "high": bound_text(result.enclosure[1], up=True),
+            "error_bound": bound_text(result.error_bound, up=True), "nodes": result.nodes,
             "tolerance_met": str(result.tolerance_met).lower(), "code": "", "detail": result.stop_reason}

@@ -2,9 +2,11 @@
 
 from __future__ import annotations
 
+from decimal import Decimal, InvalidOperation
 from typing import Any, Mapping
 
 import httpx
+import simplejson
 
 from ..errors import ProblemError
 from ..quadrature import CheckResult, IntegralResult, PanelReport, Plan, RulePlan
@@ -39,10 +41,33 @@ def plan_from(body: Mapping[str, Any]) -> Plan:
                 body["compute_seconds"])
 
 
-def _request(integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float, options: dict[str, Any]
+_JSON = {"content-type": "application/json"}
+_NUMBERS = ("tolerance", "relative_tolerance", "claimed_value")
+
+
+def _exact(value: Any) -> Any:
+    """Decimal text (such as a claim read from a solver's output) goes out as a JSON number with those digits."""
+    if isinstance(value, str):
+        try:
+            number = Decimal(value.strip())
+        except InvalidOperation:
+            return value
+        return number if number.is_finite() else value
+    return value
+
+
+def _encode(body: Any) -> bytes:
+    """JSON with Decimals written as their digits, so the server certifies the number typed, not a float."""
+    return simplejson.dumps(body, use_decimal=True, allow_nan=False).encode()
+
+
+def _request(integrand: str, lower_limit: Any, upper_limit: Any, tolerance: Any, options: dict[str, Any]
              ) -> dict[str, Any]:
     body = {"integrand": integrand, "lower_limit": lower_limit, "upper_limit": upper_limit, "tolerance": tolerance}
     body.update({k: v for k, v in options.items() if v is not None})
+    for name in _NUMBERS:
+        if name in body:
+            body[name] = _exact(body[name])
     return body
 
 
@@ -82,20 +107,20 @@ class Client:
     def integrate(self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8,
                   **options: Any) -> IntegralResult:
         body = _request(integrand, lower_limit, upper_limit, tolerance, options)
-        return integral_from(_answer(self._http.post("/v1/integrals", json=body)))
+        return integral_from(_answer(self._http.post("/v1/integrals", content=_encode(body), headers=_JSON)))
 
     def batch(self, items: list[dict[str, Any]]) -> list[IntegralResult | ProblemError]:
-        return _batch(_answer(self._http.post("/v1/integrals/batch", json={"items": items})))
+        return _batch(_answer(self._http.post("/v1/integrals/batch", content=_encode({"items": items}), headers=_JSON)))
 
     def check(self, integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: float,
               tolerance: float = 1e-8, **options: Any) -> CheckResult:
         body = _request(integrand, lower_limit, upper_limit, tolerance, {**options, "claimed_value": claimed_value})
-        return check_from(_answer(self._http.post("/v1/checks", json=body)))
+        return check_from(_answer(self._http.post("/v1/checks", content=_encode(body), headers=_JSON)))
 
     def plan(self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8,
              **options: Any) -> Plan:
         body = _request(integrand, lower_limit, upper_limit, tolerance, options)
-        return plan_from(_answer(self._http.post("/v1/plans", json=body)))
+        return plan_from(_answer(self._http.post("/v1/plans", content=_encode(body), headers=_JSON)))
 
     def healthy(self) -> bool:
         try:
@@ -122,17 +147,17 @@ class AsyncClient:
     async def integrate(self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8,
                         **options: Any) -> IntegralResult:
         body = _request(integrand, lower_limit, upper_limit, tolerance, options)
-        return integral_from(_answer(await self._http.post("/v1/integrals", json=body)))
+        return integral_from(_answer(await self._http.post("/v1/integrals", content=_encode(body), headers=_JSON)))
 
     async def batch(self, items: list[dict[str, Any]]) -> list[IntegralResult | ProblemError]:
-        return _batch(_answer(await self._http.post("/v1/integrals/batch", json={"items": items})))
+        return _batch(_answer(await self._http.post("/v1/integrals/batch", content=_encode({"items": items}), headers=_JSON)))
 
     async def check(self, integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: float,
                     tolerance: float = 1e-8, **options: Any) -> CheckResult:
         body = _request(integrand, lower_limit, upper_limit, tolerance, {**options, "claimed_value": claimed_value})
-        return check_from(_answer(await self._http.post("/v1/checks", json=body)))
+        return check_from(_answer(await self._http.post("/v1/checks", content=_encode(body), headers=_JSON)))
 
     async def plan(self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8,
                    **options: Any) -> Plan:
         body = _request(integrand, lower_limit, upper_limit, tolerance, options)
-        return plan_from(_answer(await self._http.post("/v1/plans", json=body)))
+        return plan_from(_answer(await self._http.post("/v1/plans", content=_encode(body), headers=_JSON)))

@@ -3,7 +3,12 @@
 from __future__ import annotations
 
 import math
-from decimal import ROUND_CEILING, ROUND_FLOOR, ROUND_HALF_EVEN, Context, Decimal
+from decimal import ROUND_CEILING, ROUND_FLOOR, Context, Decimal
+
+from ..arithmetic import shown
+
+_DOWN = Context(prec=17, rounding=ROUND_FLOOR)
+_UP = Context(prec=17, rounding=ROUND_CEILING)
 
 
 def difference_up(x: float, y: float) -> float:
@@ -25,40 +30,6 @@ def error_bound(low: float, high: float) -> tuple[float, float]:
     return value, max(difference_up(value, low), difference_up(high, value))
 
 
-_DOWN = Context(prec=17, rounding=ROUND_FLOOR)
-_UP = Context(prec=17, rounding=ROUND_CEILING)
-
-
-def shown(value: float, digits: int, direction: str) -> str:
-    """``value`` printed with at most ``digits`` significant digits, rounded in ``direction`` ("down", "up" or
-    "near"), so that a printed bound never says less than the certified one. Zero prints as ``0`` whatever its
-    sign. Uses private decimal contexts: the process-wide one is never touched.
-
-    >>> shown(0.30000000000000004, 6, "down"), shown(0.30000000000000004, 6, "up"), shown(-0.0, 6, "up")
-    ('0.3', '0.300001', '0')
-    >>> shown(9.11497544109352e-11, 3, "up"), shown(5e-324, 3, "up"), shown(float("inf"), 3, "up")
-    ('9.12e-11', '4.95e-324', 'inf')
-    """
-    if value == 0:
-        return "0"
-    if not math.isfinite(value):
-        return "nan" if math.isnan(value) else ("inf" if value > 0 else "-inf")
-    exact = Decimal(value)  # exact: every float is a finite decimal
-    if direction == "near":
-        rounded = Context(prec=digits, rounding=ROUND_HALF_EVEN).create_decimal(exact)
-    else:
-        context = (_DOWN if direction == "down" else _UP).copy()
-        context.prec = digits
-        rounded = context.create_decimal(exact)
-    text = f"{rounded.normalize(Context(prec=digits)):g}"
-    return text if "e" not in text else text.replace("e+", "e")
-
-
-def shown_enclosure(low: float, high: float, digits: int = 17) -> tuple[str, str]:
-    """An enclosure printed outward: low rounded down, high rounded up."""
-    return shown(low, digits, "down"), shown(high, digits, "up")
-
-
 def bound_decimal(value: float, up: bool) -> Decimal | float:
     """The shortest decimal on the safe side of a float bound that still reads back as that same float.
 
@@ -78,12 +49,13 @@ def bound_decimal(value: float, up: bool) -> Decimal | float:
         return value
     exact = Decimal(value)
     context = (_UP if up else _DOWN).copy()
-    for digits in range(len(repr(abs(value)).split("e")[0].replace(".", "").strip("0")), 18):
+    # 18 digits always suffice: a directed rounding there moves less than 1e-17 relative, below half an ulp
+    for digits in range(len(repr(abs(value)).split("e")[0].replace(".", "").strip("0")), 19):
         context.prec = digits
         candidate = context.create_decimal(exact)
         if float(candidate) == value:
             return candidate
-    return context.create_decimal(exact)  # 17 digits always read back (unreachable in practice)
+    return exact  # not reached; the exact decimal of a float always reads back
 
 
 def bound_text(value: float, up: bool) -> str:

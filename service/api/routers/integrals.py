@@ -12,6 +12,7 @@ from fastapi import APIRouter, Query, Request
 from fastapi.responses import JSONResponse, Response
 
 from ...errors import InvalidInput, QuadcertError
+from ...quadrature import bound_text, shown
 from .._computation import _problem_args
 from .._cache import cache_key
 from .._formats import MEDIA_TYPES, render, render_problem
@@ -99,8 +100,9 @@ async def read_integral(
     if not answer["tolerance_met"]:
         code = "deadline_exceeded" if answer["stop_reason"] == "deadline" else "tolerance_not_met"
         low, high = answer["enclosure"]
-        detail = (f"certified only to ±{answer['error_bound']:.3g} (enclosure [{low!r}, {high!r}], "
-                  f"{answer['stop_reason']}), not the tolerance {tolerance:g}")
+        detail = (f"certified only to ±{shown(float(answer['error_bound']), 3, 'up')} (enclosure "
+                  f"[{bound_text(float(low), up=False)}, {bound_text(float(high), up=True)}], "
+                  f"{answer['stop_reason']}), not the tolerance {tolerance.strip()}")
         return _plain_problem(problem_body(code, detail, **context(request)), format, request)
     if format == "json":
         return ExactJSONResponse(answer, headers=headers)
