@@ -27,6 +27,7 @@ from ._finish import error_bound
 from ._result import PanelReport
 
 MAX_DEPTH = 60
+_FLOOR_ULPS = 4  # once the panels sum to within this many ulps of the total, look whether float64 is the limit
 _HALF, _SIXTH = Fraction(1, 2), Fraction(1, 6)
 
 
@@ -198,9 +199,15 @@ class Refiner:
         while True:
             if not unresolved:
                 half = width_sum / 2
-                if half <= target(centre_sum - half, centre_sum + half) * 1.01 and width_sum < next_check:
+                near_target = half <= target(centre_sum - half, centre_sum + half) * 1.01
+                at_float_floor = width_sum <= _FLOOR_ULPS * math.ulp(centre_sum)
+                if (near_target or at_float_floor) and width_sum < next_check:
                     low, high = self.ar.bounds(self.total(p for _, _, p in heap))
                     if error_bound(low, high)[1] <= target(low, high):
+                        break
+                    if high <= math.nextafter(math.nextafter(low, math.inf), math.inf):
+                        # as narrow as float64 can show it: more panels cannot lower the reported bound
+                        stop = "resolution_limit"
                         break
                     next_check = width_sum * 0.95
             if len(self.values) + 2 > self.max_nodes:

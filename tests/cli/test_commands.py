@@ -82,3 +82,23 @@ def test_plan(capsys) -> None:
 def test_formula_error_exits_2(capsys) -> None:
     assert main(["integrate", "2x", "0", "1"]) == 2
     assert "implicit_multiplication" in capsys.readouterr().err
+
+
+def test_claimed_value_is_read_as_typed(capsys) -> None:
+    """9.00000000000000015 is 1.5e-16 from the exact 9 (closed form ∫₀³ x² dx); as a float64 it would be 9.0."""
+    code = main(["check", "x^2", "0", "3", "--claimed", "9.00000000000000015", "--tol", "1e-16", "--json"])
+    body = json.loads(capsys.readouterr().out)
+    assert code != 0 and body["verdict"] != "pass"
+    assert str(body["claimed_value"]) == "9.00000000000000015"
+
+
+def test_printed_bounds_round_outward(capsys) -> None:
+    """The error bound is printed rounded up at 6 digits, never to nearest."""
+    from decimal import Decimal
+
+    assert main(["integrate", "exp(x)", "0", "2", "--tol", "1e-10"]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    assert main(["integrate", "exp(x)", "0", "2", "--tol", "1e-10", "--json"]) == 0
+    body = json.loads(capsys.readouterr().out, parse_float=Decimal)
+    printed = Decimal(lines[3].split()[2])
+    assert printed >= body["error_bound"]
