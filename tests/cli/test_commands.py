@@ -86,8 +86,10 @@ def test_formula_error_exits_2(capsys) -> None:
 
 def test_claimed_value_is_read_as_typed(capsys) -> None:
     """9.00000000000000015 is 1.5e-16 from the exact 9 (closed form ∫₀³ x² dx); as a float64 it would be 9.0."""
+    from decimal import Decimal
+
     code = main(["check", "x^2", "0", "3", "--claimed", "9.00000000000000015", "--tol", "1e-16", "--json"])
-    body = json.loads(capsys.readouterr().out)
+    body = json.loads(capsys.readouterr().out, parse_float=Decimal)
     assert code != 0 and body["verdict"] != "pass"
     assert str(body["claimed_value"]) == "9.00000000000000015"
 
