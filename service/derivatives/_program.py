@@ -13,6 +13,7 @@ from typing import Any, Callable, Mapping
 from ..arithmetic import Arithmetic
 from ..errors import InvalidInput
 from ..formula import Binary, Call, Constant, Formula, Negate, Node, Number, Parameter, Variable
+from ..formula._nodes import distinct_arguments
 from . import _series as S
 
 _UNARY: dict[str, Callable[[Arithmetic, S.Series], S.Series]] = {
@@ -85,7 +86,8 @@ class Program:
 
     def _call(self, node: Call) -> Compiled:
         ar = self.ar
-        args = [self._compile(a) for a in node.args]
+        args = [self._compile(a) for a in (distinct_arguments(node) if node.function in ("min", "max")
+                                           else node.args)]
         if all(kind == "const" for kind, _ in args):
             values = [[payload] for _, payload in args]
             return ("const", self._apply(node.function, values)[0])

@@ -55,6 +55,16 @@ class Call:
 
 Node = Union[Number, Variable, Parameter, Constant, Negate, Binary, Call]
 
+
+def distinct_arguments(node: Call) -> tuple[Node, ...]:
+    """The arguments of min or max without repeats: min(u, u) is u exactly, a smooth function, whereas
+    evaluated as a kink with a gap of width zero it would need the first-order bound on every panel.
+
+    >>> distinct_arguments(Call("min", (Variable("x"), Variable("x"))))
+    (Variable(name='x'),)
+    """
+    return tuple(dict.fromkeys(node.args))
+
 _PRECEDENCE = {"+": 1, "-": 1, "*": 2, "/": 2, "neg": 3, "^": 4}
 _ATOM = 5
 

@@ -23,6 +23,7 @@ from ..arithmetic import MpmathArithmetic, fraction_down, fraction_up
 from ..derivatives import Program
 from ..errors import ArithmeticFault
 from ..formula import Binary, Call, Constant, Formula, Negate, Node, Number, Parameter, Variable
+from ..formula._nodes import distinct_arguments
 from ._peano import BOUND_NAMES
 from ._result import PanelReport
 
@@ -114,9 +115,10 @@ class _Compiler:
             self.node(node.operand)
             self.emit("neg")
         elif isinstance(node, Call):
-            self.node(node.args[0])
+            args = distinct_arguments(node) if node.function in ("min", "max") else node.args
+            self.node(args[0])
             if node.function in ("min", "max"):
-                for arg in node.args[1:]:
+                for arg in args[1:]:
                     self.node(arg)
                     self.emit(node.function, 0, -1)
             else:

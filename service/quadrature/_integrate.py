@@ -15,7 +15,7 @@ from . import _fast, _inputs
 from ._finish import error_bound
 from ._limits import LimitValue, enclose_limit, exact_limit, parse_limit
 from ._result import IntegralResult, PanelReport
-from ._simpson import Refiner
+from ._simpson import FLOAT_FLOOR, Refiner
 
 DEFAULT_PRECISION = 96
 _LIMIT_PRECISION = 128  # exact limits are enclosed at this precision for the float64 engine
@@ -99,6 +99,7 @@ def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: Li
             break
         prec *= 2
     enclosure, stop, nodes, panels, mesh, bounds_used = outcome
+    stop = "resolution_limit" if stop == FLOAT_FLOOR else stop
     low, high = ar.bounds(enclosure)
     value, bound = error_bound(low, high)
     if not math.isfinite(bound):

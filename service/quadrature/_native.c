@@ -193,6 +193,21 @@ static iv sum_of_panels(const refiner *r) {
     return mk(add_dn(s[0], errors[0].lo), add_up(s[1], errors[1].hi));
 }
 
+/* A running sum that terms are added to and later removed from.  In plain float64 the removal of a term
+   that dominated the sum (a first panel 1e10 wide, the rest 1e-10) leaves that term's rounding error
+   behind for good, about 1e-6 here, and the loop then refines far past the tolerance, or declines because
+   the rounding estimate looks like float64's floor.  Each step's error is kept exactly by TwoSum in a
+   second word; these sums steer the refinement only, they certify nothing. */
+typedef struct { double hi, lo; } running_sum;
+
+static inline void sum_add(running_sum *acc, double x) {
+    double t = acc->hi + x, bp = t - acc->hi;
+    acc->lo += (acc->hi - (t - bp)) + (x - bp);
+    acc->hi = t;
+}
+
+static inline double sum_value(const running_sum *acc) { return acc->hi + acc->lo; }
+
 static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nodes, double deadline, iv *total_out) {
     iv fa, fb;
     if (node_value(r, a, &fa) || node_value(r, b, &fb)) return DECLINE_VALUE;
@@ -200,17 +215,21 @@ static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nod
     Py_ssize_t first;
     int status = make_panel(r, a, b, fa, fb, 0, -1, &first);
     if (status) return status;
-    double width_sum = 0, centre_sum = 0, rounding_sum = 0, next_check = INFINITY;
+    running_sum widths = {0, 0}, centres = {0, 0}, roundings = {0, 0};
+    double next_check = INFINITY;
     double width_at_checkpoint = INFINITY;
     long long unresolved = 0, steps = 0;
     Py_ssize_t checkpoint = 64;
     int stalls = 0;
-#define ACCOUNT(i, s) do { panel *pp = &r->panels[i]; rounding_sum += (s) * pp->rounding; \
-        if (pp->resolved) { width_sum += (s) * pp->width; centre_sum += (s) * pp->centre; } else unresolved += (s); } while (0)
+#define ACCOUNT(i, s) do { panel *pp = &r->panels[i]; sum_add(&roundings, (s) * pp->rounding); \
+        if (pp->resolved) { sum_add(&widths, (s) * pp->width); sum_add(&centres, (s) * pp->centre); } \
+        else unresolved += (s); } while (0)
     heap_push(r, first);
     ACCOUNT(first, 1);
     for (;;) {
         if (!unresolved) {
+            double width_sum = sum_value(&widths), centre_sum = sum_value(&centres);
+            double rounding_sum = sum_value(&roundings);
             double half = width_sum / 2;
             double goal = target_of(tol, rel, centre_sum - half, centre_sum + half);
             if (half <= goal * 1.01 && width_sum < next_check) {

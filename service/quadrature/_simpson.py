@@ -27,6 +27,7 @@ from ._finish import error_bound
 from ._result import PanelReport
 
 MAX_DEPTH = 60
+FLOAT_FLOOR = "float_floor"  # internal stop reason, reported as resolution_limit
 _FLOOR_ULPS = 4  # once the panels sum to within this many ulps of the total, look whether float64 is the limit
 _HALF, _SIXTH = Fraction(1, 2), Fraction(1, 6)
 
@@ -74,6 +75,48 @@ def _enclose(program: Program, ar: Arithmetic, panel: _Panel) -> tuple[Any, int]
     for _, other in candidates:
         enclosure = ar.intersect(enclosure, other)
     return enclosure, best_order
+
+
+class ExactSum:
+    """A running sum of floats kept exactly, as an integer count of 2**-1074 (the smallest subnormal), so
+    that adding and later removing terms leaves no rounding error behind.
+
+    >>> s = ExactSum(); s.add(1e10); s.add(1e-10); s.remove(1e10); s.value()
+    1e-10
+    """
+
+    __slots__ = ("units", "infinite")
+    _SCALE = 1074
+
+    def __init__(self) -> None:
+        self.units = 0
+        self.infinite = 0
+
+    def _units(self, term: float) -> int | None:
+        if not math.isfinite(term):
+            return None
+        numerator, denominator = term.as_integer_ratio()
+        return numerator * ((1 << self._SCALE) // denominator)
+
+    def add(self, term: float) -> None:
+        units = self._units(term)
+        if units is None:
+            self.infinite += 1
+        else:
+            self.units += units
+
+    def remove(self, term: float) -> None:
+        units = self._units(term)
+        if units is None:
+            self.infinite -= 1
+        else:
+            self.units -= units
+
+    def value(self) -> float:
+        """The sum, correctly rounded (inf while an infinite term is in it)."""
+        if self.infinite:
+            return math.inf
+        return self.units / (1 << self._SCALE)
 
 
 class Refiner:
@@ -170,46 +213,51 @@ class Refiner:
         heap: list[tuple[float, int, _Panel]] = []
         counter = 0
         unresolved = 0
-        width_sum = centre_sum = 0.0
+        # running sums kept exactly: a float sum that loses a dominant first panel (1e10 wide where the
+        # rest is 1e-10) would keep its rounding error of about 1e-6 for good, and the loop would refine
+        # far past the tolerance before its estimate came down
+        width_sum, centre_sum = ExactSum(), ExactSum()
         next_check = math.inf  # check exactly once the estimate drops below this
 
         def push(panel: _Panel) -> None:
-            nonlocal counter, unresolved, width_sum, centre_sum
+            nonlocal counter, unresolved
             heapq.heappush(heap, (-panel.width, counter, panel))
             counter += 1
             if panel.enclosure is None:
                 unresolved += 1
             else:
-                width_sum += panel.width
+                width_sum.add(panel.width)
                 panel.centre = sum(self.ar.bounds(panel.enclosure)) / 2
-                centre_sum += panel.centre
+                centre_sum.add(panel.centre)
 
         def pop() -> _Panel:
-            nonlocal unresolved, width_sum, centre_sum
+            nonlocal unresolved
             panel = heapq.heappop(heap)[2]
             if panel.enclosure is None:
                 unresolved -= 1
             else:
-                width_sum -= panel.width
-                centre_sum -= panel.centre
+                width_sum.remove(panel.width)
+                centre_sum.remove(panel.centre)
             return panel
 
         push(first)
         stop = "tolerance_met"
         while True:
             if not unresolved:
-                half = width_sum / 2
-                near_target = half <= target(centre_sum - half, centre_sum + half) * 1.01
-                at_float_floor = width_sum <= _FLOOR_ULPS * math.ulp(centre_sum)
-                if (near_target or at_float_floor) and width_sum < next_check:
+                widths, centre = width_sum.value(), centre_sum.value()
+                half = widths / 2
+                near_target = half <= target(centre - half, centre + half) * 1.01
+                at_float_floor = widths <= _FLOOR_ULPS * math.ulp(centre)
+                if (near_target or at_float_floor) and widths < next_check:
                     low, high = self.ar.bounds(self.total(p for _, _, p in heap))
                     if error_bound(low, high)[1] <= target(low, high):
                         break
                     if high <= math.nextafter(math.nextafter(low, math.inf), math.inf):
-                        # as narrow as float64 can show it: more panels cannot lower the reported bound
-                        stop = "resolution_limit"
+                        # as narrow as float64 can show it: neither more panels nor more bits can lower
+                        # the reported bound
+                        stop = FLOAT_FLOOR
                         break
-                    next_check = width_sum * 0.95
+                    next_check = widths * 0.95
             if len(self.values) + 2 > self.max_nodes:
                 stop = "node_budget"
                 break
