@@ -65,10 +65,12 @@ def _request(integrand: str, lower_limit: Any, upper_limit: Any, tolerance: Any,
              ) -> dict[str, Any]:
     body = {"integrand": integrand, "lower_limit": lower_limit, "upper_limit": upper_limit, "tolerance": tolerance}
     body.update({k: v for k, v in options.items() if v is not None})
-    for name in _NUMBERS:
-        if name in body:
-            body[name] = _exact(body[name])
-    return body
+    return _exact_numbers(body)
+
+
+def _exact_numbers(body: dict[str, Any]) -> dict[str, Any]:
+    """Numbers given as decimal text go out as JSON numbers with exactly those digits."""
+    return {k: _exact(v) if k in _NUMBERS else v for k, v in body.items()}
 
 
 def _answer(response: httpx.Response) -> dict[str, Any]:
@@ -110,7 +112,7 @@ class Client:
         return integral_from(_answer(self._http.post("/v1/integrals", content=_encode(body), headers=_JSON)))
 
     def batch(self, items: list[dict[str, Any]]) -> list[IntegralResult | ProblemError]:
-        return _batch(_answer(self._http.post("/v1/integrals/batch", content=_encode({"items": items}), headers=_JSON)))
+        return _batch(_answer(self._http.post("/v1/integrals/batch", content=_encode({"items": [_exact_numbers(i) for i in items]}), headers=_JSON)))
 
     def check(self, integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: float,
               tolerance: float = 1e-8, **options: Any) -> CheckResult:
@@ -150,7 +152,7 @@ class AsyncClient:
         return integral_from(_answer(await self._http.post("/v1/integrals", content=_encode(body), headers=_JSON)))
 
     async def batch(self, items: list[dict[str, Any]]) -> list[IntegralResult | ProblemError]:
-        return _batch(_answer(await self._http.post("/v1/integrals/batch", content=_encode({"items": items}), headers=_JSON)))
+        return _batch(_answer(await self._http.post("/v1/integrals/batch", content=_encode({"items": [_exact_numbers(i) for i in items]}), headers=_JSON)))
 
     async def check(self, integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: float,
                     tolerance: float = 1e-8, **options: Any) -> CheckResult:

@@ -143,3 +143,30 @@ def test_results_below_the_float_range_are_enclosed(integrand, a, b, exact, sour
     assert result.error_bound > 0, source
     low, high = result.enclosure
     assert math.copysign(1, low) > 0 or low < 0, "a zero bound prints as 0, never -0"
+
+
+@pytest.mark.parametrize("integrand, a, b, tolerance, exact, most_nodes, source", [
+    ("min(x, x)", 0, 1, 1e-8, HP.mpf(1) / 2, 50, "closed form 1/2; min(u, u) is u, no kink"),
+    ("max(sin(x), sin(x))", 0, "pi", 1e-8, HP.mpf(2), 2_000, "closed form 2"),
+    ("(1-cos(x))/x^2", "1e-8", 1, 1e-10,
+     HP.quad(lambda t: (1 - HP.cos(t)) / t ** 2, [HP.mpf("1e-8"), 1]), 10_000,
+     "mpmath quad at 110 digits; the first panel's enclosure is about 1e10 wide"),
+    ("tan(x)", 1, "1.57079632679", 1e-8, -HP.log(HP.cos(HP.mpf("1.57079632679"))) + HP.log(HP.cos(1)), 20_000,
+     "closed form -log cos x, next to the pole at pi/2"),
+])
+def test_once_slow_paths_take_few_nodes(integrand, a, b, tolerance, exact, most_nodes, source) -> None:
+    """Regression: these ran to the deadline or took tens of thousands of nodes (a running float sum kept the
+    rounding error of a removed first panel; min(x, x) was a kink of zero width on every panel). Node counts,
+    not times, so the test holds on a busy machine."""
+    result = integrate(integrand, a, b, tolerance)
+    assert result.tolerance_met and encloses(result.enclosure, exact), source
+    assert result.nodes <= most_nodes, (source, result.nodes)
+
+
+def test_a_tolerance_below_the_results_resolution_stops_at_float64s_floor() -> None:
+    """∫ exp(x) over [700, 709.7] is about 1.6e308 (closed form e^709.7 - e^700); no float64 enclosure can be
+    within 1e-8 of it, so the engine reports resolution_limit rather than running to its budget."""
+    result = integrate("exp(x)", 700, "709.7", 1e-8)
+    assert result.stop_reason == "resolution_limit" and not result.tolerance_met
+    assert encloses(result.enclosure, HP.exp(HP.mpf("709.7")) - HP.exp(700))
+    assert result.nodes < 50_000
