@@ -20,3 +20,23 @@ def test_suite_quick_run_prints_a_table(tmp_path, capsys) -> None:
 def test_suite_has_the_required_coverage() -> None:
     kinds = {case.kind for case in suite.SUITE}
     assert len(suite.SUITE) >= 20 and kinds == {"smooth", "peaked", "oscillatory", "kink", "endpoint"}
+
+
+def test_redteam_smoke_run_finds_no_false_certificate(capsys) -> None:
+    """A few random formulas through the library paths, checked against flint at 200 bits (the long run is a
+    documented command, not CI)."""
+    from benchmarks import redteam
+
+    assert redteam.main(["--cases", "6", "--seed", "5", "--deadline", "1", "--no-service"]) == 0
+    printed = capsys.readouterr().out
+    assert "| default | 6 |" in printed and "MISS" not in printed
+
+
+def test_redteam_reference_catches_a_wrong_enclosure() -> None:
+    """The harness itself: an enclosure away from flint's ball is a miss, one around it is not."""
+    from benchmarks import redteam
+
+    case = redteam.Case("x^2", "0", "3", "1e-8", lambda x, _: x * x)  # closed form 9
+    ball = redteam.reference_ball(case)
+    assert redteam.verdict((8.999999, 9.000001), ball) == "ok"
+    assert redteam.verdict((9.0000001, 9.1), ball) == "miss"

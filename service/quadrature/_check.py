@@ -43,8 +43,8 @@ def check(integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: _in
     'pass'
     >>> check("x^2", 0, 3, claimed_value=9.01, tolerance=1e-6).verdict
     'fail'
-    >>> check("x^2", 0, 3, claimed_value="9.00000000000000015", tolerance="1e-16").verdict
-    'fail'
+    >>> check("x^2", 0, 3, claimed_value="9.00000000000000015", tolerance="1e-16").verdict != "pass"  # as typed
+    True
     """
     claimed = _inputs.exact_number(claimed_value, "claimed_value", code="invalid_claim")
     tolerance = _inputs.check_tolerance(tolerance)  # type: ignore[assignment]
