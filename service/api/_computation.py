@@ -69,8 +69,8 @@ class Computation:
             request["deadline_seconds"] = deadline * 0.8
         return request
 
-    async def _run(self, kind: str, body: dict[str, Any], deadline: float, wait: float, context: dict[str, Any]
-                   ) -> tuple[Answer, str | None]:
+    async def _run(self, kind: str, body: dict[str, Any], deadline: float, wait: float, context: dict[str, Any],
+                   group: str | None = None, compute: float | None = None) -> tuple[Answer, str | None]:
         try:
             canonical = self.canonical(body)
         except QuadcertError as error:
@@ -81,7 +81,8 @@ class Computation:
             return (200, {**cached, "cached": True, "compute_seconds": 0.0}), key
         started = time.perf_counter()
         try:
-            answer = await self.pool.run(kind, self._engine_request(kind, body, deadline), deadline + 1.0, wait)
+            answer = await self.pool.run(kind, self._engine_request(kind, body, compute or deadline), deadline + 1.0,
+                                         wait, group=group, compute_seconds=None if compute is None else compute + 1.0)
         except ServiceError as error:
             self.metrics.results.labels(error.code).inc()
             return (0, problem_body(error.code, str(error), **context)), key
@@ -99,9 +100,12 @@ class Computation:
 
     # -- integrals ---------------------------------------------------------------------------
     async def integral(self, body: dict[str, Any], context: dict[str, Any], wait: float = 0.0,
-                       deadline: float | None = None) -> tuple[Answer, str | None]:
+                       deadline: float | None = None, group: str | None = None,
+                       compute: float | None = None) -> tuple[Answer, str | None]:
+        """One integral. ``deadline`` (seconds from now) covers queueing and computing; a batch item also
+        passes ``compute`` (its own engine time), ``wait`` (patience for queue room) and its batch's ``group``."""
         deadline = deadline or self.settings.request_deadline_seconds
-        (status, result), key = await self._run("integral", body, deadline, wait, context)
+        (status, result), key = await self._run("integral", body, deadline, wait, context, group, compute)
         if status != 200 or result.get("cached"):
             return (_status(status, result), result), key
         response = _integral_response(result, body)

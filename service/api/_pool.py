@@ -1,9 +1,16 @@
-"""A pool of engine worker processes with hard per-job deadlines and a bounded queue.
+"""A pool of engine worker processes: fair queueing, deadlines that include the wait, a shutdown that ends.
 
-CPU work never runs on the event loop.  Each worker serves one job at a
-time over a pipe; a job that overruns its deadline has its worker killed and
-replaced, so one runaway formula cannot hold a slot or affect other jobs.
-A worker that dies mid-job yields a clear error for that job only.
+CPU work never runs on the event loop. Each worker serves one job at a time over a pipe; the blocking pipe
+reads and writes run in threads of the pool's own, so a reply of any size (a 100,000-panel mesh) arrives whole.
+
+* **Deadlines cover queueing.** A job carries the absolute time by which its caller needs an answer. One that
+  is still queued then is answered 504 without running; one that runs is given only what is left, and its
+  worker is killed and replaced if it overruns.
+* **Fair sharing.** Jobs are queued per group: a batch is one group, every single request is a group of its
+  own. Free workers take jobs round-robin across groups, and one group may hold only a share of the queue, so
+  a 500-item batch cannot make single requests wait behind all of it.
+* **Shutdown always ends.** :meth:`close` answers every queued and running job with ``ShuttingDown`` (503),
+  kills the workers and returns; it never waits on a worker.
 """
 
 from __future__ import annotations
@@ -13,8 +20,9 @@ import itertools
 import logging
 import multiprocessing
 import multiprocessing.connection
-import os
 import signal
+from collections import OrderedDict, deque
+from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -22,6 +30,11 @@ from ..errors import DeadlineExceeded, Saturated, ServiceError, ShuttingDown, Wo
 from ._jobs import execute
 
 log = logging.getLogger("quadcert.pool")
+
+#: share of the queue one group (a batch) may hold; the rest stays open to everyone else
+GROUP_SHARE = 0.5
+#: the engine's own soft deadline, as a share of the time left when a job starts (the hard one kills)
+ENGINE_SHARE = 0.8
 
 
 def _worker_main(connection: multiprocessing.connection.Connection, backend: str = "flint") -> None:
@@ -50,7 +63,10 @@ def _worker_main(connection: multiprocessing.connection.Connection, backend: str
 class _Job:
     kind: str
     request: dict[str, Any]
-    deadline: float
+    expires_at: float          # loop time by which the caller needs the answer (queueing included)
+    compute_limit: float       # the longest the job may run once a worker takes it
+    group: str
+    enqueued_at: float
     future: asyncio.Future = field(repr=False)
 
 
@@ -61,7 +77,6 @@ class _Worker:
         self.process = context.Process(target=_worker_main, args=(child, backend), daemon=True)
         self.process.start()
         child.close()
-        self.busy = False
 
     def kill(self) -> None:
         if self.process.is_alive():
@@ -71,17 +86,23 @@ class _Worker:
 
 
 class WorkerPool:
-    """``await pool.run(kind, request, deadline)`` → the job's answer dict."""
+    """``await pool.run(kind, request, deadline_seconds)`` → the job's answer dict."""
 
     def __init__(self, size: int, queue_limit: int, backend: str = "flint") -> None:
         self.size = size
         self.backend = backend
         self.queue_limit = queue_limit
         self._context = multiprocessing.get_context("spawn")
-        self._queue: asyncio.Queue[_Job] | None = None
+        self._threads: ThreadPoolExecutor | None = None
+        self._groups: OrderedDict[str, deque[_Job]] = OrderedDict()
+        self._queued = 0
+        self._running: dict[int, _Job] = {}
+        self._per_group: dict[str, int] = {}
+        self._changed: asyncio.Condition | None = None
         self._workers: list[_Worker] = []
         self._tasks: list[asyncio.Task] = []
         self._ids = itertools.count()
+        self._singles = itertools.count()
         self._pending = 0
         self.closed = False
         self.restarts = 0
@@ -89,37 +110,58 @@ class WorkerPool:
 
     # -- lifecycle ---------------------------------------------------------------------------
     async def start(self) -> None:
-        self._queue = asyncio.Queue()
+        self._changed = asyncio.Condition()
+        # reads block for as long as a job runs, one per worker; kills and spawns need a few more
+        self._threads = ThreadPoolExecutor(max_workers=2 * self.size + 2, thread_name_prefix="quadcert-pipe")
         loop = asyncio.get_running_loop()
-        self._workers = await loop.run_in_executor(None, lambda: [_Worker(self._context, self.backend) for _ in range(self.size)])
+        self._workers = await loop.run_in_executor(
+            self._threads, lambda: [_Worker(self._context, self.backend) for _ in range(self.size)])
         self._tasks = [asyncio.create_task(self._serve(i)) for i in range(self.size)]
 
     async def close(self) -> None:
+        """Answer every queued and running job with ShuttingDown, stop the workers, return. Idempotent."""
+        if self.closed and not self._tasks:
+            return
         self.closed = True
+        self._fail_queued(ShuttingDown("the service is shutting down"))
         for task in self._tasks:
             task.cancel()
         await asyncio.gather(*self._tasks, return_exceptions=True)
+        self._tasks = []
         for worker in self._workers:
-            try:
-                worker.connection.send(None)
-            except OSError:
-                pass
-        loop = asyncio.get_running_loop()
-        await loop.run_in_executor(None, lambda: [w.kill() for w in self._workers])
-        if self._queue is not None:
-            while not self._queue.empty():
-                job = self._queue.get_nowait()
+            if worker.process.is_alive():
+                worker.process.kill()  # a signal, not a wait: close never blocks on a worker
+        if self._threads is not None:
+            threads, workers = self._threads, self._workers
+            await asyncio.get_running_loop().run_in_executor(threads, lambda: [w.kill() for w in workers])
+            threads.shutdown(wait=False, cancel_futures=True)
+        if self._changed is not None:
+            async with self._changed:
+                self._changed.notify_all()
+
+    def _fail_queued(self, error: ServiceError) -> None:
+        for jobs in self._groups.values():
+            for job in jobs:
                 if not job.future.done():
-                    job.future.set_exception(ShuttingDown("the service is shutting down"))
+                    job.future.set_exception(error)
+        self._groups.clear()
+        self._queued = 0
 
     # -- state for probes and metrics --------------------------------------------------------
     @property
     def pending(self) -> int:
+        """Jobs admitted and not yet answered: queued or running."""
         return self._pending
 
     @property
     def alive(self) -> int:
         return sum(1 for w in self._workers if w.process.is_alive())
+
+    def oldest_wait(self) -> float:
+        """Seconds the longest-queued job has waited (0 with an empty queue)."""
+        now = asyncio.get_running_loop().time()
+        firsts = [jobs[0].enqueued_at for jobs in self._groups.values() if jobs]
+        return now - min(firsts) if firsts else 0.0
 
     @property
     def ready(self) -> bool:
@@ -130,86 +172,136 @@ class WorkerPool:
 
     # -- submitting --------------------------------------------------------------------------
     async def run(self, kind: str, request: dict[str, Any], deadline_seconds: float,
-                  wait_for_slot: float = 0.0) -> dict[str, Any]:
-        if self.closed or self._queue is None:
+                  wait_for_slot: float = 0.0, group: str | None = None,
+                  compute_seconds: float | None = None) -> dict[str, Any]:
+        """Run one job. ``deadline_seconds`` counts from now and covers the wait in the queue;
+        ``compute_seconds`` caps the run itself (default: whatever is left); ``wait_for_slot`` is how long to
+        wait for room instead of answering Saturated at once (batches); jobs of one ``group`` share the
+        queue fairly with everyone else."""
+        if self.closed or self._changed is None:
             raise ShuttingDown("the service is shutting down")
-        if self._pending >= self.queue_limit:
-            if wait_for_slot <= 0:
-                raise Saturated("all workers are busy and the queue is full")
-            await self._wait_for_slot(wait_for_slot)
         loop = asyncio.get_running_loop()
-        job = _Job(kind, request, deadline_seconds, loop.create_future())
+        group = group if group is not None else f"single-{next(self._singles)}"
+        await self._admit(group, wait_for_slot)
+        now = loop.time()
+        job = _Job(kind, request, now + deadline_seconds,
+                   deadline_seconds if compute_seconds is None else compute_seconds, group, now,
+                   loop.create_future())
         self._pending += 1
+        self._per_group[group] = self._per_group.get(group, 0) + 1
         try:
-            self._queue.put_nowait(job)
+            self._groups.setdefault(group, deque()).append(job)
+            self._queued += 1
+            async with self._changed:
+                self._changed.notify_all()
             return await job.future
         finally:
             self._pending -= 1
+            left = self._per_group[group] - 1
+            if left:
+                self._per_group[group] = left
+            else:
+                del self._per_group[group]
+            async with self._changed:
+                self._changed.notify_all()
 
-    async def _wait_for_slot(self, patience: float) -> None:
-        loop = asyncio.get_running_loop()
-        until = loop.time() + patience
-        while self._pending >= self.queue_limit:
-            if loop.time() > until or self.closed:
-                raise Saturated("all workers are busy and the queue is full")
-            await asyncio.sleep(0.01)
+    def _has_room(self, group: str) -> bool:
+        share = max(1, int(self.queue_limit * GROUP_SHARE))
+        return self._pending < self.queue_limit and self._per_group.get(group, 0) < share
 
+    async def _admit(self, group: str, patience: float) -> None:
+        """Wait (on events, not by polling) until the queue has room for one more job of this group."""
+        if self._has_room(group):
+            return
+        if patience <= 0:
+            raise Saturated("all workers are busy and the queue is full")
+        assert self._changed is not None
+        try:
+            async with self._changed:
+                await asyncio.wait_for(self._changed.wait_for(lambda: self.closed or self._has_room(group)),
+                                       timeout=patience)
+        except asyncio.TimeoutError:
+            raise Saturated("all workers are busy and the queue is full") from None
+        if self.closed:
+            raise ShuttingDown("the service is shutting down")
+
+    def _take(self) -> _Job | None:
+        """The next job, round-robin across groups: the first group gives one job and goes to the back."""
+        while self._groups:
+            group, jobs = next(iter(self._groups.items()))
+            job = jobs.popleft()
+            self._queued -= 1
+            if jobs:
+                self._groups.move_to_end(group)
+            else:
+                del self._groups[group]
+            if not job.future.done():  # a caller that went away leaves nothing to do
+                return job
+        return None
+
+    # -- serving -----------------------------------------------------------------------------
     async def _serve(self, index: int) -> None:
-        assert self._queue is not None
+        assert self._changed is not None
+        loop = asyncio.get_running_loop()
         while True:
-            job = await self._queue.get()
-            if job.future.done():  # the caller went away
+            async with self._changed:
+                await self._changed.wait_for(lambda: self._queued > 0)
+                job = self._take()
+            if job is None:
                 continue
+            left = job.expires_at - loop.time()
+            if left <= 0:
+                job.future.set_exception(DeadlineExceeded(
+                    f"the request waited {loop.time() - job.enqueued_at:.3g} s in the queue and passed its "
+                    "deadline before a worker was free"))
+                continue
+            self._running[index] = job
             try:
-                answer = await self._dispatch(index, job)
+                answer = await self._dispatch(index, job, min(left, job.compute_limit))
             except ServiceError as error:
                 if not job.future.done():
                     job.future.set_exception(error)
+            except asyncio.CancelledError:
+                if not job.future.done():
+                    job.future.set_exception(ShuttingDown("the service is shutting down; the job was stopped"))
+                raise
             else:
                 self.completed += 1
                 if not job.future.done():
                     job.future.set_result(answer)
+            finally:
+                self._running.pop(index, None)
 
-    async def _dispatch(self, index: int, job: _Job) -> dict[str, Any]:
+    async def _dispatch(self, index: int, job: _Job, left: float) -> dict[str, Any]:
         worker = self._workers[index]
         if not worker.process.is_alive():
             worker = await self._replace(index)
+        request = job.request
+        if "deadline_seconds" in request:  # the engine stops itself before the hard deadline
+            request = {**request, "deadline_seconds": min(request["deadline_seconds"], left * ENGINE_SHARE)}
         job_id = next(self._ids)
         loop = asyncio.get_running_loop()
-        received: asyncio.Future = loop.create_future()
-        fd = worker.connection.fileno()
-
-        def readable() -> None:
-            if received.done():
-                return
-            try:
-                received.set_result(worker.connection.recv())
-            except (EOFError, OSError) as error:
-                received.set_exception(WorkerLost(f"the worker stopped during the job ({error or 'EOF'})"))
-
         try:
-            worker.connection.send((job_id, job.kind, job.request))
-        except (BrokenPipeError, OSError):
+            await loop.run_in_executor(self._threads, worker.connection.send, (job_id, job.kind, request))
+        except (BrokenPipeError, OSError, EOFError):
             await self._replace(index)
             raise WorkerLost("the worker was gone before the job started") from None
-        loop.add_reader(fd, readable)
-        try:
-            reply_id, answer = await asyncio.wait_for(received, timeout=job.deadline)
-        except asyncio.TimeoutError:
-            loop.remove_reader(fd)
-            log.warning("job over deadline; restarting worker", extra={"kind": job.kind,
-                                                                        "deadline": job.deadline})
-            await self._replace(index)
-            raise DeadlineExceeded(f"the computation passed its {job.deadline:g} s deadline") from None
-        except WorkerLost:
-            loop.remove_reader(fd)
-            await self._replace(index)
-            raise
         except asyncio.CancelledError:
-            loop.remove_reader(fd)
-            await self._replace(index)
+            worker.process.kill()
             raise
-        loop.remove_reader(fd)
+        reply = loop.run_in_executor(self._threads, worker.connection.recv)
+        try:
+            reply_id, answer = await asyncio.wait_for(reply, timeout=left)
+        except asyncio.TimeoutError:
+            log.warning("job over deadline; restarting worker", extra={"kind": job.kind, "deadline": left})
+            await self._replace(index)
+            raise DeadlineExceeded(f"the computation passed its {left:.3g} s deadline") from None
+        except (EOFError, OSError) as error:
+            await self._replace(index)
+            raise WorkerLost(f"the worker stopped during the job ({error or 'EOF'})") from None
+        except asyncio.CancelledError:
+            worker.process.kill()  # shutting down: stop the work, never wait for it
+            raise
         if reply_id != job_id:  # cannot happen with one job per worker; refuse rather than mix answers
             await self._replace(index)
             raise WorkerLost("the worker answered out of order")
@@ -218,11 +310,10 @@ class WorkerPool:
     async def _replace(self, index: int) -> _Worker:
         old = self._workers[index]
         loop = asyncio.get_running_loop()
-        await loop.run_in_executor(None, old.kill)
+        await loop.run_in_executor(self._threads, old.kill)
         if self.closed:
             raise ShuttingDown("the service is shutting down")
-        fresh = await loop.run_in_executor(None, lambda: _Worker(self._context, self.backend))
+        fresh = await loop.run_in_executor(self._threads, lambda: _Worker(self._context, self.backend))
         self._workers[index] = fresh
         self.restarts += 1
         return fresh
-

@@ -53,11 +53,15 @@ async def create_batch(body: BatchRequest, request: Request) -> JSONResponse:
                                                   f"{settings.max_batch_items}", **context(request)))
     engine = computation(request)
     base = context(request)
+    group = f"batch-{base['request_id'] or id(body)}"  # the batch shares the pool as one party
+    loop = asyncio.get_running_loop()
+    until = loop.time() + settings.batch_deadline_seconds
 
     async def one(index: int, item: IntegralRequest) -> dict:
         item_context = {**base, "instance": f"{base['instance']}#/items/{index}"}
-        (_, answer), _ = await engine.integral(item.model_dump(), item_context,
-                                               wait=settings.batch_deadline_seconds)
+        left = max(until - loop.time(), 1e-3)
+        (_, answer), _ = await engine.integral(item.model_dump(), item_context, wait=left, deadline=left,
+                                               group=group, compute=settings.request_deadline_seconds)
         return answer
 
     results = await asyncio.gather(*(one(i, item) for i, item in enumerate(body.items)))
