@@ -67,6 +67,8 @@ class Computation:
         if kind != "plan":
             request.setdefault("max_nodes", self.settings.default_max_nodes)
             request["deadline_seconds"] = deadline * 0.8
+            if request.get("include_mesh"):
+                request["max_mesh_panels"] = self.settings.max_mesh_panels
         return request
 
     async def _run(self, kind: str, body: dict[str, Any], deadline: float, wait: float, context: dict[str, Any],

@@ -25,7 +25,14 @@ def _error(error: Exception) -> dict[str, Any]:
 
 
 def run_integral(request: dict[str, Any]) -> dict[str, Any]:
-    return dataclasses.asdict(integrate(**request))
+    request = dict(request)
+    limit = request.pop("max_mesh_panels", None)
+    result = integrate(**request)
+    if limit is not None and result.mesh is not None and len(result.mesh) > limit:
+        raise InvalidInput(f"the mesh has {len(result.mesh)} panels, more than the {limit} an answer may carry; "
+                           "ask without include_mesh, or with a looser tolerance", code="mesh_too_large",
+                           field="include_mesh")
+    return dataclasses.asdict(result)
 
 
 def run_check(request: dict[str, Any]) -> dict[str, Any]:

@@ -86,9 +86,11 @@ class RequestContext:
         path = scope.get("path", "")
         started = time.perf_counter()
         status_holder = {"status": 500}
+        started_response = {"sent": False}
 
         async def send_with_id(message: dict[str, Any]) -> None:
             if message["type"] == "http.response.start":
+                started_response["sent"] = True
                 status_holder["status"] = message["status"]
                 message.setdefault("headers", [])
                 message["headers"] = [*message["headers"], (b"x-request-id", request_id.encode())]
@@ -99,7 +101,15 @@ class RequestContext:
                                 instance=path, request_id=request_id)
             await _send_problem(send_with_id, body, retry_after=self.state.settings.retry_after_seconds)
         else:
-            await self.app(scope, receive, send_with_id)
+            try:
+                await self.app(scope, receive, send_with_id)
+            except Exception:  # noqa: BLE001 - answered here, so the connection stays usable
+                log.exception("unhandled error", extra={"request_id": request_id, "path": path})
+                if started_response["sent"]:
+                    raise  # half a response is out: only closing the connection is honest
+                body = problem_body("internal_error", "an internal error occurred; it has been logged",
+                                    instance=path, request_id=request_id)
+                await _send_problem(send_with_id, body)
         elapsed = time.perf_counter() - started
         route = scope.get("route")
         route_path = getattr(route, "path", None) or ("unmatched" if status_holder["status"] == 404 else path)

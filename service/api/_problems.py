@@ -35,6 +35,7 @@ CODES: dict[str, tuple[int, str]] = {
     "result_out_of_range": (422, "The integral is beyond the float64 range"),
     "degenerate_interval": (422, "The limits are too close to plan a mesh"),
     "plan_too_large": (422, "The plan needs too many intervals"),
+    "mesh_too_large": (422, "The mesh is too large to send"),
 }
 _FORMULA_TITLE = "The formula cannot be read"
 _INPUT_TITLE = "A request value is unusable"

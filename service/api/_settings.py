@@ -27,6 +27,9 @@ class Settings(BaseSettings):
     max_batch_items: int = Field(500, ge=1)
     default_max_nodes: int = Field(200_001, ge=3)
     cache_entries: int = Field(4096, ge=0)
+    cache_bytes: int = Field(64 * 1024 * 1024, ge=0, description="estimated memory the result cache may hold")
+    max_mesh_panels: int = Field(100_000, ge=1, description="include_mesh answers with more panels are "
+                                                            "refused (mesh_too_large)")
     retry_after_seconds: int = Field(1, ge=1)
     grace_seconds: float = Field(20.0, ge=0, description="time in-flight requests get to finish on SIGTERM")
     backend: Literal["flint", "mpmath"] = Field("flint", description="engine arithmetic in the workers: flint "

@@ -35,7 +35,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     settings = settings or Settings()
     configure(settings.log_level)
     pool = WorkerPool(settings.workers, settings.queue_limit, settings.backend)
-    cache = ResultCache(settings.cache_entries)
+    cache = ResultCache(settings.cache_entries, settings.cache_bytes)
     metrics = Metrics(pool, cache)
 
     @asynccontextmanager
@@ -89,11 +89,7 @@ def _install_error_handlers(app: FastAPI) -> None:
         body["status"] = error.status_code
         return problem_response(body)
 
-    @app.exception_handler(Exception)
-    async def unexpected(request: Request, error: Exception):  # type: ignore[no-untyped-def]
-        log.exception("unhandled error", extra={"path": request.url.path})
-        return problem_response(problem_body("internal_error", "an internal error occurred; it has been logged",
-                                             **_context(request)))
+    # anything else is answered 500 by RequestContext (_middleware.py), which keeps the connection usable
 
 
 def _openapi(app: FastAPI) -> dict[str, Any]:

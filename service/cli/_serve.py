@@ -1,9 +1,16 @@
-"""Running the service under uvicorn, with a drain on SIGTERM: in-flight work finishes, new work gets 503."""
+"""Running the service under uvicorn, with a drain on SIGTERM: in-flight work finishes, new work gets 503.
+
+The drain is bounded: when ``grace_seconds`` have passed, every job still queued or running is answered 503
+``shutting_down`` (a batch keeps the items it finished), the workers are stopped, and the process exits.
+uvicorn's own graceful timeout is set a few seconds later, as a backstop only.
+"""
 
 from __future__ import annotations
 
+import asyncio
 import contextlib
 import logging
+import math
 from typing import Any, Iterator
 
 import uvicorn
@@ -11,6 +18,7 @@ import uvicorn
 from ..api import Settings, create_app
 
 log = logging.getLogger("quadcert.serve")
+BACKSTOP_SECONDS = 3  # after the grace period, time for the 503 answers to be written
 
 
 class _DrainingServer(uvicorn.Server):
@@ -28,8 +36,14 @@ class _DrainingServer(uvicorn.Server):
                 self._captured_signals.clear()
 
     def handle_exit(self, sig: int, frame: Any) -> None:
-        self._app.state.draining = True
-        log.info("draining", extra={"signal": sig})
+        state = self._app.state
+        if not state.draining:
+            state.draining = True
+            grace = state.settings.grace_seconds
+            log.info("draining", extra={"signal": sig, "grace_seconds": grace})
+            with contextlib.suppress(RuntimeError):  # no running loop: nothing in flight to stop
+                loop = asyncio.get_running_loop()
+                loop.call_later(grace, lambda: loop.create_task(state.pool.close()))
         super().handle_exit(sig, frame)
 
 
@@ -37,8 +51,9 @@ def serve(host: str | None, port: int | None, workers: int | None) -> int:
     overrides = {k: v for k, v in {"host": host, "port": port, "workers": workers}.items() if v is not None}
     settings = Settings(**overrides)
     app = create_app(settings)
+    backstop = math.ceil(settings.grace_seconds) + BACKSTOP_SECONDS  # never None: None would wait forever
     config = uvicorn.Config(app, host=settings.host, port=settings.port, log_config=None, access_log=False,
-                            timeout_graceful_shutdown=int(settings.grace_seconds) or None, lifespan="on")
+                            timeout_graceful_shutdown=backstop, lifespan="on")
     server = _DrainingServer(config, app)
     server.run()
     return 0
