@@ -7,6 +7,7 @@ raises past here.
 
 from __future__ import annotations
 
+import asyncio
 import logging
 import time
 from decimal import Decimal
@@ -30,6 +31,7 @@ from ._settings import Settings
 log = logging.getLogger("quadcert.computation")
 
 Answer = tuple[int, dict[str, Any]]
+_INLINE_PARSE_CHARS = 256  # shorter formulas parse in microseconds; a thread hop would cost more
 
 
 def _fraction_text(value: Fraction) -> str:
@@ -74,7 +76,10 @@ class Computation:
     async def _run(self, kind: str, body: dict[str, Any], deadline: float, wait: float, context: dict[str, Any],
                    group: str | None = None, compute: float | None = None) -> tuple[Answer, str | None]:
         try:
-            canonical = self.canonical(body)
+            if len(body.get("integrand", "")) > _INLINE_PARSE_CHARS:  # long text: parse off the event loop
+                canonical = await asyncio.to_thread(self.canonical, body)
+            else:
+                canonical = self.canonical(body)
         except QuadcertError as error:
             return (0, problem_body(**_problem_args(_error(error)), **context)), None
         key = cache_key(kind, canonical)

@@ -16,6 +16,9 @@ PROBLEM_MEDIA_TYPE = "application/problem+json"
 CODES: dict[str, tuple[int, str]] = {
     "invalid_request": (422, "The request body does not match the schema"),
     "malformed_body": (400, "The request body is not valid JSON text"),
+    "malformed_request": (400, "The request is not HTTP this server can read"),
+    "request_timeout": (408, "The request did not arrive in time"),
+    "too_many_connections": (503, "Too many open connections"),
     "body_too_large": (413, "The request body is too large"),
     "not_found": (404, "No such resource"),
     "method_not_allowed": (405, "Method not allowed on this resource"),
@@ -36,6 +39,7 @@ CODES: dict[str, tuple[int, str]] = {
     "degenerate_interval": (422, "The limits are too close to plan a mesh"),
     "plan_too_large": (422, "The plan needs too many intervals"),
     "mesh_too_large": (422, "The mesh is too large to send"),
+    "repeated_query_key": (422, "A query key is given more than once"),
 }
 _FORMULA_TITLE = "The formula cannot be read"
 _INPUT_TITLE = "A request value is unusable"

@@ -32,6 +32,10 @@ class Settings(BaseSettings):
                                                             "refused (mesh_too_large)")
     retry_after_seconds: int = Field(1, ge=1)
     grace_seconds: float = Field(20.0, ge=0, description="time in-flight requests get to finish on SIGTERM")
+    read_timeout_seconds: float = Field(10.0, gt=0, le=600, description="a request's headers and body must "
+                                        "arrive within this time of its first byte, or it gets 408")
+    max_connections: int = Field(0, ge=0, description="open connections before the oldest silent one is "
+                                 "closed (0: derived from the open-file limit)")
     backend: Literal["flint", "mpmath"] = Field("flint", description="engine arithmetic in the workers: flint "
                                                  "(arb balls, fast) or mpmath (the reference backend)")
     log_level: str = "INFO"

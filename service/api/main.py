@@ -72,6 +72,13 @@ def _install_error_handlers(app: FastAPI) -> None:
         errors = [{"location": [str(p) for p in e.get("loc", ())], "message": e.get("msg", ""),
                    "type": e.get("type", "")} for e in error.errors()]
         first = errors[0] if errors else {"location": [], "message": "invalid request"}
+        if first.get("type") == "json_invalid":  # not JSON text at all: 400, with where the text went wrong
+            raw = next(iter(error.errors()), {})
+            reason = (raw.get("ctx") or {}).get("error", "")
+            at = [p for p in raw.get("loc", ()) if isinstance(p, int)]
+            where = f" at character {at[0]}" if at else ""
+            return problem_response(problem_body("malformed_body", f"the body is not JSON text{where}: {reason}",
+                                                 **_context(request)))
         where = ".".join(p for p in first["location"] if p not in ("body", "query"))
         body = problem_body("invalid_request", f"{where or 'request'}: {first['message']}", field=where or None,
                             errors=errors, **_context(request))
@@ -87,7 +94,9 @@ def _install_error_handlers(app: FastAPI) -> None:
                                                                                         "invalid_request")
         body = problem_body(code, str(error.detail), **_context(request))
         body["status"] = error.status_code
-        return problem_response(body)
+        response = problem_response(body)
+        response.headers.update(error.headers or {})  # 405 carries Allow
+        return response
 
     # anything else is answered 500 by RequestContext (_middleware.py), which keeps the connection usable
 

@@ -16,6 +16,7 @@ from typing import Any, Iterator
 import uvicorn
 
 from ..api import Settings, create_app
+from ..api._http import protocol_options
 
 log = logging.getLogger("quadcert.serve")
 BACKSTOP_SECONDS = 3  # after the grace period, time for the 503 answers to be written
@@ -53,7 +54,7 @@ def serve(host: str | None, port: int | None, workers: int | None) -> int:
     app = create_app(settings)
     backstop = math.ceil(settings.grace_seconds) + BACKSTOP_SECONDS  # never None: None would wait forever
     config = uvicorn.Config(app, host=settings.host, port=settings.port, log_config=None, access_log=False,
-                            timeout_graceful_shutdown=backstop, lifespan="on")
+                            timeout_graceful_shutdown=backstop, lifespan="on", **protocol_options(settings))
     server = _DrainingServer(config, app)
     server.run()
     return 0

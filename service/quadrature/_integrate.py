@@ -141,8 +141,11 @@ def _try_fast(formula: Formula, values: dict[str, Fraction], lower: Formula, upp
                                     outcome.bounds_used, mesh)
     low, high = outcome.enclosure
     value, bound = error_bound(low, high)
-    if not math.isfinite(bound) or (bound > target(low, high) and outcome.stop_reason != "deadline"):
-        return None  # float64 did not get there within the budget: the precise engine may, with more bits
+    if not math.isfinite(bound) or (bound > target(low, high) and outcome.stop_reason not in ("deadline",
+                                                                                               "node_budget")):
+        return None  # float64's resolution stopped it: the precise engine may get there, with more bits
+    # past the deadline or the node budget, starting over on the slower engine with the same budget could
+    # not do better and would run on past what the caller allowed: the compiled answer stands
     return outcome, value, bound
 
 

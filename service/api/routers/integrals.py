@@ -91,12 +91,13 @@ async def read_integral(
             "relative_tolerance": None if relative_tolerance is None else _query_number(relative_tolerance)}
     engine = computation(request)
     try:
+        _refuse_repeated_keys(request)
         body["parameters"] = _parameters(parameter or [])
         tag = _etag(engine.canonical(body), format, field)
     except QuadcertError as error:
         return _plain_problem(problem_body(**_args(error), **context(request)), format, request)
     headers = {"ETag": tag, "Cache-Control": "public, max-age=86400"}
-    if tag in [t.strip() for t in request.headers.get("if-none-match", "").split(",")]:
+    if _matches(request.headers.get("if-none-match"), tag):
         return Response(status_code=304, headers=headers)
     (status, answer), _ = await engine.integral(body, context(request))
     if status != 200:
@@ -130,9 +131,29 @@ def _parameters(pairs: list[str]) -> dict[str, str]:
     return values
 
 
+def _refuse_repeated_keys(request: Request) -> None:
+    """A key given twice is a mistake in a cell formula, not a choice of the last value (``parameter`` repeats)."""
+    seen: set[str] = set()
+    for key, _ in request.query_params.multi_items():
+        if key in seen and key != "parameter":
+            raise InvalidInput(f"query key {key!r} is given more than once; give it once (only parameter= "
+                               "repeats)", code="repeated_query_key", field=key)
+        seen.add(key)
+
+
 def _etag(canonical: dict, fmt: str, field: str | None) -> str:
+    """Strong for text, csv and xml (the same bytes every time); weak for json, whose body also says whether
+    it came from the cache and how long the engine took."""
     digest = hashlib.sha256(f"{cache_key('integral-get', canonical)}|{fmt}|{field}".encode()).hexdigest()
-    return f'"{digest[:32]}"'
+    return f'W/"{digest[:32]}"' if fmt == "json" else f'"{digest[:32]}"'
+
+
+def _matches(if_none_match: str | None, tag: str) -> bool:
+    """If-None-Match by weak comparison (RFC 9110, 13.1.2): ``*`` matches; W/ is ignored on both sides."""
+    if not if_none_match:
+        return False
+    offered = [t.strip() for t in if_none_match.split(",")]
+    return "*" in offered or tag.removeprefix("W/") in [t.removeprefix("W/") for t in offered]
 
 
 def _args(error: QuadcertError) -> dict:
