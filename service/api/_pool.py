@@ -7,8 +7,8 @@ reads and writes run in threads of the pool's own, so a reply of any size (a 100
   is still queued then is answered 504 without running; one that runs is given only what is left, and its
   worker is killed and replaced if it overruns.
 * **Fair sharing.** Jobs are queued per group: a batch is one group, every single request is a group of its
-  own. Free workers take jobs round-robin across groups, and one group may hold only a share of the queue, so
-  a 500-item batch cannot make single requests wait behind all of it.
+  own. A free worker takes the next job of the group served least so far, and one group may hold only a share
+  of the queue, so a 500-item batch cannot make single requests wait behind all of it.
 * **Shutdown always ends.** :meth:`close` answers every queued and running job with ``ShuttingDown`` (503),
   kills the workers and returns; it never waits on a worker.
 """
@@ -98,6 +98,7 @@ class WorkerPool:
         self._queued = 0
         self._running: dict[int, _Job] = {}
         self._per_group: dict[str, int] = {}
+        self._served: dict[str, int] = {}   # jobs taken per group still holding admitted jobs
         self._changed: asyncio.Condition | None = None
         self._workers: list[_Worker] = []
         self._tasks: list[asyncio.Task] = []
@@ -202,6 +203,7 @@ class WorkerPool:
                 self._per_group[group] = left
             else:
                 del self._per_group[group]
+                self._served.pop(group, None)
             async with self._changed:
                 self._changed.notify_all()
 
@@ -226,16 +228,17 @@ class WorkerPool:
             raise ShuttingDown("the service is shutting down")
 
     def _take(self) -> _Job | None:
-        """The next job, round-robin across groups: the first group gives one job and goes to the back."""
+        """The next job from the group served least so far (then the one waiting longest): a single request
+        goes ahead of a batch that has already had workers, and batches take turns."""
         while self._groups:
-            group, jobs = next(iter(self._groups.items()))
+            group = min(self._groups, key=lambda g: (self._served.get(g, 0), self._groups[g][0].enqueued_at))
+            jobs = self._groups[group]
             job = jobs.popleft()
             self._queued -= 1
-            if jobs:
-                self._groups.move_to_end(group)
-            else:
+            if not jobs:
                 del self._groups[group]
             if not job.future.done():  # a caller that went away leaves nothing to do
+                self._served[group] = self._served.get(group, 0) + 1
                 return job
         return None
 

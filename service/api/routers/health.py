@@ -21,9 +21,14 @@ async def healthz() -> dict[str, str]:
             responses={503: {"description": "Not ready"}})
 async def readyz(request: Request) -> JSONResponse:
     pool = request.app.state.pool
-    if getattr(request.app.state, "draining", False) or not pool.ready:
+    settings = request.app.state.settings
+    wait = pool.oldest_wait()
+    # a queue whose oldest job has waited half a deadline means new work would mostly wait, not run
+    if getattr(request.app.state, "draining", False) or not pool.ready \
+            or wait > settings.request_deadline_seconds / 2:
         body = problem_body("saturated" if not pool.closed else "shutting_down",
-                            f"not ready: {pool.alive} workers alive, {pool.pending} jobs pending",
-                            instance="/readyz")
-        return problem_response(body, retry_after=request.app.state.settings.retry_after_seconds)
-    return JSONResponse({"status": "ready", "workers": pool.alive, "pending": pool.pending})
+                            f"not ready: {pool.alive} workers alive, {pool.pending} jobs pending, the oldest "
+                            f"queued for {wait:.3g} s", instance="/readyz")
+        return problem_response(body, retry_after=settings.retry_after_seconds)
+    return JSONResponse({"status": "ready", "workers": pool.alive, "pending": pool.pending,
+                         "queue_wait_seconds": round(wait, 3)})
