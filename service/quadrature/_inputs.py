@@ -28,7 +28,8 @@ _RATIO = re.compile(r"([+-]?\d{1,80})\s*/\s*(\d{1,80})")
 NumberLike = int | float | Decimal | Fraction | str
 
 
-def exact_number(value: object, field: str, code: str = "invalid_parameter") -> Fraction:
+def exact_number(value: object, field: str, code: str = "invalid_parameter", range_code: str | None = None
+                 ) -> Fraction:
     """The exact rational a caller's number spells, with the formula language's literal limits.
 
     Magnitudes are checked on the decimal's digits and exponent before any big number is built, so text such
@@ -41,10 +42,11 @@ def exact_number(value: object, field: str, code: str = "invalid_parameter") -> 
     """
     if isinstance(value, bool):
         raise InvalidInput(f"{field} must be a number", code=code, field=field)
+    range_code = range_code or code
     if isinstance(value, Fraction):
-        return _in_range(value, field, code)
+        return _in_range(value, field, range_code)
     if isinstance(value, int):
-        return _in_range(Fraction(value), field, code)
+        return _in_range(Fraction(value), field, range_code)
     if isinstance(value, float):
         if not math.isfinite(value):
             raise InvalidInput(f"{field} must be finite, got {value!r}", code=code, field=field)
@@ -53,7 +55,7 @@ def exact_number(value: object, field: str, code: str = "invalid_parameter") -> 
         text = value.strip()
         ratio = _RATIO.fullmatch(text)
         if len(text) <= 80 and ratio and int(ratio.group(2)) != 0:
-            return _in_range(Fraction(int(ratio.group(1)), int(ratio.group(2))), field, code)
+            return _in_range(Fraction(int(ratio.group(1)), int(ratio.group(2))), field, range_code)
         if len(text) > 80 or not _DECIMAL.fullmatch(text):
             raise InvalidInput(f"{field} must be a finite number such as 0.5 or 1e-3, got {text[:40]!r}",
                                code=code, field=field)
@@ -67,7 +69,7 @@ def exact_number(value: object, field: str, code: str = "invalid_parameter") -> 
                            field=field)
     if significant and abs(value.adjusted()) > MAX_LITERAL_EXPONENT:
         raise InvalidInput(f"{field} is beyond the range 1e-{MAX_LITERAL_EXPONENT} to 1e+{MAX_LITERAL_EXPONENT}",
-                           code=code, field=field)
+                           code=range_code, field=field)
     return Fraction(value)
 
 
@@ -85,7 +87,7 @@ def check_tolerance(value: NumberLike | None, field: str = "tolerance", optional
         return None
     if isinstance(value, bool) or not isinstance(value, (int, float, Decimal, Fraction, str)):
         raise InvalidInput(f"{field} must be a number", code="invalid_tolerance", field=field)
-    exact = exact_number(value, field, code="invalid_tolerance")
+    exact = exact_number(value, field, code="invalid_tolerance", range_code="tolerance_out_of_range")
     if exact <= 0:
         raise InvalidInput(f"{field} must be a number > 0, got {_shown(value)}", code="invalid_tolerance",
                            field=field)

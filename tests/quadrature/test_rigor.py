@@ -170,3 +170,12 @@ def test_a_tolerance_below_the_results_resolution_stops_at_float64s_floor() -> N
     assert result.stop_reason == "resolution_limit" and not result.tolerance_met
     assert encloses(result.enclosure, HP.exp(HP.mpf("709.7")) - HP.exp(700))
     assert result.nodes < 50_000
+
+
+def test_the_node_budget_ends_the_work() -> None:
+    """Regression: when the compiled engine used the whole node budget short of the tolerance, the precise
+    engine started over and ran on to the deadline (8 s here). The compiled answer now stands: rigorous,
+    node_budget, within max_nodes. Reference: closed form (1 - cos 201000)/1000."""
+    result = integrate("sin(1000*x)", 0, 201, 1e-9, max_nodes=300_001)
+    assert result.stop_reason == "node_budget" and result.nodes <= 300_001 and result.precision_bits == 53
+    assert encloses(result.enclosure, (1 - HP.cos(201000)) / 1000)
