@@ -35,7 +35,15 @@ MIXES = {
     "cached": lambda rng: {"integrand": "exp(-x^2)", "lower_limit": 0, "upper_limit": 1, "tolerance": 1e-6},
     "heavy": lambda rng: {"integrand": "sin(30*x)*exp(-x)", "lower_limit": 0,
                           "upper_limit": f"{rng.randint(1, 10**6) / 10**6 + 2:.6f}", "tolerance": 1e-10},
+    "mesh": lambda rng: {"integrand": "sin(200*x)", "lower_limit": 0,
+                         "upper_limit": f"{rng.randint(1, 10**6) / 10**6 + 1:.6f}", "tolerance": 1e-8,
+                         "include_mesh": True},
+    "refused": lambda rng: {"integrand": rng.choice(["sinn(x)", "2x", "1/(x-0.5)", "log(x-2)"]),
+                            "lower_limit": 0, "upper_limit": 1},
 }
+#: the soak's mix: mostly simple and cached answers, some heavy work, meshes of a few hundred KB, refusals
+MIXES["mixed"] = lambda rng: MIXES[rng.choices(["simple", "cached", "heavy", "mesh", "refused"],
+                                               weights=[50, 25, 10, 10, 5])[0]](rng)
 
 
 @dataclass
