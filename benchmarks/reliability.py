@@ -3,6 +3,7 @@ single requests, and a flood of silent or slow connections. Loopback only; every
 
     python -m benchmarks.reliability shutdown --runs 10 --grace 3
     python -m benchmarks.reliability fairness
+    python -m benchmarks.reliability parsing
     python -m benchmarks.reliability connections --count 1100 --hold 20 --nofile 1024
 """
 
@@ -141,6 +142,40 @@ def connections(count: int, hold: float, nofile: int) -> None:
               f"server exit {stop_server(server)}")
 
 
+def parsing(items: int = 240, chars: int = 4000) -> None:
+    """A batch of ``items`` distinct formulas of ``chars`` characters each (about 1 MB), with /healthz probed
+    every 50 ms meanwhile: how long the event loop was held."""
+    server = start_server()
+    try:
+        formulas = []
+        for i in range(items):
+            terms, j = [], 0
+            while sum(len(t) + 1 for t in terms) < chars - 40:
+                terms.append(f"sin({i + 1}*x+{j})")
+                j += 1
+            formulas.append("+".join(terms))
+        body = {"items": [{"integrand": f, "lower_limit": 0, "upper_limit": 1, "tolerance": 1e-3} for f in formulas]}
+        results: dict = {}
+        batch = _post(server.url, "/v1/integrals/batch", body, results, "batch")
+        probes = []
+        while batch.is_alive() and len(probes) < 2000:
+            started = time.monotonic()
+            try:
+                httpx.get(f"{server.url}/healthz", timeout=30)
+            except httpx.HTTPError:
+                pass
+            probes.append(time.monotonic() - started)
+            time.sleep(0.05)
+        batch.join(600)
+        status, answer, seconds = results["batch"]
+        size = len(httpx.Request("POST", "http://x", json=body).content)
+        print(f"batch of {items} distinct {chars}-character formulas ({size / 1024:.0f} KiB): {status} after "
+              f"{seconds:.1f} s; /healthz probed {len(probes)} times meanwhile, slowest "
+              f"{max(probes) * 1000:.0f} ms, median {statistics.median(probes) * 1000:.1f} ms")
+    finally:
+        stop_server(server)
+
+
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     commands = parser.add_subparsers(dest="command", required=True)
@@ -148,6 +183,7 @@ def main(argv: list[str] | None = None) -> int:
     one.add_argument("--runs", type=int, default=10)
     one.add_argument("--grace", type=float, default=3.0)
     commands.add_parser("fairness")
+    commands.add_parser("parsing")
     flood = commands.add_parser("connections")
     flood.add_argument("--count", type=int, default=1100)
     flood.add_argument("--hold", type=float, default=20.0)
@@ -157,6 +193,8 @@ def main(argv: list[str] | None = None) -> int:
         shutdown(args.runs, args.grace)
     elif args.command == "fairness":
         fairness()
+    elif args.command == "parsing":
+        parsing()
     else:
         connections(args.count, args.hold, args.nofile)
     return 0

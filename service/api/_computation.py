@@ -10,6 +10,7 @@ from __future__ import annotations
 import asyncio
 import logging
 import time
+from concurrent.futures import ThreadPoolExecutor
 from decimal import Decimal
 from fractions import Fraction
 from typing import Any
@@ -32,6 +33,8 @@ log = logging.getLogger("quadcert.computation")
 
 Answer = tuple[int, dict[str, Any]]
 _INLINE_PARSE_CHARS = 256  # shorter formulas parse in microseconds; a thread hop would cost more
+#: one parsing thread: more would only take turns at the GIL with the event loop and each other
+_PARSER = ThreadPoolExecutor(max_workers=1, thread_name_prefix="quadcert-parse")
 
 
 def _fraction_text(value: Fraction) -> str:
@@ -77,7 +80,7 @@ class Computation:
                    group: str | None = None, compute: float | None = None) -> tuple[Answer, str | None]:
         try:
             if len(body.get("integrand", "")) > _INLINE_PARSE_CHARS:  # long text: parse off the event loop
-                canonical = await asyncio.to_thread(self.canonical, body)
+                canonical = await asyncio.get_running_loop().run_in_executor(_PARSER, self.canonical, body)
             else:
                 canonical = self.canonical(body)
         except QuadcertError as error:
