@@ -118,3 +118,27 @@ def test_zero_prints_as_zero() -> None:
     assert "[0, 0]" in lines[2]
     http = _integral_response(result.__dict__, {"variable": "x"})
     assert render(http, "text", "low") == "0" and render(http, "text", "high") == "0"
+
+
+def test_mesh_and_plan_answers_round_outward() -> None:
+    """The service's mesh panels and plan figures, as the worker sends them, against the engine's floats."""
+    from service.api._jobs import run_integral, run_plan
+    from service.quadrature import integrate, plan
+
+    request = {"integrand": "sin(3*x)*exp(x/3)", "lower_limit": "0.1", "upper_limit": 2, "tolerance": 1e-6,
+               "include_mesh": True}
+    sent = json.loads(dumps(run_integral(request)), parse_float=Decimal)
+    engine = integrate(**request)
+    assert len(sent["mesh"]) == len(engine.mesh)
+    for shown, panel in zip(sent["mesh"], engine.mesh):
+        assert Fraction(shown["lower"]) <= Fraction(panel.lower) and Fraction(shown["upper"]) >= Fraction(panel.upper)
+        assert Fraction(shown["contribution"][0]) <= Fraction(panel.contribution[0])
+        assert Fraction(shown["contribution"][1]) >= Fraction(panel.contribution[1])
+    arguments = {"integrand": "exp(x)", "lower_limit": 0, "upper_limit": 2, "tolerance": 0.5e-4}
+    sent_plan = json.loads(dumps(run_plan(arguments)), parse_float=Decimal)
+    exact_plan = plan(**arguments)
+    for name in ("simpson", "trapezoid"):
+        shown, rule = sent_plan[name], getattr(exact_plan, name)
+        assert Fraction(shown["spacing"]) <= Fraction(rule.spacing)
+        assert Fraction(shown["error_bound"]) >= Fraction(rule.error_bound)
+        assert Fraction(shown["derivative_bound"]) >= Fraction(rule.derivative_bound)

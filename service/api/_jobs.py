@@ -7,7 +7,7 @@ import traceback
 from typing import Any, Callable
 
 from ..errors import FormulaError, InvalidInput, NotCertifiable, QuadcertError
-from ..quadrature import check, integrate, plan
+from ..quadrature import bound_decimal, check, integrate, plan
 
 
 def _error(error: Exception) -> dict[str, Any]:
@@ -32,7 +32,13 @@ def run_integral(request: dict[str, Any]) -> dict[str, Any]:
         raise InvalidInput(f"the mesh has {len(result.mesh)} panels, more than the {limit} an answer may carry; "
                            "ask without include_mesh, or with a looser tolerance", code="mesh_too_large",
                            field="include_mesh")
-    return dataclasses.asdict(result)
+    answer = dataclasses.asdict(result)
+    if result.mesh:  # printed outward like every other bound; done here, in the worker, not on the event loop
+        answer["mesh"] = [{"lower": bound_decimal(p.lower, up=False), "upper": bound_decimal(p.upper, up=True),
+                           "contribution": [bound_decimal(p.contribution[0], up=False),
+                                            bound_decimal(p.contribution[1], up=True)], "bound": p.bound}
+                          for p in result.mesh]
+    return answer
 
 
 def run_check(request: dict[str, Any]) -> dict[str, Any]:
@@ -40,7 +46,14 @@ def run_check(request: dict[str, Any]) -> dict[str, Any]:
 
 
 def run_plan(request: dict[str, Any]) -> dict[str, Any]:
-    return dataclasses.asdict(plan(**request))
+    answer = dataclasses.asdict(plan(**request))
+    for name in ("simpson", "trapezoid"):  # spacing rounded down, bounds up, as decimals
+        rule = answer[name]
+        rule["spacing"] = bound_decimal(rule["spacing"], up=False)
+        for key in ("derivative_bound", "error_bound"):
+            if rule[key] is not None:
+                rule[key] = bound_decimal(rule[key], up=True)
+    return answer
 
 
 def run_sleep(request: dict[str, Any]) -> dict[str, Any]:  # used by fault tests only

@@ -48,6 +48,9 @@ def bound_decimal(value: float, up: bool) -> Decimal | float:
     if not math.isfinite(value):
         return value
     exact = Decimal(value)
+    shortest = Decimal(repr(value))  # reads back by definition; often already on the safe side
+    if (shortest >= exact) if up else (shortest <= exact):
+        return shortest
     context = (_UP if up else _DOWN).copy()
     # 18 digits always suffice: a directed rounding there moves less than 1e-17 relative, below half an ulp
     for digits in range(len(repr(abs(value)).split("e")[0].replace(".", "").strip("0")), 19):
