@@ -65,3 +65,9 @@ def test_exported_openapi_is_in_sync(client: TestClient) -> None:
     assert served["openapi"].startswith("3.1")
     exported = json.loads(NOTES.read_text())
     assert served == exported, "run: python -m service.api.export_openapi > openapi-notes/openapi.json"
+
+
+def test_every_json_operation_documents_malformed_body(client: TestClient) -> None:
+    document = client.get("/openapi.json").json()
+    for path in ("/v1/integrals", "/v1/integrals/batch", "/v1/checks", "/v1/plans"):
+        assert "400" in document["paths"][path]["post"]["responses"], path

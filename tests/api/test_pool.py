@@ -80,3 +80,37 @@ async def test_engine_errors_come_back_as_answers() -> None:
         assert answer["error"]["code"] == "undefined_at_point"
     finally:
         await pool.close()
+
+
+async def test_queue_wait_is_measured_and_counts_against_the_deadline() -> None:
+    """One worker busy for 1 s: a job queued behind it with a 0.3 s deadline is answered DeadlineExceeded
+    without running, and the pool reports how long its oldest job has waited (for /readyz)."""
+    pool = WorkerPool(1, 8)
+    await pool.start()
+    try:
+        busy = asyncio.create_task(pool.run("sleep", {"seconds": 1.0}, 10))
+        await asyncio.sleep(0.1)
+        waiting = asyncio.create_task(pool.run("sleep", {"seconds": 0}, 10))
+        late = asyncio.create_task(pool.run("sleep", {"seconds": 0}, 0.3))
+        await asyncio.sleep(0.4)
+        assert pool.oldest_wait() >= 0.3
+        await busy
+        assert await waiting == {"ok": {"slept": 0}}
+        with pytest.raises(DeadlineExceeded, match="queue"):
+            await late
+        assert pool.oldest_wait() == 0.0
+    finally:
+        await pool.close()
+
+
+async def test_close_answers_queued_and_running_jobs() -> None:
+    pool = WorkerPool(1, 8)
+    await pool.start()
+    running = asyncio.create_task(pool.run("sleep", {"seconds": 30}, 60))
+    queued = asyncio.create_task(pool.run("sleep", {"seconds": 0}, 60))
+    await asyncio.sleep(0.3)
+    await asyncio.wait_for(pool.close(), timeout=20)  # never waits on the sleeping worker
+    for job in (running, queued):
+        with pytest.raises(ShuttingDown):
+            await job
+    assert pool.alive == 0
