@@ -113,10 +113,17 @@ class ExactSum:
             self.units -= units
 
     def value(self) -> float:
-        """The sum, correctly rounded (inf while an infinite term is in it)."""
+        """The sum, correctly rounded (inf while an infinite term is in it, ±inf past the float range).
+
+        >>> s = ExactSum(); s.add(1.7e308); s.add(1.7e308); s.value()
+        inf
+        """
         if self.infinite:
             return math.inf
-        return self.units / (1 << self._SCALE)
+        try:
+            return self.units / (1 << self._SCALE)
+        except OverflowError:
+            return math.inf if self.units > 0 else -math.inf
 
 
 class Refiner:

@@ -179,3 +179,13 @@ def test_the_node_budget_ends_the_work() -> None:
     result = integrate("sin(1000*x)", 0, 201, 1e-9, max_nodes=300_001)
     assert result.stop_reason == "node_budget" and result.nodes <= 300_001 and result.precision_bits == 53
     assert encloses(result.enclosure, (1 - HP.cos(201000)) / 1000)
+
+
+@pytest.mark.parametrize("backend", [None, MpmathArithmetic])
+def test_panel_widths_past_the_float_range_are_refused_not_crashed(backend) -> None:
+    """Regression from the red-team run: the exact running sum of panel widths overflowed float64 and raised
+    OverflowError. 1e306·∫x⁶ over [-30, 10] is about 3.1e315 (closed form 1e306·(10⁷ + 30⁷)/7), beyond
+    float64, so the answer is the coded refusal."""
+    with pytest.raises(NotCertifiable) as refused:
+        integrate("1e306*x^6", -30, 10, 1e-8, arithmetic=backend, deadline_seconds=30)
+    assert refused.value.code == "result_out_of_range"
