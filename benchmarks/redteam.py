@@ -12,8 +12,8 @@ e^-1000 scales) and near overflow (1e300, exp(x) up to 709) included, on random 
 * ``service``: POST /v1/integrals on an in-process app with two worker processes (exact JSON intake).
 
 The reference is python-flint's ``acb.integral`` at 200 bits, a rigorous ball. A **miss** is a returned
-enclosure disjoint from that ball: a false certificate. A ball too wide to decide is counted as unchecked.
-The run prints a table of counts per path and exits 1 on any miss.
+enclosure disjoint from that ball: a false certificate. A ball too wide to decide is counted as unchecked, and an exception other than a coded refusal as a
+crash. The run prints a table of counts per path and exits 1 on any miss or crash.
 """
 
 from __future__ import annotations
@@ -50,6 +50,7 @@ class Tally:
     not_met: int = 0
     refused: int = 0
     misses: int = 0
+    crashes: int = 0
     unchecked: int = 0
     seconds: float = 0.0
     refusal_codes: dict[str, int] = field(default_factory=dict)
@@ -270,6 +271,11 @@ def main(argv: list[str] | None = None) -> int:
                     outcome = run(case, args.deadline)
                 except QuadcertError as error:
                     outcome = ("refused", error.code)
+                except Exception as error:  # noqa: BLE001 - a crash is a finding; the run goes on
+                    tallies[name].crashes += 1
+                    tallies[name].miss_examples.append(f"{name}: CRASH {type(error).__name__}: {error} on "
+                                                       f"{case.text} [{case.lower}, {case.upper}] tol {case.tolerance}")
+                    outcome = ("refused", "crash")
                 tallies[name].seconds += time.perf_counter() - started
                 record(tallies[name], case, outcome, ball, name)
             done += 1
@@ -277,17 +283,17 @@ def main(argv: list[str] | None = None) -> int:
         if service is not None:
             service.close()
     print(f"red-team run: seed {args.seed}, {done} formulas, reference flint acb.integral at {REFERENCE_BITS} bits")
-    print(f"| path | cases | certified | not met | refused | misses | unchecked | seconds |")
-    print("| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: |")
+    print("| path | cases | certified | not met | refused | misses | crashes | unchecked | seconds |")
+    print("| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |")
     for name, t in tallies.items():
-        print(f"| {name} | {t.cases} | {t.certified} | {t.not_met} | {t.refused} | {t.misses} | {t.unchecked} | "
-              f"{t.seconds:.0f} |")
+        print(f"| {name} | {t.cases} | {t.certified} | {t.not_met} | {t.refused} | {t.misses} | {t.crashes} | "
+              f"{t.unchecked} | {t.seconds:.0f} |")
     for name, t in tallies.items():
         if t.refusal_codes:
             print(f"{name} refusals: " + ", ".join(f"{k} {v}" for k, v in sorted(t.refusal_codes.items())))
     misses = [m for t in tallies.values() for m in t.miss_examples]
     for line in misses[:20]:
-        print("MISS", line)
+        print("FINDING", line)
     return 1 if misses else 0
 
 

@@ -29,7 +29,7 @@ def test_redteam_smoke_run_finds_no_false_certificate(capsys) -> None:
 
     assert redteam.main(["--cases", "6", "--seed", "5", "--deadline", "1", "--no-service"]) == 0
     printed = capsys.readouterr().out
-    assert "| default | 6 |" in printed and "MISS" not in printed
+    assert "| default | 6 |" in printed and "FINDING" not in printed
 
 
 def test_redteam_reference_catches_a_wrong_enclosure() -> None:
