@@ -133,9 +133,14 @@ class ProblemError(QuadcertError):
 
     code = "problem"
 
-    def __init__(self, problem: dict) -> None:
-        super().__init__(f"{problem.get('status')} {problem.get('code')}: {problem.get('detail')}",
-                         code=str(problem.get("code", "problem")))
+    def __init__(self, problem: dict, retry_after: float | None = None) -> None:
+        status = problem.get("status")
+        detail = str(problem.get("detail", ""))
+        super().__init__(f"{detail} (HTTP {status})" if status else detail, code=str(problem.get("code", "problem")))
         self.problem = problem
-        self.status = int(problem.get("status", 0) or 0)
+        self.status = int(status or 0)   # 0: no HTTP answer at all (the service could not be reached)
         self.column = problem.get("column")
+        self.retry_after = retry_after   # seconds, from a 503's Retry-After
+
+    def __reduce__(self) -> tuple:
+        return (type(self), (self.problem, self.retry_after))

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import os
 import xml.etree.ElementTree as ET
 from dataclasses import dataclass
 
@@ -29,4 +30,7 @@ def write_report(path: str, cases: list[CaseOutcome], suite: str = "quadcert") -
             ET.SubElement(element, "error", message=case.message, type=case.verdict).text = case.message
         else:
             ET.SubElement(element, "system-out").text = case.message
+    folder = os.path.dirname(path)
+    if folder:
+        os.makedirs(folder, exist_ok=True)  # reports/x.xml in a fresh CI workspace
     ET.ElementTree(root).write(path, encoding="utf-8", xml_declaration=True)

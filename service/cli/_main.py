@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import argparse
 import dataclasses
-import json
+import signal
 import sys
 import time
 from decimal import Decimal
@@ -13,19 +13,30 @@ from typing import Any, Sequence
 import simplejson
 
 from .. import __version__
-from ..errors import ProblemError, QuadcertError
+from ..errors import InvalidInput, ProblemError, QuadcertError
 from ..quadrature import CheckResult, IntegralResult, Plan, bound_decimal, bound_text, check, integrate, plan, shown
 from . import _junit, _table
 
 EXIT_OK, EXIT_FAIL, EXIT_UNDECIDED = 0, 1, 2
 
 
+EXIT_CODES = """exit codes:
+  0  success (check: pass, certified |claimed - exact| <= tolerance)
+  1  certified fail (check and checks only: certified |claimed - exact| > tolerance)
+  2  anything else: not certified within the budget or --timeout, a refused formula, a bad file, an
+     unreachable server"""
+
+
+def _epilog(example: str) -> str:
+    return f"{EXIT_CODES}\n\nexample:\n  {example}"
+
+
 def _parameters(pairs: list[str]) -> dict[str, str]:
     values = {}
     for pair in pairs:
         name, sep, value = pair.partition("=")
-        if not sep:
-            raise SystemExit(f"quadcert: --param takes NAME=VALUE, got {pair!r}")
+        if not sep or not name.strip():
+            raise InvalidInput(f"--param takes NAME=VALUE, got {pair!r}", code="invalid_parameter", field="param")
         values[name.strip()] = value.strip()
     return values
 
@@ -39,11 +50,21 @@ def _common(parser: argparse.ArgumentParser, tolerance_required: bool = False) -
                              + ("" if tolerance_required else " (default 1e-8)"))
     parser.add_argument("--var", default="x", help="name of the integration variable (default x)")
     parser.add_argument("--param", action="append", default=[], metavar="NAME=VALUE", help="a named parameter")
-    parser.add_argument("--url", help="use the service at this URL instead of computing in-process")
+    parser.add_argument("--url", help="use the service at this URL (http://host:port) instead of computing "
+                                      "in-process")
+    _timeout(parser)
+
+
+def _timeout(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("--timeout", type=float, metavar="SECONDS",
+                        help="give up after this long: the answer so far (not certified: exit 2), or an error")
 
 
 def _engine_options(args: argparse.Namespace) -> dict[str, Any]:
     options: dict[str, Any] = {"variable": args.var}
+    left = _time_left(args)
+    if left is not None and not args.url:
+        options["deadline_seconds"] = max(left * 0.9, 1e-3)  # the engine returns what it has by then
     if args.param:
         options["parameters"] = _parameters(args.param)
     for name in ("relative_tolerance", "max_nodes"):
@@ -52,10 +73,16 @@ def _engine_options(args: argparse.Namespace) -> dict[str, Any]:
     return options
 
 
-def _client(url: str):  # noqa: ANN202 - imported lazily so offline use never needs a network stack
+def _time_left(args: argparse.Namespace) -> float | None:
+    until = getattr(args, "until", None)
+    return None if until is None else max(until - time.monotonic(), 1e-3)
+
+
+def _client(url: str, args: argparse.Namespace | None = None):  # noqa: ANN202 - imported lazily
     from ..client import Client
 
-    return Client(url)
+    left = None if args is None else _time_left(args)
+    return Client(url, timeout=60.0 if left is None else left)
 
 
 def _print_problem(error: QuadcertError) -> None:
@@ -71,7 +98,7 @@ def _integrate(args: argparse.Namespace) -> int:
     if args.mesh:
         options["include_mesh"] = True
     if args.url:
-        with _client(args.url) as client:
+        with _client(args.url, args) as client:
             result = client.integrate(args.formula, args.lower, args.upper, args.tol, **options)
     else:
         result = integrate(args.formula, args.lower, args.upper, args.tol, **options)
@@ -100,26 +127,74 @@ def _describe(result: IntegralResult) -> str:
 
 def _check(args: argparse.Namespace) -> int:
     name = args.name or f"{args.formula} on [{args.lower}, {args.upper}]"
+    item = {"integrand": args.formula, "lower_limit": args.lower, "upper_limit": args.upper,
+            "claimed_value": args.claimed, "tolerance": args.tol, **_engine_options(args)}
+    case, outcome = _one_check(args, name, item)
+    if args.json and outcome is not None:
+        print(_json(_verdict_json(outcome)))
+    elif outcome is not None:
+        print(case.message)
+    if args.junit:
+        _junit.write_report(args.junit, [case])
+    return _exit_for([case])
+
+
+def _one_check(args: argparse.Namespace, name: str, item: dict[str, Any]
+               ) -> tuple[_junit.CaseOutcome, CheckResult | None]:
+    """One verdict as a JUnit case; any failure to decide is an ``error`` case, never a ``fail``."""
     started = time.perf_counter()
+    item = dict(item)
+    item.pop("name", None)
     try:
         if args.url:
-            with _client(args.url) as client:
-                outcome = client.check(args.formula, args.lower, args.upper, args.claimed, args.tol,
-                                       **_engine_options(args))
+            with _client(args.url, args) as client:
+                outcome = client.check(**item)
         else:
-            outcome = check(args.formula, args.lower, args.upper, args.claimed, args.tol, **_engine_options(args))
+            left = _time_left(args)
+            if left is not None:
+                item.setdefault("deadline_seconds", max(left * 0.9, 1e-3))
+            outcome = check(**item)
     except QuadcertError as error:
         _print_problem(error)
-        if args.junit:
-            _junit.write_report(args.junit, [_junit.CaseOutcome(name, "error", f"{error.code}: {error.message}",
-                                                                time.perf_counter() - started)])
-        return EXIT_UNDECIDED
-    message = _verdict_text(outcome)
-    print(_json(_verdict_json(outcome)) if args.json else message)
+        return _junit.CaseOutcome(name, "error", f"{error.code}: {error.message}", time.perf_counter() - started), None
+    return _junit.CaseOutcome(name, outcome.verdict, _verdict_text(outcome), time.perf_counter() - started), outcome
+
+
+def _exit_for(cases: list[_junit.CaseOutcome]) -> int:
+    """1 if any check is a certified fail; else 2 if any is undecided or an error; else 0."""
+    verdicts = {case.verdict for case in cases}
+    if "fail" in verdicts:
+        return EXIT_FAIL
+    return EXIT_UNDECIDED if verdicts - {"pass"} else EXIT_OK
+
+
+def _checks(args: argparse.Namespace) -> int:
+    from ._checks import read_checks
+
+    items = read_checks(args.file)
+    cases = []
+    for item in _progress(items, "checks"):
+        if _time_left(args) is not None and _time_left(args) <= 1e-3:
+            cases.append(_junit.CaseOutcome(item["name"], "error", "timeout: not started before --timeout", 0.0))
+            continue
+        case, _ = _one_check(args, item["name"], item)
+        cases.append(case)
+        if not args.quiet:
+            print(f"{case.verdict:9s} {case.name}: {case.message}")
     if args.junit:
-        _junit.write_report(args.junit, [_junit.CaseOutcome(name, outcome.verdict, message,
-                                                            time.perf_counter() - started)])
-    return {"pass": EXIT_OK, "fail": EXIT_FAIL}.get(outcome.verdict, EXIT_UNDECIDED)
+        _junit.write_report(args.junit, cases)
+    counts = {v: sum(c.verdict == v for c in cases) for v in ("pass", "fail", "undecided", "error")}
+    print(f"{len(cases)} checks: " + ", ".join(f"{n} {v}" for v, n in counts.items() if n), file=sys.stderr)
+    return _exit_for(cases)
+
+
+def _progress(items: list[Any], unit: str) -> Any:
+    """A progress bar on stderr when it is a terminal (tqdm); the plain list otherwise."""
+    if not sys.stderr.isatty() or len(items) < 2:
+        return items
+    from tqdm import tqdm
+
+    return tqdm(items, unit=unit[:-1], file=sys.stderr, leave=False)
 
 
 def _verdict_text(outcome: CheckResult) -> str:
@@ -157,13 +232,16 @@ def _batch(args: argparse.Namespace) -> int:
         header, rows, requests = _table.read_rows(stream, args.tol)
     outcomes: list[dict[str, Any]] = []
     if args.url:
-        with _client(args.url) as client:
+        with _client(args.url, args) as client:
             for start in range(0, len(requests), 200):
                 for item in client.batch(requests[start:start + 200]):
                     outcomes.append(_table.outcome_of(problem=item.problem) if isinstance(item, ProblemError)
                                     else _table.outcome_of(item))
     else:
-        for request in requests:
+        for request in _progress(requests, "rows"):
+            left = _time_left(args)
+            if left is not None:
+                request = {**request, "deadline_seconds": max(left * 0.9, 1e-3)}
             try:
                 outcomes.append(_table.outcome_of(integrate(**request)))
             except QuadcertError as error:
@@ -182,7 +260,7 @@ def _batch(args: argparse.Namespace) -> int:
 def _plan(args: argparse.Namespace) -> int:
     options = _engine_options(args)
     if args.url:
-        with _client(args.url) as client:
+        with _client(args.url, args) as client:
             result = client.plan(args.formula, args.lower, args.upper, args.tol, **options)
     else:
         result = plan(args.formula, args.lower, args.upper, args.tol, **options)
@@ -223,51 +301,91 @@ def _serve(args: argparse.Namespace) -> int:
 
 
 def build_parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(prog="quadcert", description="Certified definite integrals.")
+    parser = argparse.ArgumentParser(prog="quadcert", description="Certified definite integrals.",
+                                     epilog=EXIT_CODES, formatter_class=argparse.RawDescriptionHelpFormatter)
     parser.add_argument("--version", action="version", version=f"quadcert {__version__}")
     commands = parser.add_subparsers(dest="command", required=True)
 
-    serve = commands.add_parser("serve", help="run the HTTP service")
+    def command(name: str, help: str, example: str) -> argparse.ArgumentParser:
+        return commands.add_parser(name, help=help, description=help, epilog=_epilog(example),
+                                   formatter_class=argparse.RawDescriptionHelpFormatter)
+
+    serve = commands.add_parser("serve", help="run the HTTP service (keeps running until stopped)",
+                                description="Run the HTTP service. It keeps running until SIGTERM or Ctrl-C.",
+                                epilog="example:\n  quadcert serve --port 8000 &",
+                                formatter_class=argparse.RawDescriptionHelpFormatter)
     serve.add_argument("--host", default=None, help="address to bind (default 127.0.0.1)")
     serve.add_argument("--port", type=int, default=None, help="port (default 8000)")
     serve.add_argument("--workers", type=int, default=None, help="engine worker processes (default: CPU count)")
     serve.set_defaults(run=_serve)
 
-    one = commands.add_parser("integrate", help="certify one integral")
+    one = command("integrate", "certify one integral", "quadcert integrate 'exp(-x^2)' 0 1 --tol 1e-10")
     _common(one)
     one.add_argument("--rel-tol", dest="relative_tolerance",
                      help="also accept an error bound <= this times |integral| (below 1)")
-    one.add_argument("--max-nodes", dest="max_nodes", type=int)
+    one.add_argument("--max-nodes", dest="max_nodes", type=int,
+                     help="evaluation budget (default 200001); past it the enclosure is returned, not certified")
     one.add_argument("--mesh", action="store_true", help="also print every panel")
-    one.add_argument("--json", action="store_true", help="machine-readable output")
+    one.add_argument("--json", action="store_true", help="print the result as JSON")
     one.set_defaults(run=_integrate)
 
-    verdict = commands.add_parser("check", help="pass/fail verdict on a claimed value (exit 0/1/2)")
+    verdict = command("check", "pass/fail verdict on one claimed value",
+                      "quadcert check 'x^2*exp(-x)' 0 5 --claimed 1.75 --tol 1e-9 --junit reports/q.xml")
     _common(verdict, tolerance_required=True)
     verdict.add_argument("--claimed", required=True,
                          help="the value under test, read as the exact decimal typed (not rounded to float64)")
-    verdict.add_argument("--max-nodes", dest="max_nodes", type=int)
-    verdict.add_argument("--junit", metavar="FILE", help="write a JUnit XML report")
+    verdict.add_argument("--max-nodes", dest="max_nodes", type=int, help="evaluation budget (default 200001)")
+    verdict.add_argument("--junit", metavar="FILE", help="write a JUnit XML report (folders are created)")
     verdict.add_argument("--name", help="test case name in the report")
-    verdict.add_argument("--json", action="store_true")
+    verdict.add_argument("--json", action="store_true", help="print the verdict as JSON")
     verdict.set_defaults(run=_check)
 
-    table = commands.add_parser("batch", help="certify one integral per CSV row")
+    many = command("checks", "verdicts on a file of claimed values (CSV or TOML), one JUnit report",
+                   "quadcert checks ci/integrals.toml --junit reports/quadcert.xml")
+    many.add_argument("file", help="checks: .toml with [[check]] tables, or CSV with a header (see the README)")
+    many.add_argument("--junit", metavar="FILE", help="write one JUnit XML report with a test case per check")
+    many.add_argument("--url", help="use the service at this URL instead of computing in-process")
+    many.add_argument("--quiet", action="store_true", help="print only the summary line")
+    _timeout(many)
+    many.set_defaults(run=_checks)
+
+    table = command("batch", "certify one integral per CSV row",
+                    "quadcert batch integrals.csv -o certified.csv")
     table.add_argument("input", help="CSV with integrand, lower_limit, upper_limit[, tolerance, variable, ...]")
     table.add_argument("-o", "--output", help="output CSV (default: standard output)")
     table.add_argument("--tol", default="1e-8", help="tolerance for rows without one (default 1e-8)")
-    table.add_argument("--url")
+    table.add_argument("--url", help="use the service at this URL instead of computing in-process")
+    _timeout(table)
     table.set_defaults(run=_batch)
 
-    planner = commands.add_parser("plan", help="a priori uniform node counts")
+    planner = command("plan", "a priori uniform node counts", "quadcert plan 'exp(x)' 0 2 --tol 0.5e-4")
     _common(planner)
-    planner.add_argument("--json", action="store_true")
+    planner.add_argument("--json", action="store_true", help="print the plan as JSON")
     planner.set_defaults(run=_plan)
     return parser
 
 
+class _TimedOut(Exception):
+    pass
+
+
+def _alarm(signum: int, frame: Any) -> None:
+    raise _TimedOut()
+
+
 def main(argv: Sequence[str] | None = None) -> int:
+    """Run one command. Exit codes are a contract for CI (see EXIT_CODES): every path that cannot give a
+    verdict, a traceback included, ends with one line on stderr and exit 2, never 1."""
     args = build_parser().parse_args(argv)
+    timeout = getattr(args, "timeout", None)
+    if timeout is not None:
+        if not timeout > 0:
+            print("quadcert: --timeout must be a positive number of seconds", file=sys.stderr)
+            return EXIT_UNDECIDED
+        args.until = time.monotonic() + timeout
+        if hasattr(signal, "setitimer"):  # a hard stop just after the soft deadlines the engine keeps itself
+            signal.signal(signal.SIGALRM, _alarm)
+            signal.setitimer(signal.ITIMER_REAL, timeout + 1.0)
     if args.command != "serve":
         from ..arithmetic import claim_flint_context
 
@@ -277,6 +395,15 @@ def main(argv: Sequence[str] | None = None) -> int:
     except QuadcertError as error:
         _print_problem(error)
         return EXIT_UNDECIDED
-    except OSError as error:
-        print(f"quadcert: {error}", file=sys.stderr)
+    except _TimedOut:
+        print(f"quadcert: timed_out: no answer within --timeout {timeout:g} s", file=sys.stderr)
         return EXIT_UNDECIDED
+    except OSError as error:
+        print(f"quadcert: {error.strerror or error}: {error.filename or ''}".rstrip(": "), file=sys.stderr)
+        return EXIT_UNDECIDED
+    except Exception as error:  # noqa: BLE001 - the exit code is a contract: an error is never a verdict
+        print(f"quadcert: internal_error: {type(error).__name__}: {error}", file=sys.stderr)
+        return EXIT_UNDECIDED
+    finally:
+        if timeout is not None and hasattr(signal, "setitimer"):
+            signal.setitimer(signal.ITIMER_REAL, 0)

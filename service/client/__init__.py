@@ -6,9 +6,13 @@
 ...     result.enclosure
 (0.7468241328123..., 0.7468241328125...)
 
-Problem responses are raised as :class:`service.errors.ProblemError`.
+Problem responses are raised as :class:`ProblemError` (``status`` 0 when no HTTP answer came at all: code
+``service_unreachable``, ``timed_out`` or ``invalid_url``). Calls that get 503 or no answer are sent again, up to
+three tries in all, waiting as the server's ``Retry-After`` says (every call is a pure computation, so repeating
+it is safe).
 """
 
+from ..errors import ProblemError
 from ._client import AsyncClient, Client, check_from, integral_from, plan_from
 
-__all__ = ["AsyncClient", "Client", "check_from", "integral_from", "plan_from"]
+__all__ = ["AsyncClient", "Client", "ProblemError", "check_from", "integral_from", "plan_from"]

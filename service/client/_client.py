@@ -7,6 +7,7 @@ from typing import Any, Mapping
 
 import httpx
 import simplejson
+from tenacity import AsyncRetrying, Retrying, retry_if_exception, stop_after_attempt
 
 from ..errors import ProblemError
 from ..quadrature import CheckResult, IntegralResult, PanelReport, Plan, RulePlan
@@ -79,11 +80,59 @@ def _answer(response: httpx.Response) -> dict[str, Any]:
     except ValueError:
         body = None
     if response.status_code >= 400 or not isinstance(body, dict):
+        retry_after = _seconds(response.headers.get("retry-after"))
         if isinstance(body, dict) and "code" in body:
-            raise ProblemError(body)
+            raise ProblemError(body, retry_after)
         raise ProblemError({"status": response.status_code, "code": "unexpected_response",
-                            "detail": response.text[:200]})
+                            "detail": response.text[:200]}, retry_after)
     return body
+
+
+def _seconds(header: str | None) -> float | None:
+    try:
+        return max(0.0, float(header)) if header is not None else None
+    except ValueError:
+        return None
+
+
+def _unreachable(base_url: str, error: httpx.HTTPError) -> ProblemError:
+    """A transport failure as an error of our own hierarchy (status 0: no HTTP answer)."""
+    kind = "timed_out" if isinstance(error, httpx.TimeoutException) else "service_unreachable"
+    return ProblemError({"status": 0, "code": kind,
+                         "detail": f"no answer from {base_url}: {type(error).__name__}: {error}"})
+
+
+#: at most this many tries for one call, and at most this long between two
+ATTEMPTS = 3
+LONGEST_WAIT = 30.0
+
+
+def _retryable(error: BaseException) -> bool:
+    """503 (saturated, draining, a lost worker, too many connections) and transport failures: every call
+    here is a pure computation, so sending it again is always safe."""
+    return isinstance(error, ProblemError) and error.status in (0, 503) and error.code != "timed_out"
+
+
+def _wait(state: Any) -> float:
+    """The server's Retry-After when it gave one, else 0.5 s, 1 s, 2 s ..."""
+    error = state.outcome.exception() if state.outcome else None
+    advised = getattr(error, "retry_after", None)
+    if advised is not None:
+        return min(advised, LONGEST_WAIT)
+    return min(0.5 * 2 ** (state.attempt_number - 1), LONGEST_WAIT)
+
+
+def _retrying(attempts: int) -> dict[str, Any]:
+    return {"stop": stop_after_attempt(max(1, attempts)), "wait": _wait, "retry": retry_if_exception(_retryable),
+            "reraise": True}
+
+
+def _checked_url(url: str) -> str:
+    """A base URL with its scheme: ``localhost:8000`` alone is a mistake to name, not to guess at."""
+    if not url.startswith(("http://", "https://")):
+        raise ProblemError({"status": 0, "code": "invalid_url",
+                            "detail": f"{url!r} is not an http:// or https:// URL; write http://{url}"})
+    return url
 
 
 def _batch(body: dict[str, Any]) -> list[IntegralResult | ProblemError]:
@@ -94,8 +143,21 @@ def _batch(body: dict[str, Any]) -> list[IntegralResult | ProblemError]:
 class Client:
     """Blocking client. Pass ``transport=httpx.ASGITransport(app)`` to talk to an app in-process."""
 
-    def __init__(self, base_url: str = DEFAULT_URL, *, timeout: float = 60.0, **httpx_options: Any) -> None:
-        self._http = httpx.Client(base_url=base_url, timeout=timeout, **httpx_options)
+    def __init__(self, base_url: str = DEFAULT_URL, *, timeout: float = 60.0, attempts: int = ATTEMPTS,
+                 **httpx_options: Any) -> None:
+        self._http = httpx.Client(base_url=_checked_url(base_url), timeout=timeout, **httpx_options)
+        self._attempts = attempts
+
+    def _post(self, path: str, body: Any) -> dict[str, Any]:
+        """POST with retries on 503 (honouring Retry-After) and transport failures, which become ProblemError."""
+        for attempt in Retrying(**_retrying(self._attempts)):
+            with attempt:
+                try:
+                    response = self._http.post(path, content=_encode(body), headers=_JSON)
+                except httpx.HTTPError as error:
+                    raise _unreachable(str(self._http.base_url), error) from None
+                return _answer(response)
+        raise AssertionError("unreachable")  # tenacity either returns or re-raises
 
     def __enter__(self) -> "Client":
         return self
@@ -109,20 +171,20 @@ class Client:
     def integrate(self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8,
                   **options: Any) -> IntegralResult:
         body = _request(integrand, lower_limit, upper_limit, tolerance, options)
-        return integral_from(_answer(self._http.post("/v1/integrals", content=_encode(body), headers=_JSON)))
+        return integral_from(self._post("/v1/integrals", body))
 
     def batch(self, items: list[dict[str, Any]]) -> list[IntegralResult | ProblemError]:
-        return _batch(_answer(self._http.post("/v1/integrals/batch", content=_encode({"items": [_exact_numbers(i) for i in items]}), headers=_JSON)))
+        return _batch(self._post("/v1/integrals/batch", {"items": [_exact_numbers(i) for i in items]}))
 
     def check(self, integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: float,
               tolerance: float = 1e-8, **options: Any) -> CheckResult:
         body = _request(integrand, lower_limit, upper_limit, tolerance, {**options, "claimed_value": claimed_value})
-        return check_from(_answer(self._http.post("/v1/checks", content=_encode(body), headers=_JSON)))
+        return check_from(self._post("/v1/checks", body))
 
     def plan(self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8,
              **options: Any) -> Plan:
         body = _request(integrand, lower_limit, upper_limit, tolerance, options)
-        return plan_from(_answer(self._http.post("/v1/plans", content=_encode(body), headers=_JSON)))
+        return plan_from(self._post("/v1/plans", body))
 
     def healthy(self) -> bool:
         try:
@@ -134,8 +196,20 @@ class Client:
 class AsyncClient:
     """The same calls as :class:`Client`, awaitable."""
 
-    def __init__(self, base_url: str = DEFAULT_URL, *, timeout: float = 60.0, **httpx_options: Any) -> None:
-        self._http = httpx.AsyncClient(base_url=base_url, timeout=timeout, **httpx_options)
+    def __init__(self, base_url: str = DEFAULT_URL, *, timeout: float = 60.0, attempts: int = ATTEMPTS,
+                 **httpx_options: Any) -> None:
+        self._http = httpx.AsyncClient(base_url=_checked_url(base_url), timeout=timeout, **httpx_options)
+        self._attempts = attempts
+
+    async def _post(self, path: str, body: Any) -> dict[str, Any]:
+        async for attempt in AsyncRetrying(**_retrying(self._attempts)):
+            with attempt:
+                try:
+                    response = await self._http.post(path, content=_encode(body), headers=_JSON)
+                except httpx.HTTPError as error:
+                    raise _unreachable(str(self._http.base_url), error) from None
+                return _answer(response)
+        raise AssertionError("unreachable")
 
     async def __aenter__(self) -> "AsyncClient":
         return self
@@ -149,17 +223,17 @@ class AsyncClient:
     async def integrate(self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8,
                         **options: Any) -> IntegralResult:
         body = _request(integrand, lower_limit, upper_limit, tolerance, options)
-        return integral_from(_answer(await self._http.post("/v1/integrals", content=_encode(body), headers=_JSON)))
+        return integral_from(await self._post("/v1/integrals", body))
 
     async def batch(self, items: list[dict[str, Any]]) -> list[IntegralResult | ProblemError]:
-        return _batch(_answer(await self._http.post("/v1/integrals/batch", content=_encode({"items": [_exact_numbers(i) for i in items]}), headers=_JSON)))
+        return _batch(await self._post("/v1/integrals/batch", {"items": [_exact_numbers(i) for i in items]}))
 
     async def check(self, integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: float,
                     tolerance: float = 1e-8, **options: Any) -> CheckResult:
         body = _request(integrand, lower_limit, upper_limit, tolerance, {**options, "claimed_value": claimed_value})
-        return check_from(_answer(await self._http.post("/v1/checks", content=_encode(body), headers=_JSON)))
+        return check_from(await self._post("/v1/checks", body))
 
     async def plan(self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8,
                    **options: Any) -> Plan:
         body = _request(integrand, lower_limit, upper_limit, tolerance, options)
-        return plan_from(_answer(await self._http.post("/v1/plans", content=_encode(body), headers=_JSON)))
+        return plan_from(await self._post("/v1/plans", body))
