@@ -228,8 +228,8 @@ def _json(content: Any) -> str:
 
 
 def _batch(args: argparse.Namespace) -> int:
-    with open(args.input, newline="", encoding="utf-8") as stream:
-        header, rows, requests = _table.read_rows(stream, args.tol)
+    with open(args.input, newline="", encoding="utf-8-sig") as stream:  # -sig: spreadsheets write a BOM
+        header, rows, requests, dialect = _table.read_rows(stream, args.tol)
     outcomes: list[dict[str, Any]] = []
     if args.url:
         with _client(args.url, args) as client:
@@ -248,7 +248,7 @@ def _batch(args: argparse.Namespace) -> int:
                 outcomes.append(_table.outcome_of(problem={"code": error.code, "detail": error.message}))
     output = open(args.output, "w", newline="", encoding="utf-8") if args.output else sys.stdout
     try:
-        _table.write_rows(output, header, rows, outcomes)
+        _table.write_rows(output, header, rows, outcomes, dialect)
     finally:
         if args.output:
             output.close()

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from urllib.parse import urlencode
 
+import pytest
 from fastapi.testclient import TestClient
 
 from tests.conftest import HP, encloses
@@ -69,3 +70,26 @@ def test_typical_url_is_short() -> None:
         {"integrand": "1/sqrt(1 - 0.5*sin(x)^2)", "lower_limit": "0", "upper_limit": "pi/2", "tolerance": "1e-10",
          "field": "value"})
     assert len(url) < 2048
+
+
+def test_urls_as_people_type_them_get_hints(client: TestClient) -> None:
+    """A raw + is a space in a URL; comma decimals and comma-joined parameters come from spreadsheets."""
+    cases = [("integrand=x^2+1&lower_limit=0&upper_limit=1", "%2B"),
+             ("integrand=x&lower_limit=0&upper_limit=1.0E+2", "%2B"),
+             ("integrand=x&lower_limit=0&upper_limit=0,5", "dot as the decimal separator"),
+             ("integrand=x&lower_limit=0&upper_limit=1&tolerance=0,000001", "dot as the decimal separator"),
+             ("integrand=k*x&lower_limit=0&upper_limit=1&parameter=k:0,5", "dot as the decimal separator"),
+             ("integrand=k*x0&lower_limit=0&upper_limit=1&parameter=k:2,x0:5", "its own parameter=")]
+    for query, expected in cases:
+        response = client.get("/v1/integral?" + query)
+        assert response.status_code == 422 and expected in response.text, (query, response.text)
+    fine = client.get("/v1/integral?integrand=x%5E2%2B1&lower_limit=0&upper_limit=1")
+    assert fine.status_code == 200 and float(fine.text) == pytest.approx(4 / 3)  # closed form 1/3 + 1
+
+
+def test_unknown_query_keys_are_refused_and_max_nodes_is_honoured(client: TestClient) -> None:
+    for key, nearest in (("tol", "tolerance"), ("parameters", "parameter")):
+        response = client.get(f"/v1/integral?integrand=x&lower_limit=0&upper_limit=1&{key}=1")
+        assert response.status_code == 422 and "unknown_query_key" in response.text and nearest in response.text
+    budget = client.get("/v1/integral?integrand=sin(50*x)&lower_limit=0&upper_limit=3&max_nodes=5&format=json")
+    assert budget.status_code == 422 and budget.json()["code"] == "tolerance_not_met"

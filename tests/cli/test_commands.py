@@ -104,3 +104,19 @@ def test_printed_bounds_round_outward(capsys) -> None:
     body = json.loads(capsys.readouterr().out, parse_float=Decimal)
     printed = Decimal(lines[3].split()[2])
     assert printed >= body["error_bound"]
+
+
+def test_batch_reads_spreadsheet_exports_and_parameter_columns(tmp_path, capsys) -> None:
+    """A UTF-8 byte-order mark and semicolons, as comma-decimal spreadsheets export them; one column per
+    parameter, so one file sweeps k. Closed form: ∫₀¹ k·x dx = k/2."""
+    source = tmp_path / "sweep.csv"
+    source.write_bytes("\ufeffintegrand;lower_limit;upper_limit;parameter.k\nk*x;0;1;2\nk*x;0;1;3\n".encode())
+    out = tmp_path / "out.csv"
+    assert main(["batch", str(source), "-o", str(out)]) == 0
+    lines = out.read_text().splitlines()
+    assert lines[0].split(";")[:4] == ["integrand", "lower_limit", "upper_limit", "parameter.k"]
+    header = lines[0].split(";")
+    for line, k in zip(lines[1:], (2, 3)):
+        row = dict(zip(header, line.split(";")))
+        assert float(row["low"]) <= k / 2 <= float(row["high"])
+        assert row["status"] == "certified" and row["detail"] == ""  # success rows leave detail empty

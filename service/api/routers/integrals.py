@@ -15,6 +15,7 @@ from ...errors import InvalidInput, QuadcertError
 from ...quadrature import bound_text, shown
 from .._computation import _problem_args
 from .._cache import cache_key
+from .._cell_hints import hint, refuse_unknown_keys
 from .._formats import MEDIA_TYPES, render, render_problem
 from .._jobs import _error
 from .._problems import PROBLEM_MEDIA_TYPE, problem_body
@@ -85,23 +86,28 @@ async def read_integral(
     parameter: Annotated[list[str] | None, Query(description="name:value, repeatable")] = None,
     format: Literal["text", "csv", "xml", "json"] = "text",
     field: Literal["value", "error_bound", "low", "high", "nodes"] | None = None,
+    max_nodes: Annotated[int | None, Query(ge=3, description="evaluation budget; the server default if absent")]
+    = None,
 ) -> Response:
     body = {"integrand": integrand, "lower_limit": lower_limit, "upper_limit": upper_limit,
             "tolerance": _query_number(tolerance), "variable": variable,
-            "relative_tolerance": None if relative_tolerance is None else _query_number(relative_tolerance)}
+            "relative_tolerance": None if relative_tolerance is None else _query_number(relative_tolerance),
+            "max_nodes": max_nodes}
     engine = computation(request)
     try:
+        refuse_unknown_keys(list(request.query_params.keys()), GET_KEYS)
         _refuse_repeated_keys(request)
         body["parameters"] = _parameters(parameter or [])
         tag = _etag(engine.canonical(body), format, field)
     except QuadcertError as error:
-        return _plain_problem(problem_body(**_args(error), **context(request)), format, request)
+        return _plain_problem(_with_hint(problem_body(**_args(error), **context(request)), request), format,
+                              request)
     headers = {"ETag": tag, "Cache-Control": "public, max-age=86400"}
     if _matches(request.headers.get("if-none-match"), tag):
         return Response(status_code=304, headers=headers)
     (status, answer), _ = await engine.integral(body, context(request))
     if status != 200:
-        return _plain_problem(answer, format, request)
+        return _plain_problem(_with_hint(answer, request), format, request)
     if not answer["tolerance_met"]:
         code = "deadline_exceeded" if answer["stop_reason"] == "deadline" else "tolerance_not_met"
         low, high = answer["enclosure"]
@@ -112,6 +118,10 @@ async def read_integral(
     if format == "json":
         return ExactJSONResponse(answer, headers=headers)
     return Response(render(answer, format, field), media_type=MEDIA_TYPES[format], headers=headers)
+
+
+GET_KEYS = ("integrand", "lower_limit", "upper_limit", "tolerance", "variable", "relative_tolerance", "parameter",
+            "format", "field", "max_nodes")
 
 
 def _query_number(text: str) -> Decimal | str:
@@ -129,6 +139,12 @@ def _parameters(pairs: list[str]) -> dict[str, str]:
                                field="parameter")
         values[name.strip()] = value.strip()
     return values
+
+
+def _with_hint(problem: dict, request: Request) -> dict:
+    """The problem with a sentence on how the URL was probably mistyped, when its raw text shows it."""
+    extra = hint(request.scope.get("query_string", b""), problem.get("field"))
+    return {**problem, "detail": problem["detail"] + extra} if extra else problem
 
 
 def _refuse_repeated_keys(request: Request) -> None:
