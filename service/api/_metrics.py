@@ -5,7 +5,7 @@ from __future__ import annotations
 from typing import TYPE_CHECKING, Iterator
 
 from prometheus_client import CollectorRegistry, Counter, Histogram
-from prometheus_client.core import GaugeMetricFamily
+from prometheus_client.core import CounterMetricFamily, GaugeMetricFamily
 from prometheus_client.registry import Collector
 
 if TYPE_CHECKING:
@@ -17,14 +17,16 @@ class _PoolCollector(Collector):
     def __init__(self, pool: "WorkerPool", cache: "ResultCache") -> None:
         self.pool, self.cache = pool, cache
 
-    def collect(self) -> Iterator[GaugeMetricFamily]:
+    def collect(self) -> Iterator[GaugeMetricFamily | CounterMetricFamily]:
         yield GaugeMetricFamily("quadcert_jobs_pending", "Jobs queued or running", value=self.pool.pending)
         yield GaugeMetricFamily("quadcert_workers_alive", "Engine worker processes alive", value=self.pool.alive)
-        yield GaugeMetricFamily("quadcert_worker_restarts", "Workers replaced after a deadline or a crash",
-                                value=self.pool.restarts)
+        yield CounterMetricFamily("quadcert_worker_restarts", "Workers replaced after a deadline or a crash",
+                                  value=self.pool.restarts)
         yield GaugeMetricFamily("quadcert_cache_entries", "Results held in the cache", value=len(self.cache))
-        yield GaugeMetricFamily("quadcert_cache_hits", "Cache hits since start", value=self.cache.hits)
-        yield GaugeMetricFamily("quadcert_cache_misses", "Cache misses since start", value=self.cache.misses)
+        yield GaugeMetricFamily("quadcert_cache_bytes", "Estimated memory the cached results hold",
+                                value=self.cache.bytes)
+        yield CounterMetricFamily("quadcert_cache_hits", "Cache hits since start", value=self.cache.hits)
+        yield CounterMetricFamily("quadcert_cache_misses", "Cache misses since start", value=self.cache.misses)
 
 
 class Metrics:

@@ -12,47 +12,116 @@ from .. import __version__
 
 PROBLEM_MEDIA_TYPE = "application/problem+json"
 
-#: code -> (HTTP status, title); codes not listed fall back by their origin
-CODES: dict[str, tuple[int, str]] = {
-    "invalid_request": (422, "The request body does not match the schema"),
-    "malformed_body": (400, "The request body is not valid JSON text"),
-    "malformed_request": (400, "The request is not HTTP this server can read"),
-    "request_timeout": (408, "The request did not arrive in time"),
-    "too_many_connections": (503, "Too many open connections"),
-    "body_too_large": (413, "The request body is too large"),
-    "not_found": (404, "No such resource"),
-    "method_not_allowed": (405, "Method not allowed on this resource"),
-    "not_acceptable": (406, "Unsupported format"),
-    "saturated": (503, "The service is at capacity; retry shortly"),
-    "shutting_down": (503, "The service is shutting down"),
-    "worker_lost": (503, "The computation's worker stopped; retry"),
-    "deadline_exceeded": (504, "The computation passed its deadline"),
-    "tolerance_not_met": (422, "The tolerance could not be certified within the budget"),
-    "batch_too_large": (413, "Too many items in one batch"),
-    "internal_error": (500, "Internal error"),
-    "not_certifiable": (422, "The integral cannot be certified"),
-    "unbounded_near": (422, "The integrand may be unbounded or undefined near a point"),
-    "undefined_at_point": (422, "The integrand is undefined at a point of the interval"),
-    "undefined_on_interval": (422, "The integrand is undefined on part of the interval"),
-    "magnitude_exceeded": (422, "A value in the computation is too large"),
-    "result_out_of_range": (422, "The integral is beyond the float64 range"),
-    "degenerate_interval": (422, "The limits are too close to plan a mesh"),
-    "plan_too_large": (422, "The plan needs too many intervals"),
-    "mesh_too_large": (422, "The mesh is too large to send"),
-    "repeated_query_key": (422, "A query key is given more than once"),
+_FORMULA = "The formula cannot be read"
+_INPUT = "A request value is unusable"
+_CERTIFY = "The integral cannot be certified"
+_BUSY = "The service cannot take the work now"
+
+#: every problem code, documented once: code -> (HTTP status, title, what it means and what to change).
+#: /problems/{code} serves the description; tests/api/test_problem_types.py checks that every code the
+#: code base can raise is here.
+PROBLEM_TYPES: dict[str, tuple[int, str, str]] = {
+    # the request itself
+    "invalid_request": (422, "The request body does not match the schema",
+                        "A field is missing, has the wrong type, or is not known; 'errors' lists each one."),
+    "malformed_body": (400, "The request body is not JSON text", "Send a JSON object; 'detail' says where the "
+                       "text stopped being JSON."),
+    "malformed_request": (400, "The request is not HTTP this server can read",
+                          "The bytes were not an HTTP/1.1 request, or its request line or headers were too long."),
+    "request_timeout": (408, "The request did not arrive in time",
+                        "Headers and body must arrive whole within the server's read timeout."),
+    "body_too_large": (413, "The request body is too large", "Send less than the server's body limit."),
+    "batch_too_large": (413, "Too many items in one batch", "Split the batch."),
+    "not_found": (404, "No such resource", "See /openapi.json for the resources."),
+    "method_not_allowed": (405, "Method not allowed on this resource", "The Allow header lists the methods."),
+    "unknown_query_key": (422, _INPUT, "The query has a key this endpoint does not read; the nearest known key "
+                          "is suggested."),
+    "repeated_query_key": (422, _INPUT, "A query key is given twice; only parameter= may repeat."),
+    # the formula
+    "empty_formula": (422, _FORMULA, "The formula is empty."),
+    "formula_syntax": (422, _FORMULA, "The formula does not follow the grammar at the column given."),
+    "formula_too_long": (422, _FORMULA, "The formula is longer than 4096 characters."),
+    "formula_too_large": (422, _FORMULA, "The formula has more than 1000 nodes or is nested too tall."),
+    "nesting_too_deep": (422, _FORMULA, "Parentheses, calls and powers nest deeper than 64."),
+    "unexpected_character": (422, _FORMULA, "A character the language does not use (look-alike Unicode too)."),
+    "unexpected_token": (422, _FORMULA, "A number, name or operator where the grammar does not allow it."),
+    "unexpected_end": (422, _FORMULA, "The formula stops where more was expected."),
+    "unbalanced_parenthesis": (422, _FORMULA, "A parenthesis is not closed or not opened."),
+    "implicit_multiplication": (422, _FORMULA, "Two factors with no operator between them: write 2*x, not 2x."),
+    "unknown_function": (422, _FORMULA, "A name followed by ( is not one of the language's functions."),
+    "unknown_name": (422, _FORMULA, "A name is not the variable, a parameter or a constant."),
+    "missing_parameter": (422, _FORMULA, "The formula uses a parameter that the request does not give."),
+    "wrong_argument_count": (422, _FORMULA, "A function got the wrong number of arguments."),
+    "missing_arguments": (422, _FORMULA, "A function was written without its arguments."),
+    "unsupported_operator": (422, _FORMULA, "An operator the language does not have."),
+    "literal_too_long": (422, _FORMULA, "A number has more than 60 significant digits."),
+    "literal_out_of_range": (422, _FORMULA, "A number's exponent is beyond ±1000."),
+    "power_too_large": (422, _FORMULA, "A literal exponent in x^n is beyond ±1000."),
+    "invalid_formula": (422, _FORMULA, "The formula cannot be used as written."),
+    "invalid_name": (422, _INPUT, "The variable or a parameter name is not a plain identifier."),
+    "reserved_name": (422, _INPUT, "A parameter or variable is named like a function or constant."),
+    # the other values
+    "invalid_input": (422, _INPUT, "A request value is unusable; 'field' names it."),
+    "invalid_limit": (422, _INPUT, "A limit is not a number or a constant expression."),
+    "infinite_limit": (422, _INPUT, "Infinite limits are not certified yet: split off or transform the tail."),
+    "limit_out_of_range": (422, _INPUT, "A limit is beyond ±1e300."),
+    "invalid_tolerance": (422, _INPUT, "A tolerance is not a finite number above zero."),
+    "tolerance_out_of_range": (422, _INPUT, "A tolerance is outside [1e-60, 1e300] (a relative one: below 1)."),
+    "invalid_parameter": (422, _INPUT, "A parameter value is not a finite number within the literal limits."),
+    "too_many_parameters": (422, _INPUT, "More than 32 parameters."),
+    "invalid_claim": (422, _INPUT, "The claimed value is not a finite number within the literal limits."),
+    "invalid_budget": (422, _INPUT, "max_nodes is not a whole number."),
+    "budget_out_of_range": (422, _INPUT, "max_nodes is outside [3, 2000001]."),
+    "invalid_deadline": (422, _INPUT, "The deadline is not a positive number of seconds."),
+    "invalid_precision": (422, _INPUT, "The working precision asked for is outside what the engine allows."),
+    "backend_unavailable": (422, _INPUT, "The arithmetic backend asked for cannot run in this thread."),
+    "invalid_csv": (422, _INPUT, "A CSV file's header lacks a required column."),
+    "invalid_checks_file": (422, _INPUT, "A file of checks cannot be read or lacks a required key."),
+    "mesh_too_large": (422, "The mesh is too large to send", "Ask without include_mesh, or with a looser "
+                       "tolerance."),
+    # certification
+    "not_certifiable": (422, _CERTIFY, "The engine cannot certify this integral; 'detail' says why."),
+    "unbounded_near": (422, "The integrand may be unbounded or undefined near a point",
+                       "'location' is the interval where it could not be bounded."),
+    "undefined_at_point": (422, "The integrand is undefined at a point of the interval",
+                           "'location' is the point; the formula as written has no value there."),
+    "undefined_on_interval": (422, "The integrand is undefined on part of the interval",
+                              "A function's argument leaves its domain inside the limits."),
+    "outside_domain": (422, "The integrand is undefined on part of the interval",
+                       "A function's argument leaves its domain."),
+    "unbounded": (422, "The integrand may be unbounded or undefined near a point", "A division by zero or a "
+                  "pole."),
+    "arithmetic_fault": (422, _CERTIFY, "Interval arithmetic could not bound a value."),
+    "magnitude_exceeded": (422, "A value in the computation is too large", "A value beyond 2^65536 arose."),
+    "result_out_of_range": (422, "The integral is beyond the float64 range", "Scale the formula."),
+    "degenerate_interval": (422, "The limits are too close to plan a mesh", "Widen the interval."),
+    "plan_too_large": (422, "The plan needs too many intervals", "A uniform mesh would exceed the limit."),
+    "tolerance_not_met": (422, "The tolerance could not be certified within the budget",
+                          "The enclosure is rigorous but wider than asked; raise max_nodes or the tolerance."),
+    # the service
+    "saturated": (503, _BUSY, "All workers are busy and the queue is full; retry after Retry-After."),
+    "shutting_down": (503, "The service is shutting down", "Send the work to another replica."),
+    "worker_lost": (503, "The computation's worker stopped", "Retry after Retry-After."),
+    "too_many_connections": (503, _BUSY, "The server holds as many connections as it may; retry shortly."),
+    "service_error": (503, _BUSY, "The computation could not run; retry."),
+    "deadline_exceeded": (504, "The computation passed its deadline", "In the queue or computing; raise the "
+                          "tolerance or split the interval."),
+    "internal_error": (500, "Internal error", "A defect in quadcert; it has been logged with the request id."),
+    # raised by the client and the CLI only, never sent by the service
+    "service_unreachable": (0, "The service could not be reached", "No HTTP answer came; check the URL."),
+    "timed_out": (0, "The service did not answer in time", "The client's timeout passed."),
+    "invalid_url": (0, "Not a service URL", "Write the URL with http:// or https://."),
+    "unexpected_response": (0, "The answer was not a quadcert answer", "Something else answered at that URL."),
+    "problem": (0, "A problem answered by the service", "See the problem's own code."),
+    "quadcert_error": (0, "A quadcert error", "See the error's own code."),
 }
-_FORMULA_TITLE = "The formula cannot be read"
-_INPUT_TITLE = "A request value is unusable"
+CODES: dict[str, tuple[int, str]] = {code: (status, title) for code, (status, title, _) in PROBLEM_TYPES.items()}
 
 
 def status_and_title(code: str, kind: str | None = None) -> tuple[int, str]:
-    if code in CODES:
+    if code in CODES and CODES[code][0]:
         return CODES[code]
-    if kind == "FormulaError":
-        return 422, _FORMULA_TITLE
-    if kind == "NotCertifiable":
-        return 422, "The integral cannot be certified"
-    return 422, _INPUT_TITLE
+    return 422, _INPUT
 
 
 def problem_body(code: str, detail: str, *, kind: str | None = None, instance: str | None = None,

@@ -34,8 +34,8 @@ class _Strict(BaseModel):
 
 
 class IntegralRequest(_Strict):
-    integrand: Annotated[StrictStr, Field(max_length=100_000, description="Formula in the variable",
-                                          examples=["exp(-x^2)"])]
+    integrand: Annotated[StrictStr, Field(max_length=4096, description="Formula in the variable (at most 4096 "
+                                          "characters)", examples=["exp(-x^2)"])]
     variable: Annotated[StrictStr, Field(max_length=64)] = "x"
     lower_limit: Limit
     upper_limit: Limit
@@ -53,7 +53,7 @@ class CheckRequest(IntegralRequest):
 
 
 class PlanRequest(_Strict):
-    integrand: Annotated[StrictStr, Field(max_length=100_000)]
+    integrand: Annotated[StrictStr, Field(max_length=4096)]
     variable: Annotated[StrictStr, Field(max_length=64)] = "x"
     lower_limit: Limit
     upper_limit: Limit

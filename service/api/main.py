@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import logging
+import re
 from contextlib import asynccontextmanager
 from typing import Any, AsyncIterator
 
@@ -66,6 +67,18 @@ def _context(request: Request) -> dict[str, Any]:
     return {"instance": request.url.path, "request_id": getattr(request.state, "request_id", None)}
 
 
+_TYPE_TAGS = re.compile(r"^(str|int|float|bool|decimal|function-plain\[.*\]|constrained-str|list\[.*\])$")
+
+
+def _field_path(location: list[str]) -> str:
+    """body.tolerance.float -> tolerance: the validator's own union branches are not the caller's business."""
+    return ".".join(p for p in location if p not in ("body", "query") and not _TYPE_TAGS.match(p))
+
+
+def _plain_message(message: str) -> str:
+    return message.removeprefix("Value error, ")
+
+
 def _install_error_handlers(app: FastAPI) -> None:
     @app.exception_handler(RequestValidationError)
     async def invalid(request: Request, error: RequestValidationError):  # type: ignore[no-untyped-def]
@@ -79,9 +92,13 @@ def _install_error_handlers(app: FastAPI) -> None:
             where = f" at character {at[0]}" if at else ""
             return problem_response(problem_body("malformed_body", f"the body is not JSON text{where}: {reason}",
                                                  **_context(request)))
-        where = ".".join(p for p in first["location"] if p not in ("body", "query"))
-        body = problem_body("invalid_request", f"{where or 'request'}: {first['message']}", field=where or None,
-                            errors=errors, **_context(request))
+        where = _field_path(first["location"])
+        if first.get("type") == "string_too_long" and where.endswith("integrand"):
+            body = problem_body("formula_too_long", f"{where}: the formula is longer than 4096 characters",
+                                field=where, **_context(request))
+        else:
+            body = problem_body("invalid_request", f"{where or 'request'}: {_plain_message(first['message'])}",
+                                field=where or None, errors=errors, **_context(request))
         if request.url.path == "/v1/integral" and request.query_params.get("format", "text") != "json":
             from .routers.integrals import _plain_problem
 

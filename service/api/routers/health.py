@@ -11,13 +11,13 @@ router = APIRouter(tags=["operations"])
 
 
 @router.head("/healthz", include_in_schema=False)  # probes that only look at the status
-@router.get("/healthz", summary="Liveness: the process answers")
+@router.get("/healthz", operation_id="readLiveness", summary="Liveness: the process answers")
 async def healthz() -> dict[str, str]:
     return {"status": "ok"}
 
 
 @router.head("/readyz", include_in_schema=False)
-@router.get("/readyz", summary="Readiness: workers are up and the queue has room",
+@router.get("/readyz", operation_id="readReadiness", summary="Readiness: workers are up and the queue has room",
             responses={503: {"description": "Not ready"}})
 async def readyz(request: Request) -> JSONResponse:
     pool = request.app.state.pool

@@ -38,14 +38,14 @@ PLAIN_PROBLEM_RESPONSES = {
 }
 
 
-@router.post("/v1/integrals", response_model=IntegralResponse, responses=PROBLEM_RESPONSES,
+@router.post("/v1/integrals", operation_id="createIntegral", response_model=IntegralResponse, responses=PROBLEM_RESPONSES,
              summary="Certify one definite integral")
 async def create_integral(body: IntegralRequest, request: Request) -> JSONResponse:
     (status, answer), _ = await computation(request).integral(body.model_dump(), context(request))
     return respond(request, status, answer)
 
 
-@router.post("/v1/integrals/batch", response_model=BatchResponse, responses=PROBLEM_RESPONSES,
+@router.post("/v1/integrals/batch", operation_id="createIntegralBatch", response_model=BatchResponse, responses=PROBLEM_RESPONSES,
              summary="Certify many integrals; one result or one problem per item, in order")
 async def create_batch(body: BatchRequest, request: Request) -> JSONResponse:
     settings = request.app.state.settings
@@ -69,23 +69,26 @@ async def create_batch(body: BatchRequest, request: Request) -> JSONResponse:
     return ExactJSONResponse({"results": list(results)})
 
 
-@router.get("/v1/integral", summary="One number for a spreadsheet cell",
+@router.get("/v1/integral", operation_id="readIntegralValue", summary="One number for a spreadsheet cell",
             responses={200: {"content": {"text/plain": {"schema": {"type": "string"}},
                                          "text/csv": {"schema": {"type": "string"}},
                                          "application/xml": {"schema": {"type": "string"}}}},
                        304: {"description": "Not modified (ETag matched)"}, **PLAIN_PROBLEM_RESPONSES})
 async def read_integral(
     request: Request,
-    integrand: Annotated[str, Query(max_length=4096)],
-    lower_limit: Annotated[str, Query(max_length=512)],
-    upper_limit: Annotated[str, Query(max_length=512)],
+    integrand: Annotated[str, Query(max_length=4096, description="the formula, e.g. exp(-x^2); in a URL write "
+                                    "+ as %2B")],
+    lower_limit: Annotated[str, Query(max_length=512, description="a number or a constant expression, e.g. pi/2")],
+    upper_limit: Annotated[str, Query(max_length=512, description="a number or a constant expression")],
     tolerance: Annotated[str, Query(max_length=80, description="Absolute tolerance, read as the exact decimal "
                                     "it spells")] = "1e-8",
-    variable: Annotated[str, Query(max_length=64)] = "x",
-    relative_tolerance: Annotated[str | None, Query(max_length=80)] = None,
-    parameter: Annotated[list[str] | None, Query(description="name:value, repeatable")] = None,
-    format: Literal["text", "csv", "xml", "json"] = "text",
-    field: Literal["value", "error_bound", "low", "high", "nodes"] | None = None,
+    variable: Annotated[str, Query(max_length=64, description="the integration variable (default x)")] = "x",
+    relative_tolerance: Annotated[str | None, Query(max_length=80, description="also accept an error bound <= "
+                                                    "this times |integral| (below 1)")] = None,
+    parameter: Annotated[list[str] | None, Query(description="name:value, one parameter= per parameter")] = None,
+    format: Annotated[Literal["text", "csv", "xml", "json"], Query(description="the answer's shape")] = "text",
+    field: Annotated[Literal["value", "error_bound", "low", "high", "nodes"] | None,
+                     Query(description="the one number to answer (text, csv, xml); default value")] = None,
     max_nodes: Annotated[int | None, Query(ge=3, description="evaluation budget; the server default if absent")]
     = None,
 ) -> Response:
