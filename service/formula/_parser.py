@@ -11,7 +11,6 @@ Grammar (``^`` binds tightest and is right-associative; ``-x^2`` is ``-(x^2)``):
 
 from __future__ import annotations
 
-import difflib
 from dataclasses import dataclass, field
 from functools import cached_property, lru_cache
 from fractions import Fraction
@@ -61,9 +60,41 @@ class Formula:
         return canonical_text(self.root)
 
 
+#: functions people reach for that the language does not have, with how to write them today; a spelling
+#: suggestion there would name a different function (sign is not sin, cot is not cos)
+REWRITES = {
+    "sign": "write x/abs(x) away from 0, or split the interval at 0",
+    "sgn": "write x/abs(x) away from 0, or split the interval at 0",
+    "cot": "write 1/tan(x)", "sec": "write 1/cos(x)", "csc": "write 1/sin(x)",
+    "asinh": "write log(x + sqrt(x^2 + 1))", "acosh": "write log(x + sqrt(x^2 - 1))",
+    "atanh": "write log((1 + x)/(1 - x))/2", "cbrt": "write x^(1/3) for x > 0",
+    "log2": "write log(x)/log(2)", "erfc": "write 1 - erf(x)", "pow": "write a^b",
+    "sqr": "write x^2", "exp10": "write 10^x", "ln10": "write log(10)",
+}
+
+
 def _suggest(name: str, candidates: list[str]) -> str:
-    close = difflib.get_close_matches(name, candidates, n=1, cutoff=0.6)
-    return f"; did you mean {close[0]!r}?" if close else ""
+    """A close spelling of the same intent: one letter more, less, changed or swapped, and only when the
+    name is not a function of another kind (see REWRITES)."""
+    if name in REWRITES:
+        return f"; the language has no {name}(): {REWRITES[name]}"
+    for candidate in candidates:
+        if _one_edit(name.lower(), candidate):
+            return f"; did you mean {candidate!r}?"
+    return ""
+
+
+def _one_edit(a: str, b: str) -> bool:
+    if a == b:
+        return True
+    if abs(len(a) - len(b)) > 1 or min(len(a), len(b)) < 2:
+        return False
+    if len(a) == len(b):
+        diffs = [i for i in range(len(a)) if a[i] != b[i]]
+        return len(diffs) == 1 or (len(diffs) == 2 and diffs[1] == diffs[0] + 1
+                                   and a[diffs[0]] == b[diffs[1]] and a[diffs[1]] == b[diffs[0]])
+    short, long = (a, b) if len(a) < len(b) else (b, a)
+    return any(long[:i] + long[i + 1:] == short for i in range(len(long)))
 
 
 class _Parser:
@@ -108,6 +139,9 @@ class _Parser:
             raise FormulaError(f"formula nests deeper than {_limits.MAX_DEPTH} levels", code="nesting_too_deep",
                                column=column)
 
+    def peek(self, ahead: int) -> Token:
+        return self.tokens[min(self.index + ahead, len(self.tokens) - 1)]
+
     def unexpected(self, expected: str) -> FormulaError:
         token = self.current
         if token.kind is Kind.END:
@@ -129,6 +163,9 @@ class _Parser:
             return node
         if token.kind in (Kind.NUMBER, Kind.NAME, Kind.LPAREN):
             previous = self.tokens[self.index - 1].text
+            if token.kind is Kind.NUMBER and token.text.startswith(".") and "." in previous:
+                raise FormulaError(f"a number has one decimal point: {previous}{token.text} is not a number",
+                                   code="unexpected_token", column=token.column)
             raise FormulaError(f"missing operator between {previous!r} and {token.text!r}; implicit "
                                f"multiplication is not read, write {previous}*{token.text}",
                                code="implicit_multiplication", column=token.column)
@@ -163,6 +200,10 @@ class _Parser:
         return self.power()
 
     def power(self) -> Node:
+        if self.current.kind is Kind.NAME and self.peek(1).text == "^" and self.current.text in FUNCTIONS:
+            name = self.current
+            raise FormulaError(f"write a power of {name.text} after its argument: {name.text}(x)^2, not "
+                               f"{name.text}^2(x)", code="unexpected_token", column=name.column)
         base = self.primary()
         if self.current.kind is Kind.OPERATOR and self.current.text == "^":
             token = self.advance()
@@ -237,6 +278,9 @@ class _Parser:
         if text in FUNCTIONS or text in ALIASES:
             raise FormulaError(f"{text!r} is a function; write {text}(...)", code="missing_arguments",
                                column=token.column)
+        if text.lower() in CONSTANTS and text not in (self.variable, *self.parameters):
+            raise FormulaError(f"unknown name {text!r}; the constants are written in lower case: {text.lower()}",
+                               code="unknown_name", column=token.column)
         hint = _suggest(text, [self.variable, *self.parameters, *CONSTANTS])
         if not hint and len(text) > 1 and all(c == self.variable or c in CONSTANTS for c in text):
             hint = f"; implicit multiplication is not read, write {'*'.join(text)}"

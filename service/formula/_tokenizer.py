@@ -32,7 +32,8 @@ _NUMBER = re.compile(r"(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?")
 _NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_]*")
 _SINGLE = {"+": Kind.OPERATOR, "-": Kind.OPERATOR, "*": Kind.OPERATOR, "/": Kind.OPERATOR,
            "^": Kind.OPERATOR, "(": Kind.LPAREN, ")": Kind.RPAREN, ",": Kind.COMMA}
-_LOOKALIKES = {"×": "*", "·": "*", "−": "-", "–": "-", "÷": "/", "π": "pi"}
+_LOOKALIKES = {"×": "*", "·": "*", "−": "-", "–": "-", "÷": "/", "π": "pi", "|": "abs(...)", "²": "^2",
+               "³": "^3", "√": "sqrt(...)"}
 
 
 def _describe_character(char: str) -> str:

@@ -120,3 +120,20 @@ def test_reserved_parameter_names_are_refused() -> None:
     for bad in ["sin", "pi", "x", "2a", "a-b"]:
         with pytest.raises(FormulaError):
             parse("x", parameters=[bad])
+
+
+@pytest.mark.parametrize("text, code, expected", [
+    ("sign(x)", "unknown_function", "no sign()"),          # not 'did you mean sin'
+    ("cot(x)", "unknown_function", "1/tan(x)"),            # not 'did you mean cos'
+    ("asinh(x)", "unknown_function", "log(x + sqrt(x^2 + 1))"),
+    ("sinn(x)", "unknown_function", "did you mean 'sin'"),
+    ("|x|", "unexpected_character", "abs(...)"),
+    ("sin^2(x)", "unexpected_token", "sin(x)^2"),
+    ("E^x", "unknown_name", "lower case: e"),
+    ("PI*x", "unknown_name", "lower case: pi"),
+    ("0.5.1*x", "unexpected_token", "one decimal point"),
+])
+def test_messages_name_the_intended_fix(text: str, code: str, expected: str) -> None:
+    with pytest.raises(FormulaError) as info:
+        parse(text)
+    assert info.value.code == code and expected in info.value.message, info.value.message
