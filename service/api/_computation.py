@@ -169,7 +169,8 @@ def _integral_response(result: dict[str, Any], body: dict[str, Any]) -> dict[str
     return {
         "value": result["value"], "enclosure": [bound_decimal(low, up=False), bound_decimal(high, up=True)],
         "error_bound": bound_decimal(result["error_bound"], up=True),
-        "tolerance": body.get("tolerance", result["tolerance"]), "tolerance_met": result["tolerance_met"],
+        "tolerance": body.get("tolerance", result["tolerance"]),
+        "applied_tolerance": result.get("applied_tolerance"), "tolerance_met": result["tolerance_met"],
         "stop_reason": result["stop_reason"], "nodes": result["nodes"], "panels": result["panels"],
         "integrand": result["integrand"], "variable": body.get("variable", "x"), "lower_limit": result["lower_limit"],
         "upper_limit": result["upper_limit"], "precision_bits": result["precision_bits"],

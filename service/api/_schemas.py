@@ -78,6 +78,8 @@ class IntegralResponse(BaseModel):
     enclosure: Pair = Field(description="Guaranteed to contain the exact integral")
     error_bound: float = Field(description="Guaranteed >= |exact − value|")
     tolerance: float
+    applied_tolerance: float | None = Field(None, description="The absolute bound the error bound was held to: "
+                                            "the tolerance, or relative_tolerance × |integral| where larger")
     tolerance_met: bool
     stop_reason: Literal["tolerance_met", "node_budget", "deadline", "resolution_limit"]
     nodes: int

@@ -14,7 +14,8 @@ import simplejson
 
 from .. import __version__
 from ..errors import InvalidInput, ProblemError, QuadcertError
-from ..quadrature import CheckResult, IntegralResult, Plan, bound_decimal, bound_text, check, integrate, plan, shown
+from ..quadrature import (CheckResult, IntegralResult, Plan, bound_decimal, bound_text, certified_digits, check,
+                          integrate, plan, shown)
 from . import _junit, _table
 
 EXIT_OK, EXIT_FAIL, EXIT_UNDECIDED = 0, 1, 2
@@ -111,11 +112,17 @@ def _integrate(args: argparse.Namespace) -> int:
 
 def _describe(result: IntegralResult) -> str:
     status = "certified" if result.tolerance_met else f"NOT within tolerance ({result.stop_reason})"
+    digits = certified_digits(*result.enclosure)
+    value = f"{digits}  (the digits the enclosure certifies; --json has all of them)" if digits else \
+        f"{result.value!r}  (no leading digit is certain: see the enclosure)"
+    applied = result.applied_tolerance if result.applied_tolerance is not None else result.tolerance
+    target = shown(applied, 6, "near") + ("" if applied == result.tolerance else
+                                          f" (the relative tolerance; the absolute one is "
+                                          f"{shown(result.tolerance, 6, 'near')})")
     lines = [f"integral of {result.integrand} from {result.lower_limit} to {result.upper_limit}",
-             f"value        {result.value!r}",
+             f"value        {value}",
              f"enclosure    [{bound_text(result.enclosure[0], up=False)}, {bound_text(result.enclosure[1], up=True)}]",
-             f"error bound  {shown(result.error_bound, 6, 'up')}  (tolerance {shown(result.tolerance, 6, 'near')}: "
-             f"{status})",
+             f"error bound  {shown(result.error_bound, 6, 'up')}  (tolerance {target}: {status})",
              f"nodes        {result.nodes}  panels {result.panels}"]
     if result.mesh:
         lines.append("mesh:")

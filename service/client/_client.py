@@ -23,6 +23,7 @@ def integral_from(body: Mapping[str, Any]) -> IntegralResult:
         nodes=body["nodes"], panels=body["panels"], integrand=body["integrand"], lower_limit=body["lower_limit"],
         upper_limit=body["upper_limit"], precision_bits=body["precision_bits"],
         compute_seconds=body["compute_seconds"], bounds_used=dict(body.get("bounds_used") or {}),
+        applied_tolerance=body.get("applied_tolerance"),
         mesh=tuple(PanelReport(p["lower"], p["upper"], tuple(p["contribution"]), p["bound"]) for p in mesh)
         if mesh else None)
 

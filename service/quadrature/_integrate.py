@@ -7,7 +7,7 @@ import time
 from fractions import Fraction
 from typing import Callable, Mapping
 
-from ..arithmetic import Arithmetic, FlintArithmetic, MpmathArithmetic, flint_context_claimed
+from ..arithmetic import Arithmetic, FlintArithmetic, MpmathArithmetic, flint_context_claimed, fraction_down
 from ..derivatives import Program
 from ..errors import ArithmeticFault, InvalidInput, NotCertifiable
 from ..formula import Formula, parse
@@ -70,9 +70,11 @@ def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: Li
     arithmetic = arithmetic or default_arithmetic()
 
     def target(low: float, high: float) -> float:
+        """The absolute bound to meet: the tolerance, or the relative one times the smallest |integral| the
+        enclosure allows, rounded down (so a bound that meets it meets the exact product too)."""
         if relative is None or low <= 0 <= high:
             return tolerance
-        return max(tolerance, relative * min(abs(low), abs(high)))
+        return max(tolerance, fraction_down(Fraction(relative) * Fraction(min(abs(low), abs(high)))))
 
     if native:
         fast = _try_fast(formula, values, lower_formula, upper_formula, tolerance, relative, target, max_nodes,
@@ -82,6 +84,7 @@ def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: Li
             low, high = fast.enclosure
             return IntegralResult(
                 value=value, enclosure=(low, high), error_bound=bound, tolerance=tolerance,
+                applied_tolerance=target(low, high),
                 tolerance_met=bound <= target(low, high), stop_reason=fast.stop_reason, nodes=fast.nodes,
                 panels=fast.panels, integrand=formula.text, lower_limit=lower_formula.text,
                 upper_limit=upper_formula.text, precision_bits=53, compute_seconds=time.perf_counter() - started,
@@ -107,6 +110,7 @@ def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: Li
     met = bound <= target(low, high)
     return IntegralResult(
         value=value, enclosure=(low, high), error_bound=bound, tolerance=tolerance, tolerance_met=met,
+        applied_tolerance=target(low, high),
         stop_reason="tolerance_met" if met else (stop if stop != "tolerance_met" else "resolution_limit"),
         nodes=nodes, panels=panels, integrand=formula.text, lower_limit=lower_formula.text,
         upper_limit=upper_formula.text, precision_bits=prec,

@@ -37,6 +37,8 @@ class IntegralResult:
     compute_seconds: float
     mesh: tuple[PanelReport, ...] | None = field(default=None, repr=False)
     bounds_used: dict[str, int] = field(default_factory=dict)
+    applied_tolerance: float | None = None  # the absolute bound the error bound was held to: the tolerance,
+                                            # or relative_tolerance × |integral| where that is larger
 
 
 @dataclass(frozen=True)

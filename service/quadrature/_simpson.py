@@ -19,7 +19,7 @@ from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any, Callable
 
-from ..arithmetic import Arithmetic
+from ..arithmetic import Arithmetic, interval_text, shown
 from ..derivatives import Program
 from ..errors import ArithmeticFault, MagnitudeExceeded, NotCertifiable
 from . import _peano
@@ -169,7 +169,7 @@ class Refiner:
 
     def _where(self, node: Any) -> str:
         lo, hi = self.ar.bounds(node)
-        return f"{lo:.17g}" if lo == hi else f"{(lo + hi) / 2:.17g}"
+        return shown(lo, 6, "near") if lo == hi else shown((lo + hi) / 2, 6, "near")
 
     # -- panels ------------------------------------------------------------------------------
     def panel(self, p: Any, q: Any, fp: Any, fq: Any, depth: int) -> _Panel:
@@ -194,7 +194,7 @@ class Refiner:
         except ArithmeticFault as fault:
             if fault.certain:
                 lo, hi = ar.bounds(ar.hull(panel.p, panel.q))
-                raise NotCertifiable(f"the integrand is undefined on [{lo:.17g}, {hi:.17g}]: {fault.message}",
+                raise NotCertifiable(f"the integrand is undefined on {interval_text(lo, hi)}: {fault.message}",
                                      code="undefined_on_interval", location=(lo, hi)) from None
             panel.fault = fault.message
             return
@@ -292,7 +292,8 @@ class Refiner:
     def _unbounded(self, panel: _Panel, budget: bool = False) -> NotCertifiable:
         lo, hi = self.ar.bounds(self.ar.hull(panel.p, panel.q))
         when = " before the budget ran out" if budget else ""
-        return NotCertifiable(f"cannot bound the integrand near {self.variable} = {(lo + hi) / 2:.17g}{when}; it may be "
+        return NotCertifiable(f"cannot bound the integrand near {self.variable} = {shown((lo + hi) / 2, 6, 'near')}"
+                              f"{when}; it may be "
                               f"unbounded or undefined there ({panel.fault})", code="unbounded_near",
                               location=(lo, hi))
 

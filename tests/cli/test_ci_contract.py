@@ -103,3 +103,12 @@ def test_every_command_documents_its_exit_codes_and_an_example() -> None:
             assert "exit codes:" in text and "certified fail" in text, name
             for action in command._actions:
                 assert action.help, (name, action.dest)
+
+
+def test_human_output_shows_certified_digits_and_the_applied_target(capsys) -> None:
+    """exp over [0, 20] (closed form e^20 - 1 ≈ 485165194.41) with a relative tolerance: the target shown is
+    the one applied, and the value shows only the digits the enclosure certifies."""
+    assert main(["integrate", "exp(x)", "0", "20", "--tol", "1e-12", "--rel-tol", "1e-10"]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    assert lines[1].split()[1] == "485165194"
+    assert "relative tolerance" in lines[3] and "tolerance 1e-12:" not in lines[3]

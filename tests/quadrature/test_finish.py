@@ -42,3 +42,20 @@ def test_subnormal_enclosures() -> None:
     value, bound = error_bound(0.0, 5e-324)
     assert value in (0.0, 5e-324) and bound == 5e-324
     assert error_bound(-5e-324, 5e-324) == (0.0, 5e-324)
+
+
+@given(st.floats(1e-300, 1e300), st.floats(0, 1e-3))
+def test_certified_digits_are_shared_by_the_whole_enclosure(low: float, spread: float) -> None:
+    """Reference: exact decimals. Every number in [low, high] lies in [d, d + one unit of d's last digit)."""
+    from decimal import Decimal
+
+    from service.quadrature import certified_digits
+
+    high = min(low * (1 + spread), 1.7e308)
+    text = certified_digits(low, high)
+    if text is None:
+        return
+    value = Decimal(text)
+    _, digits, exponent = value.as_tuple()
+    unit = Decimal(1).scaleb(exponent)
+    assert value <= Decimal(low) and Decimal(high) < value + unit, (low, high, text)
