@@ -15,7 +15,7 @@ class Settings(BaseSettings):
     model_config = SettingsConfigDict(env_prefix="QUADCERT_", extra="ignore")
 
     host: str = "127.0.0.1"
-    port: int = 8000
+    port: int = Field(8000, ge=0, le=65535, description="TCP port; 0 picks a free one")
     workers: int = Field(default_factory=lambda: max(1, os.cpu_count() or 1), ge=1, le=64,
                          description="engine worker processes")
     queue_limit: int = Field(64, ge=1, description="jobs waiting or running before new ones get 503")

@@ -9,13 +9,20 @@ from __future__ import annotations
 
 import asyncio
 import contextlib
+import errno
 import logging
 import math
+import socket
+import sys
 from typing import Any, Iterator
 
 import uvicorn
 
+from pydantic import ValidationError
+
+from .. import __version__
 from ..api import Settings, create_app
+from ..errors import InvalidInput
 from ..api._http import protocol_options
 
 log = logging.getLogger("quadcert.serve")
@@ -48,13 +55,38 @@ class _DrainingServer(uvicorn.Server):
         super().handle_exit(sig, frame)
 
 
+def _bind(host: str, port: int) -> socket.socket:
+    """The listening socket, bound before anything starts, so a port in use is the first and only message."""
+    family = socket.AF_INET6 if ":" in host else socket.AF_INET
+    sock = socket.socket(family, socket.SOCK_STREAM)
+    sock.setsockopt(socket.SOL_SOCKET, socket.SO_REUSEADDR, 1)
+    try:
+        sock.bind((host, port))
+    except OSError as error:
+        sock.close()
+        reason = "is in use" if error.errno == errno.EADDRINUSE else f"cannot be bound ({error.strerror})"
+        raise InvalidInput(f"{host}:{port} {reason}; choose another with --port or QUADCERT_PORT",
+                           code="invalid_input", field="port") from None
+    sock.set_inheritable(True)
+    return sock
+
+
 def serve(host: str | None, port: int | None, workers: int | None) -> int:
     overrides = {k: v for k, v in {"host": host, "port": port, "workers": workers}.items() if v is not None}
-    settings = Settings(**overrides)
+    try:
+        settings = Settings(**overrides)
+    except ValidationError as error:
+        first = error.errors()[0]
+        raise InvalidInput(f"{'.'.join(str(p) for p in first['loc'])}: {first['msg']}", code="invalid_input",
+                           field=str(first["loc"][0])) from None
+    sock = _bind(settings.host, settings.port)
     app = create_app(settings)
     backstop = math.ceil(settings.grace_seconds) + BACKSTOP_SECONDS  # never None: None would wait forever
     config = uvicorn.Config(app, host=settings.host, port=settings.port, log_config=None, access_log=False,
                             timeout_graceful_shutdown=backstop, lifespan="on", **protocol_options(settings))
     server = _DrainingServer(config, app)
-    server.run()
+    shown_host = f"[{settings.host}]" if ":" in settings.host else settings.host
+    print(f"quadcert {__version__}: serving on http://{shown_host}:{sock.getsockname()[1]} with {settings.workers} "
+          "engine worker(s); it keeps running until SIGTERM or Ctrl-C", file=sys.stderr, flush=True)
+    server.run(sockets=[sock])
     return 0

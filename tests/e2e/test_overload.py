@@ -1,4 +1,5 @@
-"""Past saturation only 503 with Retry-After is allowed: never a hang, a timeout or a 500 (bounded, loopback)."""
+"""Past saturation the answers are 200, 503 with Retry-After, or 504 for work whose deadline (which counts the
+wait in the queue) passed on a busy machine: never a hang, a client timeout or a 500 (bounded, loopback)."""
 
 from __future__ import annotations
 
@@ -12,7 +13,9 @@ def test_overload_answers_200_or_503_with_retry_after() -> None:
     server = start_server(QUADCERT_QUEUE_LIMIT="4", QUADCERT_REQUEST_DEADLINE_SECONDS="3")
     try:
         report = asyncio.run(drive(server.url, "heavy", concurrency=24, duration=4, max_requests=3000))
-        assert set(report.statuses) <= {"200", "503"}, report.statuses
+        # 504 is a structured, correct answer when the machine is slow enough that queued work passes its
+        # deadline; how many there are depends on the machine's load, so only their kind is checked
+        assert set(report.statuses) <= {"200", "503", "504"}, report.statuses
         assert report.statuses["503"] > 0, "the run should have gone past capacity"
         assert report.missing_retry_after == 0
         # the server still answers after the storm

@@ -7,6 +7,7 @@ No assertion here is about speed: the checks are statuses, shapes, orderings and
 from __future__ import annotations
 
 import signal
+import sys
 import socket
 import subprocess
 import threading
@@ -148,3 +149,19 @@ def test_malformed_http_gets_a_problem_document(server: Server) -> None:
         head, _, body = reply.partition(b"\r\n\r\n")
         assert head.startswith(b"HTTP/1.1 400") and b"application/problem+json" in head
         assert b'"malformed_request"' in body
+
+
+def test_serve_says_where_it_listens_and_refuses_bad_ports() -> None:
+    running = start_server()
+    try:
+        port = running.url.rsplit(":", 1)[1]
+        taken = subprocess.run([sys.executable, "-m", "service.cli", "serve", "--port", port], capture_output=True,
+                               text=True, timeout=60)
+        assert taken.returncode == 2 and "is in use" in taken.stderr and "started" not in taken.stderr
+        wrong = subprocess.run([sys.executable, "-m", "service.cli", "serve", "--port", "99999"],
+                               capture_output=True, text=True, timeout=60)
+        assert wrong.returncode == 2 and "65535" in wrong.stderr
+    finally:
+        stop_server(running)
+    assert running.process.stderr is not None
+    assert f"serving on {running.url}" in running.process.stderr.read().decode()
