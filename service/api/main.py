@@ -22,7 +22,7 @@ from ._pool import WorkerPool
 from ._problems import problem_body, problem_response
 from ._schemas import Problem
 from ._settings import Settings
-from .routers import checks, health, integrals, operations, plans
+from .routers import checks, health, integrals, operations, plans, reference
 
 log = logging.getLogger("quadcert.app")
 
@@ -48,13 +48,16 @@ def create_app(settings: Settings | None = None) -> FastAPI:
         await pool.close()
         log.info("stopped")
 
-    app = FastAPI(title="quadcert", version=__version__, description=DESCRIPTION, lifespan=lifespan)
+    # the reference page at /docs is our own, self-contained (routers/reference.py): the stock one loads its
+    # script from a CDN and shows a blank page offline
+    app = FastAPI(title="quadcert", version=__version__, description=DESCRIPTION, lifespan=lifespan,
+                  docs_url=None, redoc_url=None)
     app.state.settings = settings
     app.state.pool = pool
     app.state.metrics = metrics
     app.state.draining = False
     app.state.computation = Computation(settings, pool, cache, metrics)
-    for module in (health, integrals, checks, plans, operations):
+    for module in (health, integrals, checks, plans, operations, reference):
         app.include_router(module.router)
     _install_error_handlers(app)
     app.add_middleware(BodyLimit, limit=settings.max_body_bytes)

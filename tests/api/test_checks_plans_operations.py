@@ -71,3 +71,13 @@ def test_every_json_operation_documents_malformed_body(client: TestClient) -> No
     document = client.get("/openapi.json").json()
     for path in ("/v1/integrals", "/v1/integrals/batch", "/v1/checks", "/v1/plans"):
         assert "400" in document["paths"][path]["post"]["responses"], path
+
+
+def test_docs_page_is_self_contained(client: TestClient) -> None:
+    import re
+
+    page = client.get("/docs")
+    assert page.status_code == 200 and page.headers["content-type"].startswith("text/html")
+    assert "/v1/integrals" in page.text and "readIntegralValue" in page.text
+    assert not re.search(r"(src|href)=[\"']?https?://", page.text)  # nothing fetched from elsewhere
+    assert client.get("/redoc").status_code == 404
