@@ -102,7 +102,7 @@ def check_tolerance(value: NumberLike | None, field: str = "tolerance", optional
 
 
 def _shown(value: object) -> str:
-    return str(value).strip()[:40] if not isinstance(value, float) else repr(value)
+    return str(value).strip().lower()[:40] if not isinstance(value, float) else repr(value)
 
 
 def check_max_nodes(value: int) -> int:
