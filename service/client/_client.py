@@ -10,7 +10,7 @@ import simplejson
 from tenacity import AsyncRetrying, Retrying, retry_if_exception, stop_after_attempt
 
 from ..errors import ProblemError
-from ..quadrature import CheckResult, IntegralResult, PanelReport, Plan, RulePlan
+from ..results import CheckResult, IntegralResult, PanelReport, Plan, RulePlan
 
 DEFAULT_URL = "http://127.0.0.1:8000"
 

@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import math
 import time
-from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
 
@@ -12,19 +11,7 @@ from ..arithmetic import fraction_down, fraction_up
 from ..errors import InvalidInput
 from . import _inputs
 from ._integrate import integrate
-from ._result import IntegralResult
-
-
-@dataclass(frozen=True)
-class CheckResult:
-    """``pass``: certified |claimed − exact| <= tolerance; ``fail``: certified > tolerance;
-    ``undecided``: the budget or deadline ran out before either could be proven."""
-
-    verdict: str
-    claimed_value: Any                # the caller's number, unchanged (a JSON number arrives as its exact Decimal)
-    tolerance: float                  # applied: the largest float64 not above the tolerance given
-    distance: tuple[float, float]   # certified lower and upper bounds of |claimed − exact|
-    integral: IntegralResult
+from ._result import CheckResult
 
 
 def distance_bounds(claimed: Fraction, low: float, high: float) -> tuple[float, float]:

@@ -65,3 +65,14 @@ def test_transport_failures_become_problem_errors(monkeypatch) -> None:
     with pytest.raises(ProblemError) as info:
         Client("localhost:8000")
     assert info.value.code == "invalid_url"
+
+
+def test_importing_the_client_leaves_the_engine_unloaded() -> None:
+    """The client needs httpx and the result types only: no mpmath, no python-flint, no compiled engine."""
+    import subprocess
+    import sys
+
+    code = ("import sys, service.client; loaded = [m for m in sys.modules if m.split('.')[0] in "
+            "('mpmath', 'flint') or m.endswith('_native') or m.startswith('service.quadrature')]; print(loaded)")
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
+    assert done.returncode == 0 and done.stdout.strip() == "[]", done.stdout + done.stderr
