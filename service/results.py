@@ -6,8 +6,15 @@ without loading the engine.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+import math
+from dataclasses import asdict, dataclass, field
+from decimal import ROUND_CEILING, ROUND_FLOOR, Context, Decimal
 from typing import Any
+
+from ._version import ENGINE_VERSION
+
+_DOWN = Context(prec=17, rounding=ROUND_FLOOR)
+_UP = Context(prec=17, rounding=ROUND_CEILING)
 
 
 @dataclass(frozen=True)
@@ -83,3 +90,92 @@ class CheckResult:
     tolerance: float                  # applied: the largest float64 not above the tolerance given
     distance: tuple[float, float]   # certified lower and upper bounds of |claimed − exact|
     integral: IntegralResult
+
+
+def bound_decimal(value: float, up: bool) -> Decimal | float:
+    """The shortest decimal on the safe side of a float bound that still reads back as that same float.
+
+    A plain ``repr`` may print a decimal on the wrong side (the float nearest 0.1 is above one tenth, yet
+    prints as ``0.1``); a reader who takes the printed decimal at its word would then hold a bound the engine
+    never certified. This one is on the safe side as a decimal and is the same float to a float64 reader.
+    Infinite bounds stay floats.
+
+    >>> bound_decimal(0.1, up=False), bound_decimal(0.1, up=True)
+    (Decimal('0.1'), Decimal('0.10000000000000001'))
+    >>> bound_decimal(-0.0, up=True), bound_decimal(5e-324, up=False)
+    (Decimal('0'), Decimal('4E-324'))
+    """
+    if value == 0:
+        return Decimal(0)
+    if not math.isfinite(value):
+        return value
+    exact = Decimal(value)
+    shortest = Decimal(repr(value))  # reads back by definition; often already on the safe side
+    if (shortest >= exact) if up else (shortest <= exact):
+        return shortest
+    context = (_UP if up else _DOWN).copy()
+    # 18 digits always suffice: a directed rounding there moves less than 1e-17 relative, below half an ulp
+    for digits in range(len(repr(abs(value)).split("e")[0].replace(".", "").strip("0")), 19):
+        context.prec = digits
+        candidate = context.create_decimal(exact)
+        if float(candidate) == value:
+            return candidate
+    return exact  # not reached; the exact decimal of a float always reads back
+
+
+def bound_text(value: float, up: bool) -> str:
+    """:func:`bound_decimal` as text, with a lower-case exponent.
+
+    >>> bound_text(0.30000000000000004, up=True), bound_text(1e300, up=False), bound_text(-0.0, up=False)
+    ('0.30000000000000005', '1e300', '0')
+    """
+    rounded = bound_decimal(value, up)
+    if isinstance(rounded, float):
+        return "inf" if rounded > 0 else "-inf"
+    text = f"{rounded:g}"
+    return text.replace("e+", "e")
+
+
+# -- the one JSON shape of a result, shared by the HTTP service and the CLI ------------------------------
+
+def integral_body(result: IntegralResult | dict[str, Any], request: dict[str, Any]) -> dict[str, Any]:
+    """The JSON body of an integral result: bounds as outward decimals, typed numbers echoed as sent.
+
+    ``request`` supplies what the caller typed (``variable``, ``tolerance``). The HTTP service adds
+    ``cached``; everything else is the same in ``quadcert integrate --json``.
+    """
+    data = asdict(result) if isinstance(result, IntegralResult) else result
+    low, high = data["enclosure"]
+    mesh = data.get("mesh")
+    return {
+        "value": data["value"], "enclosure": [bound_decimal(low, up=False), bound_decimal(high, up=True)],
+        "error_bound": bound_decimal(data["error_bound"], up=True),
+        "tolerance": request.get("tolerance", data["tolerance"]), "applied_tolerance": data.get("applied_tolerance"),
+        "tolerance_met": data["tolerance_met"], "stop_reason": data["stop_reason"], "nodes": data["nodes"],
+        "panels": data["panels"], "integrand": data["integrand"], "variable": request.get("variable", "x"),
+        "lower_limit": data["lower_limit"], "upper_limit": data["upper_limit"],
+        "precision_bits": data["precision_bits"], "compute_seconds": data["compute_seconds"],
+        "engine_version": ENGINE_VERSION, "bounds_used": data["bounds_used"],
+        "mesh": [_panel(p) for p in mesh] if mesh else None,
+    }
+
+
+def _panel(panel: dict[str, Any]) -> dict[str, Any]:
+    return {"lower": _outward(panel["lower"], up=False), "upper": _outward(panel["upper"], up=True),
+            "contribution": [_outward(panel["contribution"][0], up=False),
+                             _outward(panel["contribution"][1], up=True)], "bound": panel["bound"]}
+
+
+def _outward(value: Any, up: bool) -> Any:
+    return bound_decimal(value, up) if isinstance(value, float) else value
+
+
+def check_body(result: CheckResult | dict[str, Any], request: dict[str, Any]) -> dict[str, Any]:
+    """The JSON body of a verdict (the HTTP service and ``quadcert check --json``)."""
+    data = asdict(result) if isinstance(result, CheckResult) else result
+    integral = integral_body(data["integral"], request)
+    near, far = data["distance"]
+    return {"verdict": data["verdict"], "claimed_value": request.get("claimed_value", data["claimed_value"]),
+            "tolerance": request.get("tolerance", data["tolerance"]),
+            "distance": [_outward(near, up=False), _outward(far, up=True)], "enclosure": integral["enclosure"],
+            "integral": integral, "engine_version": ENGINE_VERSION}

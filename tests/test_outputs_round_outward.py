@@ -20,12 +20,12 @@ from fractions import Fraction
 
 from hypothesis import example, given, strategies as st
 
-from service.api._computation import _integral_response
 from service.api._exact_json import dumps
 from service.api._formats import FIELDS, render
 from service.cli import _main, _table
 from service.quadrature import CheckResult, IntegralResult
 from service.quadrature._finish import error_bound
+from service.results import check_body, integral_body
 
 NUMBER = re.compile(r"-?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?|-?inf")
 BOUNDS = st.floats(allow_nan=False, allow_infinity=False, width=64)
@@ -59,7 +59,7 @@ def test_every_renderer_rounds_outward(a: float, b: float) -> None:
     result = result_of(a, b)
     if not math.isfinite(result.error_bound):
         return  # an enclosure past the float range is refused before any output (result_out_of_range)
-    http = _integral_response(result.__dict__, {"variable": "x"})
+    http = integral_body(result, {"variable": "x"})
 
     # HTTP JSON body, read as exact decimals
     body = json.loads(dumps(http), parse_float=Decimal)
@@ -87,7 +87,7 @@ def test_every_renderer_rounds_outward(a: float, b: float) -> None:
     lines = _main._describe(result).splitlines()
     low_text, high_text = NUMBER.findall(lines[2])
     assert_outward(low_text, high_text, NUMBER.findall(lines[3])[0], result)
-    cli = json.loads(_main._json(_main._outward(result.__dict__)), parse_float=Decimal)
+    cli = json.loads(_main._json(integral_body(result, {})), parse_float=Decimal)
     assert_outward(str(cli["enclosure"][0]), str(cli["enclosure"][1]), str(cli["error_bound"]), result)
 
 
@@ -106,7 +106,7 @@ def test_check_distances_round_outward(a: float, b: float, claimed: float) -> No
     assert distance and exact(distance.group(1)) <= Fraction(near) and exact(distance.group(2)) >= Fraction(far)
     enclosure = re.search(r"integral in \[(\S+), (\S+)\]", text)
     assert_outward(enclosure.group(1), enclosure.group(2), None, result)
-    body = json.loads(_main._json(_main._verdict_json(outcome)), parse_float=Decimal)
+    body = json.loads(_main._json(check_body(outcome, {})), parse_float=Decimal)
     assert Fraction(body["distance"][0]) <= Fraction(near) and Fraction(body["distance"][1]) >= Fraction(far)
     assert Fraction(body["claimed_value"]) == Fraction(Decimal(repr(claimed)))
 
@@ -116,7 +116,7 @@ def test_zero_prints_as_zero() -> None:
     result = result_of(-0.0, 0.0)
     lines = _main._describe(result).splitlines()
     assert "[0, 0]" in lines[2]
-    http = _integral_response(result.__dict__, {"variable": "x"})
+    http = integral_body(result, {"variable": "x"})
     assert render(http, "text", "low") == "0" and render(http, "text", "high") == "0"
 
 

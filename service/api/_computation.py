@@ -18,7 +18,6 @@ from typing import Any
 from .._version import ENGINE_VERSION
 from ..errors import QuadcertError
 from ..formula import parse
-from ..quadrature import bound_decimal
 from ..quadrature._inputs import check_parameters
 from ..quadrature._limits import parse_limit
 from ._cache import ResultCache, cache_key
@@ -118,7 +117,7 @@ class Computation:
         (status, result), key = await self._run("integral", body, deadline, wait, context, group, compute)
         if status != 200 or result.get("cached"):
             return (_status(status, result), result), key
-        response = _integral_response(result, body)
+        response = result  # already the answer's shape (results.integral_body, built in the worker)
         if key is not None and result["stop_reason"] != "deadline":
             self.cache.put(key, response)
         return (200, {**response, "cached": False}), key
@@ -127,13 +126,7 @@ class Computation:
         (status, result), key = await self._run("check", body, self.settings.request_deadline_seconds, 0.0, context)
         if status != 200 or result.get("cached"):
             return _status(status, result), result
-        integral = _integral_response(result["integral"], body)
-        response = {
-            "verdict": result["verdict"], "claimed_value": body["claimed_value"], "tolerance": body["tolerance"],
-            "distance": [bound_decimal(result["distance"][0], up=False), bound_decimal(result["distance"][1], up=True)],
-            "enclosure": integral["enclosure"],
-            "integral": {**integral, "cached": False}, "engine_version": ENGINE_VERSION,
-        }
+        response = {**result, "integral": {**result["integral"], "cached": False}}
         if key is not None and result["verdict"] != "undecided":
             self.cache.put(key, response)
         return 200, response
@@ -160,21 +153,3 @@ def _problem_args(error: dict[str, Any]) -> dict[str, Any]:
 
 def _status(status: int, body: dict[str, Any]) -> int:
     return body["status"] if status == 0 else status
-
-
-def _integral_response(result: dict[str, Any], body: dict[str, Any]) -> dict[str, Any]:
-    """The HTTP shape of an engine result; typed numbers (tolerance) are echoed exactly as the request had them."""
-    mesh = result.get("mesh")
-    low, high = result["enclosure"]
-    return {
-        "value": result["value"], "enclosure": [bound_decimal(low, up=False), bound_decimal(high, up=True)],
-        "error_bound": bound_decimal(result["error_bound"], up=True),
-        "tolerance": body.get("tolerance", result["tolerance"]),
-        "applied_tolerance": result.get("applied_tolerance"), "tolerance_met": result["tolerance_met"],
-        "stop_reason": result["stop_reason"], "nodes": result["nodes"], "panels": result["panels"],
-        "integrand": result["integrand"], "variable": body.get("variable", "x"), "lower_limit": result["lower_limit"],
-        "upper_limit": result["upper_limit"], "precision_bits": result["precision_bits"],
-        "compute_seconds": result["compute_seconds"], "engine_version": ENGINE_VERSION,
-        "bounds_used": result["bounds_used"],
-        "mesh": [{**p, "contribution": list(p["contribution"])} for p in mesh] if mesh else None,
-    }

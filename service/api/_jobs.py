@@ -8,6 +8,7 @@ from typing import Any, Callable
 
 from ..errors import FormulaError, InvalidInput, NotCertifiable, QuadcertError
 from ..quadrature import bound_decimal, check, integrate, plan
+from ..results import check_body, integral_body
 
 
 def _error(error: Exception) -> dict[str, Any]:
@@ -32,17 +33,12 @@ def run_integral(request: dict[str, Any]) -> dict[str, Any]:
         raise InvalidInput(f"the mesh has {len(result.mesh)} panels, more than the {limit} an answer may carry; "
                            "ask without include_mesh, or with a looser tolerance", code="mesh_too_large",
                            field="include_mesh")
-    answer = dataclasses.asdict(result)
-    if result.mesh:  # printed outward like every other bound; done here, in the worker, not on the event loop
-        answer["mesh"] = [{"lower": bound_decimal(p.lower, up=False), "upper": bound_decimal(p.upper, up=True),
-                           "contribution": [bound_decimal(p.contribution[0], up=False),
-                                            bound_decimal(p.contribution[1], up=True)], "bound": p.bound}
-                          for p in result.mesh]
-    return answer
+    # the answer's final shape, bounds printed outward, built here in the worker, not on the event loop
+    return integral_body(result, request)
 
 
 def run_check(request: dict[str, Any]) -> dict[str, Any]:
-    return dataclasses.asdict(check(**request))
+    return check_body(check(**request), request)
 
 
 def run_plan(request: dict[str, Any]) -> dict[str, Any]:

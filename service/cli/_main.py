@@ -16,6 +16,7 @@ from .. import __version__
 from ..errors import InvalidInput, ProblemError, QuadcertError
 from ..quadrature import (CheckResult, IntegralResult, Plan, bound_decimal, bound_text, certified_digits, check,
                           integrate, plan, shown)
+from ..results import check_body, integral_body
 from . import _junit, _table
 
 EXIT_OK, EXIT_FAIL, EXIT_UNDECIDED = 0, 1, 2
@@ -103,8 +104,8 @@ def _integrate(args: argparse.Namespace) -> int:
             result = client.integrate(args.formula, args.lower, args.upper, args.tol, **options)
     else:
         result = integrate(args.formula, args.lower, args.upper, args.tol, **options)
-    if args.json:
-        print(_json(_outward(dataclasses.asdict(result))))
+    if args.json:  # the same body the HTTP service answers
+        print(_json(integral_body(result, {"variable": args.var, "tolerance": _typed(args.tol)})))
     else:
         print(_describe(result))
     return EXIT_OK if result.tolerance_met else EXIT_UNDECIDED
@@ -138,7 +139,8 @@ def _check(args: argparse.Namespace) -> int:
             "claimed_value": args.claimed, "tolerance": args.tol, **_engine_options(args)}
     case, outcome = _one_check(args, name, item)
     if args.json and outcome is not None:
-        print(_json(_verdict_json(outcome)))
+        print(_json(check_body(outcome, {"variable": args.var, "tolerance": _typed(args.tol),
+                                         "claimed_value": _typed(args.claimed)})))
     elif outcome is not None:
         print(case.message)
     if args.junit:
@@ -213,21 +215,12 @@ def _verdict_text(outcome: CheckResult) -> str:
             f"tolerance {shown(outcome.tolerance, 6, 'near')}")
 
 
-def _verdict_json(outcome: CheckResult) -> dict[str, Any]:
-    claimed = outcome.claimed_value
-    return {"verdict": outcome.verdict, "claimed_value": Decimal(claimed) if isinstance(claimed, str) else claimed,
-            "tolerance": outcome.tolerance,
-            "distance": [bound_decimal(outcome.distance[0], up=False), bound_decimal(outcome.distance[1], up=True)],
-            "enclosure": [bound_decimal(outcome.integral.enclosure[0], up=False),
-                          bound_decimal(outcome.integral.enclosure[1], up=True)],
-            "nodes": outcome.integral.nodes}
-
-
-def _outward(result: dict[str, Any]) -> dict[str, Any]:
-    """A result dict with its bounds as outward decimals (low down, high and error bound up)."""
-    low, high = result["enclosure"]
-    return {**result, "enclosure": [bound_decimal(low, up=False), bound_decimal(high, up=True)],
-            "error_bound": bound_decimal(result["error_bound"], up=True)}
+def _typed(text: Any) -> Any:
+    """A number typed on the command line, echoed as the decimal it spells."""
+    try:
+        return Decimal(str(text).strip())
+    except ArithmeticError:
+        return text
 
 
 def _json(content: Any) -> str:

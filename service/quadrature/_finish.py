@@ -6,6 +6,7 @@ import math
 from decimal import ROUND_CEILING, ROUND_FLOOR, Context, Decimal
 
 from ..arithmetic import shown
+from ..results import bound_decimal, bound_text  # noqa: F401 - re-exported: the engine's public helpers
 
 _DOWN = Context(prec=17, rounding=ROUND_FLOOR)
 _UP = Context(prec=17, rounding=ROUND_CEILING)
@@ -28,50 +29,6 @@ def error_bound(low: float, high: float) -> tuple[float, float]:
     value = low / 2 + high / 2
     value = min(max(value, low), high)
     return value, max(difference_up(value, low), difference_up(high, value))
-
-
-def bound_decimal(value: float, up: bool) -> Decimal | float:
-    """The shortest decimal on the safe side of a float bound that still reads back as that same float.
-
-    A plain ``repr`` may print a decimal on the wrong side (the float nearest 0.1 is above one tenth, yet
-    prints as ``0.1``); a reader who takes the printed decimal at its word would then hold a bound the engine
-    never certified. This one is on the safe side as a decimal and is the same float to a float64 reader.
-    Infinite bounds stay floats.
-
-    >>> bound_decimal(0.1, up=False), bound_decimal(0.1, up=True)
-    (Decimal('0.1'), Decimal('0.10000000000000001'))
-    >>> bound_decimal(-0.0, up=True), bound_decimal(5e-324, up=False)
-    (Decimal('0'), Decimal('4E-324'))
-    """
-    if value == 0:
-        return Decimal(0)
-    if not math.isfinite(value):
-        return value
-    exact = Decimal(value)
-    shortest = Decimal(repr(value))  # reads back by definition; often already on the safe side
-    if (shortest >= exact) if up else (shortest <= exact):
-        return shortest
-    context = (_UP if up else _DOWN).copy()
-    # 18 digits always suffice: a directed rounding there moves less than 1e-17 relative, below half an ulp
-    for digits in range(len(repr(abs(value)).split("e")[0].replace(".", "").strip("0")), 19):
-        context.prec = digits
-        candidate = context.create_decimal(exact)
-        if float(candidate) == value:
-            return candidate
-    return exact  # not reached; the exact decimal of a float always reads back
-
-
-def bound_text(value: float, up: bool) -> str:
-    """:func:`bound_decimal` as text, with a lower-case exponent.
-
-    >>> bound_text(0.30000000000000004, up=True), bound_text(1e300, up=False), bound_text(-0.0, up=False)
-    ('0.30000000000000005', '1e300', '0')
-    """
-    rounded = bound_decimal(value, up)
-    if isinstance(rounded, float):
-        return "inf" if rounded > 0 else "-inf"
-    text = f"{rounded:g}"
-    return text.replace("e+", "e")
 
 
 def certified_digits(low: float, high: float) -> str | None:

@@ -92,3 +92,23 @@ def test_a_tolerance_below_float64_resolution_stops_early(client: TestClient) ->
     assert response.status_code == 200, response.text
     body = response.json()
     assert body["stop_reason"] in ("resolution_limit", "tolerance_met") and body["nodes"] < 100_000
+
+
+def test_cli_json_is_the_http_body(client: TestClient, capsys) -> None:
+    """One result shape: `quadcert integrate --json` prints what POST /v1/integrals answers (timings and the
+    cache flag aside). Both compute on flint's balls, so the figures agree to the last digit."""
+    from service.arithmetic import release_flint_context
+    from service.cli import main
+
+    try:
+        assert main(["integrate", "exp(-t^2)", "0", "1.5", "--var", "t", "--tol", "1e-9", "--json"]) == 0
+    finally:
+        release_flint_context()
+    printed = json.loads(capsys.readouterr().out, parse_float=Decimal)
+    served = json.loads(_post(client, "/v1/integrals", '{"integrand": "exp(-t^2)", "variable": "t", '
+                                                      '"lower_limit": 0, "upper_limit": 1.5, "tolerance": 1e-9}').text,
+                        parse_float=Decimal)
+    for body in (printed, served):
+        body.pop("compute_seconds")
+        body.pop("cached", None)
+    assert printed == served
