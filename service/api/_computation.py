@@ -19,7 +19,7 @@ from .._version import ENGINE_VERSION
 from ..errors import QuadcertError
 from ..formula import parse
 from ..quadrature._inputs import check_parameters
-from ..quadrature._limits import parse_limit
+from ..quadrature._endpoints import parse_limit
 from ._cache import ResultCache, cache_key
 from ._jobs import _error
 from ._metrics import Metrics

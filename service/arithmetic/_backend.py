@@ -13,7 +13,7 @@ from fractions import Fraction
 from typing import Any, Callable, Protocol
 
 from ..errors import InvalidInput
-from . import _kernels as K
+from . import _kernels as kernels
 from ._interval import ZERO, Interval, to_fraction
 
 MIN_PRECISION = 53
@@ -52,11 +52,11 @@ class Arithmetic(Protocol):
 
 
 _FUNCTIONS: dict[str, Callable[[Interval, int], Interval]] = {
-    "sqrt": K.sqrt, "exp": K.exp, "log": K.log, "log10": K.log10, "sin": K.sin, "cos": K.cos,
-    "tan": K.tan, "asin": K.asin, "acos": K.acos, "atan": K.atan, "sinh": K.sinh, "cosh": K.cosh,
-    "tanh": K.tanh, "erf": K.erf, "abs": lambda a, _prec: K.abs_(a),
+    "sqrt": kernels.sqrt, "exp": kernels.exp, "log": kernels.log, "log10": kernels.log10, "sin": kernels.sin, "cos": kernels.cos,
+    "tan": kernels.tan, "asin": kernels.asin, "acos": kernels.acos, "atan": kernels.atan, "sinh": kernels.sinh, "cosh": kernels.cosh,
+    "tanh": kernels.tanh, "erf": kernels.erf, "abs": lambda a, _prec: kernels.abs_(a),
 }
-_CONSTANTS = {"pi": K.pi, "e": K.e}
+_CONSTANTS = {"pi": kernels.pi, "e": kernels.e}
 
 
 class MpmathArithmetic:
@@ -76,12 +76,12 @@ class MpmathArithmetic:
             raise InvalidInput(f"precision {prec} is outside [{MIN_PRECISION}, {MAX_PRECISION}] bits",
                                code="invalid_precision")
         self.prec = prec
-        self.zero = K.from_int(0)
-        self.one = K.from_int(1)
+        self.zero = kernels.from_int(0)
+        self.one = kernels.from_int(1)
         self._constants: dict[str, Interval] = {}
 
     def exact(self, value: Fraction) -> Interval:
-        return K.from_fraction(Fraction(value), self.prec)
+        return kernels.from_fraction(Fraction(value), self.prec)
 
     def constant(self, name: str) -> Interval:
         if name not in self._constants:
@@ -89,46 +89,46 @@ class MpmathArithmetic:
         return self._constants[name]
 
     def add(self, a: Interval, b: Interval) -> Interval:
-        return K.add(a, b, self.prec)
+        return kernels.add(a, b, self.prec)
 
     def sub(self, a: Interval, b: Interval) -> Interval:
-        return K.sub(a, b, self.prec)
+        return kernels.sub(a, b, self.prec)
 
     def mul(self, a: Interval, b: Interval) -> Interval:
-        return K.mul(a, b, self.prec)
+        return kernels.mul(a, b, self.prec)
 
     def div(self, a: Interval, b: Interval) -> Interval:
-        return K.div(a, b, self.prec)
+        return kernels.div(a, b, self.prec)
 
     def neg(self, a: Interval) -> Interval:
-        return K.neg(a)
+        return kernels.neg(a)
 
     def sqr(self, a: Interval) -> Interval:
-        return K.sqr(a, self.prec)
+        return kernels.sqr(a, self.prec)
 
     def scale(self, a: Interval, factor: Fraction) -> Interval:
-        return K.mul_fraction(a, factor, self.prec)
+        return kernels.mul_fraction(a, factor, self.prec)
 
     def pow_int(self, a: Interval, n: int) -> Interval:
-        return K.pow_int(a, n, self.prec)
+        return kernels.pow_int(a, n, self.prec)
 
     def pow_real(self, a: Interval, b: Interval) -> Interval:
-        return K.pow_real(a, b, self.prec)
+        return kernels.pow_real(a, b, self.prec)
 
     def function(self, name: str, a: Interval) -> Interval:
         return _FUNCTIONS[name](a, self.prec)
 
     def minimum(self, a: Interval, b: Interval) -> Interval:
-        return K.minimum(a, b)
+        return kernels.minimum(a, b)
 
     def maximum(self, a: Interval, b: Interval) -> Interval:
-        return K.maximum(a, b)
+        return kernels.maximum(a, b)
 
     def hull(self, a: Interval, b: Interval) -> Interval:
-        return K.hull(a, b)
+        return kernels.hull(a, b)
 
     def intersect(self, a: Interval, b: Interval) -> Interval:
-        return K.intersect(a, b)
+        return kernels.intersect(a, b)
 
     def sign(self, a: Interval) -> int:
         """+1 if a > 0 throughout, -1 if a < 0 throughout, 0 if a reaches zero."""
@@ -153,8 +153,8 @@ class MpmathArithmetic:
 
     def from_bounds(self, low: Fraction, high: Fraction) -> Interval:
         """The enclosure [low, high] of exact rationals, rounded outward."""
-        return K.hull(K.from_fraction(low, self.prec), K.from_fraction(high, self.prec))
+        return kernels.hull(kernels.from_fraction(low, self.prec), kernels.from_fraction(high, self.prec))
 
     def width(self, a: Interval) -> float:
-        lo, hi = self.bounds(K.sub(Interval.point(a.hi), Interval.point(a.lo), 53))
+        lo, hi = self.bounds(kernels.sub(Interval.point(a.hi), Interval.point(a.lo), 53))
         return hi

@@ -21,7 +21,7 @@ from __future__ import annotations
 from fractions import Fraction
 from typing import Callable
 
-from mpmath import libmp as M
+from mpmath import libmp
 
 from ..errors import DomainViolation, MagnitudeExceeded, Unbounded
 from ._interval import ONE, ZERO, Interval, Raw, interval_text
@@ -30,14 +30,14 @@ EXTRA_BITS = 24
 GUARD_BITS = 8
 MAX_MAGNITUDE_BITS = 1 << 16       # |values| stay below 2**65536
 EXP_ARGUMENT_LIMIT = 40000         # exp(40000) ~ 2**57708, inside the magnitude cap
-FLOOR, CEILING, NEAREST = M.round_floor, M.round_ceiling, M.round_nearest
+FLOOR, CEILING, NEAREST = libmp.round_floor, libmp.round_ceiling, libmp.round_nearest
 
-_lt, _le, _gt, _ge = M.mpf_lt, M.mpf_le, M.mpf_gt, M.mpf_ge
-_add, _sub, _mul, _div = M.mpf_add, M.mpf_sub, M.mpf_mul, M.mpf_div
-_neg, _abs, _shift = M.mpf_neg, M.mpf_abs, M.mpf_shift
-_EXP_LIMIT = M.from_int(EXP_ARGUMENT_LIMIT)
-_NEG_EXP_LIMIT = M.from_int(-EXP_ARGUMENT_LIMIT)
-_MINUS_ONE = M.from_int(-1)
+_lt, _le, _gt, _ge = libmp.mpf_lt, libmp.mpf_le, libmp.mpf_gt, libmp.mpf_ge
+_add, _sub, _mul, _div = libmp.mpf_add, libmp.mpf_sub, libmp.mpf_mul, libmp.mpf_div
+_neg, _abs, _shift = libmp.mpf_neg, libmp.mpf_abs, libmp.mpf_shift
+_EXP_LIMIT = libmp.from_int(EXP_ARGUMENT_LIMIT)
+_NEG_EXP_LIMIT = libmp.from_int(-EXP_ARGUMENT_LIMIT)
+_MINUS_ONE = libmp.from_int(-1)
 
 
 def _text(x: Interval) -> str:
@@ -79,11 +79,11 @@ def _greatest(values: list[Raw]) -> Raw:
 
 def from_fraction(value: Fraction, prec: int) -> Interval:
     n, d = value.numerator, value.denominator
-    return Interval(M.from_rational(n, d, prec, FLOOR), M.from_rational(n, d, prec, CEILING))
+    return Interval(libmp.from_rational(n, d, prec, FLOOR), libmp.from_rational(n, d, prec, CEILING))
 
 
 def from_int(value: int) -> Interval:
-    raw = M.from_int(value)
+    raw = libmp.from_int(value)
     return Interval(raw, raw)
 
 
@@ -124,7 +124,7 @@ def mul_fraction(a: Interval, value: Fraction, prec: int) -> Interval:
     if value.denominator == 1:
         c = from_int(value.numerator)
         return mul(a, c, prec)
-    n, d = M.from_int(value.numerator), M.from_int(value.denominator)
+    n, d = libmp.from_int(value.numerator), libmp.from_int(value.denominator)
     lo, hi = (a.lo, a.hi) if value > 0 else (a.hi, a.lo)
     return Interval(_div(_mul(lo, n), d, prec, FLOOR), _div(_mul(hi, n), d, prec, CEILING))
 
@@ -183,15 +183,15 @@ def _constant(fn: Callable[[int, str], Raw], prec: int) -> Interval:
 
 
 def pi(prec: int) -> Interval:
-    return _constant(M.mpf_pi, prec)
+    return _constant(libmp.mpf_pi, prec)
 
 
 def e(prec: int) -> Interval:
-    return _constant(M.mpf_e, prec)
+    return _constant(libmp.mpf_e, prec)
 
 
 def ln10(prec: int) -> Interval:
-    return _constant(M.mpf_ln10, prec)
+    return _constant(libmp.mpf_ln10, prec)
 
 
 # -- elementary functions ----------------------------------------------------------------------
@@ -200,9 +200,9 @@ def exp(a: Interval, prec: int) -> Interval:
     if _gt(a.hi, _EXP_LIMIT):
         raise MagnitudeExceeded(f"exp of {_text(a)} is too large to compute with")
     if _lt(a.hi, _NEG_EXP_LIMIT):
-        return Interval(ZERO, _guarded(M.mpf_exp, _NEG_EXP_LIMIT, prec).hi)
-    lo = ZERO if _lt(a.lo, _NEG_EXP_LIMIT) else _guarded(M.mpf_exp, a.lo, prec).lo
-    hi = _guarded(M.mpf_exp, a.hi, prec).hi
+        return Interval(ZERO, _guarded(libmp.mpf_exp, _NEG_EXP_LIMIT, prec).hi)
+    lo = ZERO if _lt(a.lo, _NEG_EXP_LIMIT) else _guarded(libmp.mpf_exp, a.lo, prec).lo
+    hi = _guarded(libmp.mpf_exp, a.hi, prec).hi
     return Interval(_max(lo, ZERO), hi)
 
 
@@ -217,26 +217,26 @@ def _require_positive(name: str, a: Interval, allow_zero: bool) -> None:
 
 def log(a: Interval, prec: int) -> Interval:
     _require_positive("log", a, allow_zero=False)
-    return _increasing(M.mpf_log, a, prec)
+    return _increasing(libmp.mpf_log, a, prec)
 
 
 def log10(a: Interval, prec: int) -> Interval:
     _require_positive("log10", a, allow_zero=False)
-    return div(_increasing(M.mpf_log, a, prec + 8), ln10(prec + 8), prec)
+    return div(_increasing(libmp.mpf_log, a, prec + 8), ln10(prec + 8), prec)
 
 
 def sqrt(a: Interval, prec: int) -> Interval:
     _require_positive("sqrt", a, allow_zero=True)
-    return _increasing(M.mpf_sqrt, a, prec)
+    return _increasing(libmp.mpf_sqrt, a, prec)
 
 
 def _quarter_turns(a: Interval, prec: int) -> tuple[int, int] | None:
     """Integers n with n*pi/2 possibly in a, as a range; None when a spans a full turn."""
     scale = div(from_int(2), pi(prec + 16), prec + 16)
     u = mul(a, scale, prec + 16)
-    if _gt(_sub(u.hi, u.lo, 53, CEILING), M.from_int(4)):
+    if _gt(_sub(u.hi, u.lo, 53, CEILING), libmp.from_int(4)):
         return None
-    return M.to_int(M.mpf_ceil(u.lo)), M.to_int(M.mpf_floor(u.hi))
+    return libmp.to_int(libmp.mpf_ceil(u.lo)), libmp.to_int(libmp.mpf_floor(u.hi))
 
 
 def _periodic(a: Interval, prec: int, fn: PointFunction, phase: int) -> Interval:
@@ -255,22 +255,22 @@ def _periodic(a: Interval, prec: int, fn: PointFunction, phase: int) -> Interval
 
 
 def sin(a: Interval, prec: int) -> Interval:
-    return _periodic(a, prec, M.mpf_sin, 0)
+    return _periodic(a, prec, libmp.mpf_sin, 0)
 
 
 def cos(a: Interval, prec: int) -> Interval:
-    return _periodic(a, prec, M.mpf_cos, 1)
+    return _periodic(a, prec, libmp.mpf_cos, 1)
 
 
 def tan(a: Interval, prec: int) -> Interval:
     turns = _quarter_turns(a, prec)
     if turns is None or any(n % 2 for n in range(turns[0], turns[1] + 1)):
         raise Unbounded(f"tan has a pole in {_text(a)}", certain=False)
-    return _increasing(M.mpf_tan, a, prec)
+    return _increasing(libmp.mpf_tan, a, prec)
 
 
 def atan(a: Interval, prec: int) -> Interval:
-    return _increasing(M.mpf_atan, a, prec)
+    return _increasing(libmp.mpf_atan, a, prec)
 
 
 def _require_unit(name: str, a: Interval) -> None:
@@ -282,12 +282,12 @@ def _require_unit(name: str, a: Interval) -> None:
 
 def asin(a: Interval, prec: int) -> Interval:
     _require_unit("asin", a)
-    return _increasing(M.mpf_asin, a, prec)
+    return _increasing(libmp.mpf_asin, a, prec)
 
 
 def acos(a: Interval, prec: int) -> Interval:
     _require_unit("acos", a)
-    return neg(_increasing(lambda x, wp, rnd: _neg(M.mpf_acos(x, wp, rnd)), a, prec))
+    return neg(_increasing(lambda x, wp, rnd: _neg(libmp.mpf_acos(x, wp, rnd)), a, prec))
 
 
 def _check_hyperbolic(a: Interval) -> None:
@@ -297,13 +297,13 @@ def _check_hyperbolic(a: Interval) -> None:
 
 def sinh(a: Interval, prec: int) -> Interval:
     _check_hyperbolic(a)
-    return _increasing(M.mpf_sinh, a, prec)
+    return _increasing(libmp.mpf_sinh, a, prec)
 
 
 def cosh(a: Interval, prec: int) -> Interval:
     _check_hyperbolic(a)
-    lo = _guarded(M.mpf_cosh, a.lo, prec)
-    hi = lo if a.is_point else _guarded(M.mpf_cosh, a.hi, prec)
+    lo = _guarded(libmp.mpf_cosh, a.lo, prec)
+    hi = lo if a.is_point else _guarded(libmp.mpf_cosh, a.hi, prec)
     if _le(a.lo, ZERO) and _ge(a.hi, ZERO):
         return Interval(ONE, _max(lo.hi, hi.hi))
     if a.lo[0] == 0:
@@ -320,8 +320,8 @@ def _saturating(fn: PointFunction, limit: Raw) -> PointFunction:
     return clamped
 
 
-_TANH = _saturating(M.mpf_tanh, M.from_int(10000))
-_ERF = _saturating(M.mpf_erf, M.from_int(1000))
+_TANH = _saturating(libmp.mpf_tanh, libmp.from_int(10000))
+_ERF = _saturating(libmp.mpf_erf, libmp.from_int(1000))
 
 
 def _bounded_by_one(fn: PointFunction, a: Interval, prec: int) -> Interval:
@@ -366,7 +366,7 @@ def pow_int(a: Interval, n: int, prec: int) -> Interval:
     for end in (a.lo, a.hi):
         if end[1] and (end[2] + end[3]) * n > MAX_MAGNITUDE_BITS:
             raise MagnitudeExceeded(f"{_text(a)}^{n} is too large to compute with")
-    power: PointFunction = lambda x, wp, rnd: M.mpf_pow_int(x, n, wp, rnd)  # noqa: E731
+    power: PointFunction = lambda x, wp, rnd: libmp.mpf_pow_int(x, n, wp, rnd)  # noqa: E731
     if n % 2 or a.lo[0] == 0:  # odd power, or even power of a non-negative interval: increasing
         return _increasing(power, a, prec)
     if _le(a.hi, ZERO):  # even power of a non-positive interval

@@ -14,12 +14,12 @@ from ..arithmetic import Arithmetic
 from ..errors import InvalidInput
 from ..formula import Binary, Call, Constant, Formula, Negate, Node, Number, Parameter, Variable
 from ..formula._nodes import distinct_arguments
-from . import _series as S
+from . import _series as series
 
-_UNARY: dict[str, Callable[[Arithmetic, S.Series], S.Series]] = {
-    "sqrt": S.sqrt, "exp": S.exp, "log": S.log, "log10": S.log10, "sin": S.sin, "cos": S.cos,
-    "tan": S.tan, "asin": S.asin, "acos": S.acos, "atan": S.atan, "sinh": S.sinh, "cosh": S.cosh,
-    "tanh": S.tanh, "erf": S.erf, "abs": S.abs_,
+_UNARY: dict[str, Callable[[Arithmetic, series.Series], series.Series]] = {
+    "sqrt": series.sqrt, "exp": series.exp, "log": series.log, "log10": series.log10, "sin": series.sin, "cos": series.cos,
+    "tan": series.tan, "asin": series.asin, "acos": series.acos, "atan": series.atan, "sinh": series.sinh, "cosh": series.cosh,
+    "tanh": series.tanh, "erf": series.erf, "abs": series.abs_,
 }
 
 # A compiled node is either ("const", enclosure) or ("series", function of (x series) -> series).
@@ -56,12 +56,12 @@ class Program:
         """Enclosure of f over the interval x."""
         return self.taylor(x, 0)[0]
 
-    def taylor(self, x: Any, order: int) -> S.Series:
+    def taylor(self, x: Any, order: int) -> series.Series:
         """Enclosures of f⁽ᵏ⁾(X)/k! for k = 0..order, cut short where f is not that smooth."""
         kind, payload = self._root
         if kind == "const":
             return [payload, *([self.ar.zero] * order)]
-        return payload(S.variable(self.ar, x, order))
+        return payload(series.variable(self.ar, x, order))
 
     # -- compilation -------------------------------------------------------------------------
     def _compile(self, node: Node) -> Compiled:
@@ -78,7 +78,7 @@ class Program:
             kind, inner = self._compile(node.operand)
             if kind == "const":
                 return ("const", ar.neg(inner))
-            return ("series", lambda xs: S.neg(ar, inner(xs)))
+            return ("series", lambda xs: series.neg(ar, inner(xs)))
         if isinstance(node, Call):
             return self._call(node)
         assert isinstance(node, Binary)
@@ -95,12 +95,12 @@ class Program:
         function = node.function
         return ("series", lambda xs: self._apply(function, [f(xs) for f in lifted]))
 
-    def _apply(self, function: str, values: list[S.Series]) -> S.Series:
+    def _apply(self, function: str, values: list[series.Series]) -> series.Series:
         if function in ("min", "max"):
-            return S.extremum(self.ar, values, largest=function == "max")
+            return series.extremum(self.ar, values, largest=function == "max")
         return _UNARY[function](self.ar, values[0])
 
-    def _lift(self, compiled: Compiled) -> Callable[[S.Series], S.Series]:
+    def _lift(self, compiled: Compiled) -> Callable[[series.Series], series.Series]:
         kind, payload = compiled
         if kind == "series":
             return payload
@@ -118,32 +118,32 @@ class Program:
             return ("const", scalar(left, right))
         if op == "+":
             if lk == "const":
-                return ("series", lambda xs: S.add_constant(ar, right(xs), left))
+                return ("series", lambda xs: series.add_constant(ar, right(xs), left))
             if rk == "const":
-                return ("series", lambda xs: S.add_constant(ar, left(xs), right))
-            return ("series", lambda xs: S.add(ar, left(xs), right(xs)))
+                return ("series", lambda xs: series.add_constant(ar, left(xs), right))
+            return ("series", lambda xs: series.add(ar, left(xs), right(xs)))
         if op == "-":
             if rk == "const":
                 negated = ar.neg(right)
-                return ("series", lambda xs: S.add_constant(ar, left(xs), negated))
+                return ("series", lambda xs: series.add_constant(ar, left(xs), negated))
             if lk == "const":
-                return ("series", lambda xs: S.add_constant(ar, S.neg(ar, right(xs)), left))
-            return ("series", lambda xs: S.sub(ar, left(xs), right(xs)))
+                return ("series", lambda xs: series.add_constant(ar, series.neg(ar, right(xs)), left))
+            return ("series", lambda xs: series.sub(ar, left(xs), right(xs)))
         if op == "*":
             if lk == "const":
-                return ("series", lambda xs: S.mul_constant(ar, right(xs), left))
+                return ("series", lambda xs: series.mul_constant(ar, right(xs), left))
             if rk == "const":
-                return ("series", lambda xs: S.mul_constant(ar, left(xs), right))
+                return ("series", lambda xs: series.mul_constant(ar, left(xs), right))
             if node.left == node.right:
-                return ("series", lambda xs: S.square(ar, left(xs)))
-            return ("series", lambda xs: S.mul(ar, left(xs), right(xs)))
+                return ("series", lambda xs: series.square(ar, left(xs)))
+            return ("series", lambda xs: series.mul(ar, left(xs), right(xs)))
         # division
         if rk == "const":
             inverse = ar.div(ar.one, right)
-            return ("series", lambda xs: S.mul_constant(ar, left(xs), inverse))
+            return ("series", lambda xs: series.mul_constant(ar, left(xs), inverse))
         if lk == "const":
-            return ("series", lambda xs: S.reciprocal_constant(ar, left, right(xs)))
-        return ("series", lambda xs: S.div(ar, left(xs), right(xs)))
+            return ("series", lambda xs: series.reciprocal_constant(ar, left, right(xs)))
+        return ("series", lambda xs: series.div(ar, left(xs), right(xs)))
 
     def _power(self, node: Binary, base: Compiled, exponent: Compiled) -> Compiled:
         ar = self.ar
@@ -155,6 +155,6 @@ class Program:
             return ("const", ar.pow_real(b, e))
         if integer is not None and abs(integer) <= 1024:
             n = integer
-            return ("series", lambda xs: S.pow_int(ar, b(xs), n))
+            return ("series", lambda xs: series.pow_int(ar, b(xs), n))
         lifted_base, lifted_exponent = self._lift(base), self._lift(exponent)
-        return ("series", lambda xs: S.pow_real(ar, lifted_base(xs), lifted_exponent(xs)))
+        return ("series", lambda xs: series.pow_real(ar, lifted_base(xs), lifted_exponent(xs)))

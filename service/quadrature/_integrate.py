@@ -13,7 +13,7 @@ from ..errors import ArithmeticFault, InvalidInput, NotCertifiable
 from ..formula import Formula, parse
 from . import _fast, _inputs
 from ._finish import error_bound
-from ._limits import LimitValue, enclose_limit, exact_limit, parse_limit
+from ._endpoints import LimitValue, enclose_limit, exact_limit, parse_limit
 from ._result import IntegralResult, PanelReport
 from ._simpson import FLOAT_FLOOR, Refiner
 

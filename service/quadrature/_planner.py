@@ -21,7 +21,7 @@ from ..errors import ArithmeticFault, InvalidInput, NotCertifiable
 from ..formula import Formula
 from . import _inputs
 from ._integrate import ArithmeticFactory, prepare
-from ._limits import LimitValue, enclose_limit, parse_limit
+from ._endpoints import LimitValue, enclose_limit, parse_limit
 from ._result import Plan, RulePlan
 
 MAX_PIECES = 4096
