@@ -1,4 +1,5 @@
-"""Every error code mapped once to an RFC 9457 problem: status, title, and the response."""
+"""Every error code documented once (``PROBLEM_TYPES``: status, title, meaning) and turned into an RFC 9457
+problem document here; ``/problems/{code}`` serves the same table."""
 
 from __future__ import annotations
 

@@ -1,4 +1,5 @@
-"""Assembles the app: settings, pool, cache, metrics, routers, error mapping. No logic of its own."""
+"""Assembles the app: settings, pool, cache, metrics, routers, and the handlers that turn framework errors
+(schema validation, 404, 405) into problem documents. Requests are answered in the routers."""
 
 from __future__ import annotations
 

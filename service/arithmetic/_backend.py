@@ -1,8 +1,10 @@
 """The one interface through which the rest of quadcert does rigorous arithmetic.
 
 Derivative enclosures and quadrature only call methods of an
-:class:`Arithmetic`; a second rigorous backend (for example ball arithmetic
-in C) can be added by implementing this protocol, without touching them.
+:class:`Arithmetic`. Two backends implement it: :class:`MpmathArithmetic` here
+(the reference) and ``FlintArithmetic`` (python-flint's arb balls, in
+``_flint_backend.py``); ``tests/arithmetic/test_backends_agree.py`` holds them
+to the same answers.
 An instance fixes its precision at construction: there is no global state to
 change, so instances are safe to use from concurrent callers.
 """

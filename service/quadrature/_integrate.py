@@ -50,6 +50,23 @@ def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: Li
               ) -> IntegralResult:
     """Certified ∫ integrand d(variable) from lower_limit to upper_limit.
 
+    Parameters:
+        integrand: formula text in the language of the README (or a parsed :class:`Formula`).
+        lower_limit, upper_limit: a number or text such as ``"pi/2"``; text and Decimals are read exactly,
+            a float as the shortest decimal that prints it. The limits may be in either order.
+        tolerance: absolute target for the error bound (in [1e-60, 1e300]; text is read exactly).
+        variable: the integration variable's name.
+        parameters: name → number (or text) for the formula's other names.
+        relative_tolerance: also accept a bound ≤ this × |integral| (below 1).
+        max_nodes: evaluation budget; past it the rigorous enclosure so far is returned, not met.
+        deadline_seconds: wall-clock budget; past it, likewise.
+        include_mesh: also return every panel with its contribution and the bound that certified it.
+        precision_bits, arithmetic: force the arbitrary-precision engine at this precision or on this
+            backend (the compiled float64 engine is tried first otherwise).
+
+    Returns an :class:`IntegralResult`; raises :class:`FormulaError`, :class:`InvalidInput` or
+    :class:`NotCertifiable` (each with a ``code``) when it cannot answer.
+
     >>> r = integrate("4/(1+x^2)", 0, 1, 1e-10)
     >>> r.enclosure[0] <= 3.141592653589793 <= r.enclosure[1], r.error_bound <= 1e-10
     (True, True)
