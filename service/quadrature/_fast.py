@@ -234,22 +234,3 @@ def run(compiled: Compiled, a: tuple[Fraction, Fraction], b: tuple[Fraction, Fra
     return FastOutcome((low, high), _STOPS[status], nodes, panels, used, reports)
 
 
-def taylor(compiled: Compiled, low: float, high: float, order: int) -> list[tuple[float, float]] | None:
-    """Enclosures of f⁽ᵏ⁾(X)/k! over X = [low, high] from the compiled recurrences (None: not enclosable)."""
-    assert _native is not None
-    return _native.taylor(compiled.code, compiled.constants, compiled.stack, low, high, order)
-
-
-def enclose_function(name: str, low: float, high: float) -> tuple[float, float] | None:
-    """The guarded layer's enclosure of one function over [low, high] (None: outside its domain)."""
-    assert _native is not None
-    return _native.enclose(FUNCTION_CODES[name], low, high)
-
-
-def operate(op: str, a: tuple[float, float], b: tuple[float, float] = (0.0, 0.0), n: int = 0
-            ) -> tuple[float, float] | None:
-    assert _native is not None
-    codes = {"+": 0, "-": 1, "*": 2, "/": 3, "sqr": 4, "pow": 5}
-    return _native.operate(codes[op], a[0], a[1], b[0], b[1], n)
-
-

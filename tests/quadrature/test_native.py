@@ -20,6 +20,7 @@ from service.derivatives import Program
 from service.errors import NotCertifiable
 from service.formula import parse
 from service.quadrature import _fast, integrate
+from tests.quadrature import native_probe
 from tests.conftest import HP
 
 pytestmark = pytest.mark.skipif(not _fast.AVAILABLE, reason="the C engine was not built")
@@ -84,7 +85,7 @@ def argument_interval(draw, name: str):
 def test_guarded_functions_contain_110_digit_values(name: str, data) -> None:
     """Reference: mpmath at 110 digits at exact points of the interval."""
     a, b = data.draw(argument_interval(name))
-    enclosure = _fast.enclose_function(name, a, b)
+    enclosure = native_probe.enclose_function(name, a, b)
     assume(enclosure is not None)  # tan near a pole, log of a subnormal rounded to 0 ...
     low, high = (HP.mpf(v) for v in enclosure)
     for point in _points_to_check(name, a, b):
@@ -96,7 +97,7 @@ def test_guarded_functions_contain_110_digit_values(name: str, data) -> None:
 def test_guarded_functions_contain_flint_balls(name: str, data) -> None:
     """Reference: python-flint arb at 300 bits; its ball at each end must meet our range."""
     a, b = data.draw(argument_interval(name))
-    enclosure = _fast.enclose_function(name, a, b)
+    enclosure = native_probe.enclose_function(name, a, b)
     assume(enclosure is not None)
     for x in (a, b):
         assert _meets(enclosure, _flint_ball(name, x)), (name, a, b, x, enclosure)
@@ -114,7 +115,7 @@ _NEAR_QUARTERS = [math.nextafter(float(k * HP.pi / 2), d) for k in (1, 2, 3, 4, 
 @pytest.mark.parametrize("x", _HARD_EXP)
 def test_exp_at_known_hard_inputs(x: float) -> None:
     """Reference: python-flint arb at 300 bits."""
-    enclosure = _fast.enclose_function("exp", x, x)
+    enclosure = native_probe.enclose_function("exp", x, x)
     assert enclosure is not None and _meets(enclosure, _flint_ball("exp", x))
 
 
@@ -123,7 +124,7 @@ def test_exp_at_known_hard_inputs(x: float) -> None:
 def test_trigonometry_next_to_multiples_of_half_pi(name: str, x: float) -> None:
     """Reference: python-flint arb at 300 bits, for the point and a one-ulp interval around it."""
     for a, b in ((x, x), (math.nextafter(x, -math.inf), math.nextafter(x, math.inf))):
-        enclosure = _fast.enclose_function(name, a, b)
+        enclosure = native_probe.enclose_function(name, a, b)
         if enclosure is None:
             assert name == "tan"  # a pole may lie inside: refusing is right
             continue
@@ -133,12 +134,12 @@ def test_trigonometry_next_to_multiples_of_half_pi(name: str, x: float) -> None:
 
 def test_ranges_reach_interior_extrema() -> None:
     """From memory: sin peaks at pi/2 in [1, 2], cos bottoms out at pi in [3, 4], |sin| <= 1 always."""
-    assert _fast.enclose_function("sin", 1.0, 2.0)[1] == 1.0
-    assert _fast.enclose_function("cos", 3.0, 4.0)[0] == -1.0
-    assert _fast.enclose_function("sin", 1e300, 1e300) == (-1.0, 1.0)
-    assert _fast.enclose_function("tan", 1.0, 2.0) is None  # pi/2 inside
-    assert _fast.enclose_function("log", -1.0, 1.0) is None
-    assert _fast.enclose_function("sqrt", -1e-300, 1.0) is None
+    assert native_probe.enclose_function("sin", 1.0, 2.0)[1] == 1.0
+    assert native_probe.enclose_function("cos", 3.0, 4.0)[0] == -1.0
+    assert native_probe.enclose_function("sin", 1e300, 1e300) == (-1.0, 1.0)
+    assert native_probe.enclose_function("tan", 1.0, 2.0) is None  # pi/2 inside
+    assert native_probe.enclose_function("log", -1.0, 1.0) is None
+    assert native_probe.enclose_function("sqrt", -1e-300, 1.0) is None
 
 
 FINITE = st.floats(-1e150, 1e150, allow_nan=False, allow_infinity=False) | st.floats(-1e-300, 1e-300)
@@ -149,7 +150,7 @@ def test_arithmetic_contains_the_exact_rational_result(op: str, a1: float, a2: f
                                                        b2: float) -> None:
     """Reference: exact rational arithmetic on the four corner values."""
     a, b = tuple(sorted((a1, a2))), tuple(sorted((b1, b2)))
-    result = _fast.operate(op, a, b)
+    result = native_probe.operate(op, a, b)
     if op == "/" and b[0] <= 0 <= b[1]:
         assert result is None
         return
@@ -167,7 +168,7 @@ def test_powers_and_squares_contain_exact_values(a1: float, a2: float, n: int) -
     """Reference: exact rational powers at the ends and, for an interval around 0, at 0."""
     a = tuple(sorted((a1, a2)))
     for op, power in (("sqr", 2), ("pow", n)):
-        result = _fast.operate(op, a, n=power if op == "pow" else 0)
+        result = native_probe.operate(op, a, n=power if op == "pow" else 0)
         assert result is not None
         for x in (*a, *((0.0,) if a[0] <= 0 <= a[1] else ())):
             value = Fraction(x) ** power
@@ -177,9 +178,9 @@ def test_powers_and_squares_contain_exact_values(a1: float, a2: float, n: int) -
 
 def test_sums_that_are_exact_stay_points() -> None:
     """From memory: 1 + 2 = 3 and 0.5 + 0.25 = 0.75 exactly in float64, 0.1 + 0.2 is not."""
-    assert _fast.operate("+", (1.0, 1.0), (2.0, 2.0)) == (3.0, 3.0)
-    assert _fast.operate("+", (0.5, 0.5), (0.25, 0.25)) == (0.75, 0.75)
-    low, high = _fast.operate("+", (0.1, 0.1), (0.2, 0.2))
+    assert native_probe.operate("+", (1.0, 1.0), (2.0, 2.0)) == (3.0, 3.0)
+    assert native_probe.operate("+", (0.5, 0.5), (0.25, 0.25)) == (0.75, 0.75)
+    low, high = native_probe.operate("+", (0.1, 0.1), (0.2, 0.2))
     assert low < high and Fraction(low) <= Fraction(0.1) + Fraction(0.2) <= Fraction(high)
 
 
@@ -205,7 +206,7 @@ def test_taylor_enclosures_contain_the_precise_engines_point_values(formula: str
     low, high = start, start + width
     compiled = _fast.compile_formula(parse(formula), {})
     assert compiled is not None
-    ours = _fast.taylor(compiled, low, high, 4)
+    ours = native_probe.taylor(compiled, low, high, 4)
     assume(ours is not None)
     point = Fraction(low) + (Fraction(high) - Fraction(low)) * Fraction(where, 100)
     reference = _program_taylor(formula, point)
