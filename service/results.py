@@ -179,3 +179,15 @@ def check_body(result: CheckResult | dict[str, Any], request: dict[str, Any]) ->
             "tolerance": request.get("tolerance", data["tolerance"]),
             "distance": [_outward(near, up=False), _outward(far, up=True)], "enclosure": integral["enclosure"],
             "integral": integral, "engine_version": ENGINE_VERSION}
+
+
+def plan_body(result: Plan) -> dict[str, Any]:
+    """The JSON body of a plan: spacing rounded down, derivative and error bounds rounded up, as decimals."""
+    content = asdict(result)
+    for name in ("simpson", "trapezoid"):
+        rule = content[name]
+        rule["spacing"] = bound_decimal(rule["spacing"], up=False)
+        for key in ("derivative_bound", "error_bound"):
+            if rule[key] is not None:
+                rule[key] = bound_decimal(rule[key], up=True)
+    return content

@@ -2,13 +2,12 @@
 
 from __future__ import annotations
 
-import dataclasses
 import traceback
 from typing import Any, Callable
 
 from ..errors import FormulaError, InvalidInput, NotCertifiable, QuadcertError
-from ..quadrature import bound_decimal, check, integrate, plan
-from ..results import check_body, integral_body
+from ..quadrature import check, integrate, plan
+from ..results import check_body, integral_body, plan_body
 
 
 def _error(error: Exception) -> dict[str, Any]:
@@ -42,14 +41,7 @@ def run_check(request: dict[str, Any]) -> dict[str, Any]:
 
 
 def run_plan(request: dict[str, Any]) -> dict[str, Any]:
-    answer = dataclasses.asdict(plan(**request))
-    for name in ("simpson", "trapezoid"):  # spacing rounded down, bounds up, as decimals
-        rule = answer[name]
-        rule["spacing"] = bound_decimal(rule["spacing"], up=False)
-        for key in ("derivative_bound", "error_bound"):
-            if rule[key] is not None:
-                rule[key] = bound_decimal(rule[key], up=True)
-    return answer
+    return plan_body(plan(**request))
 
 
 def run_sleep(request: dict[str, Any]) -> dict[str, Any]:  # used by fault tests only

@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import argparse
-import dataclasses
 import signal
 import sys
 import time
@@ -14,9 +13,9 @@ import simplejson
 
 from .. import __version__
 from ..errors import InvalidInput, ProblemError, QuadcertError
-from ..quadrature import (CheckResult, IntegralResult, Plan, bound_decimal, bound_text, certified_digits, check,
+from ..quadrature import (CheckResult, IntegralResult, Plan, bound_text, certified_digits, check,
                           integrate, plan, shown)
-from ..results import check_body, integral_body
+from ..results import check_body, integral_body, plan_body
 from . import _junit, _table
 
 EXIT_OK, EXIT_FAIL, EXIT_UNDECIDED = 0, 1, 2
@@ -264,20 +263,8 @@ def _plan(args: argparse.Namespace) -> int:
             result = client.plan(args.formula, args.lower, args.upper, args.tol, **options)
     else:
         result = plan(args.formula, args.lower, args.upper, args.tol, **options)
-    print(_json(_plan_json(result)) if args.json else _describe_plan(result))
+    print(_json(plan_body(result)) if args.json else _describe_plan(result))
     return EXIT_OK
-
-
-def _plan_json(result: Plan) -> dict[str, Any]:
-    """The plan with its spacing rounded down and its bounds rounded up as decimals."""
-    content = dataclasses.asdict(result)
-    for name in ("simpson", "trapezoid"):
-        rule = content[name]
-        rule["spacing"] = bound_decimal(rule["spacing"], up=False)
-        for key in ("derivative_bound", "error_bound"):
-            if rule[key] is not None:
-                rule[key] = bound_decimal(rule[key], up=True)
-    return content
 
 
 def _describe_plan(result: Plan) -> str:

@@ -2,13 +2,11 @@
 
 from __future__ import annotations
 
-import math
 import time
 from fractions import Fraction
 from typing import Any
 
 from ..arithmetic import fraction_down, fraction_up
-from ..errors import InvalidInput
 from . import _inputs
 from ._integrate import integrate
 from ._result import CheckResult

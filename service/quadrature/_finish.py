@@ -5,7 +5,7 @@ from __future__ import annotations
 import math
 from decimal import ROUND_CEILING, ROUND_FLOOR, Context, Decimal
 
-from ..arithmetic import shown
+from ..arithmetic import shown  # noqa: F401 - re-exported by the package
 from ..results import bound_decimal, bound_text  # noqa: F401 - re-exported: the engine's public helpers
 
 _DOWN = Context(prec=17, rounding=ROUND_FLOOR)

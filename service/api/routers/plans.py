@@ -5,7 +5,7 @@ from __future__ import annotations
 from fastapi import APIRouter, Request
 from fastapi.responses import JSONResponse
 
-from .._exact_json import ExactJSONResponse, ExactRoute
+from .._exact_json import ExactRoute
 from .._schemas import PlanRequest, PlanResponse
 from ._common import PROBLEM_RESPONSES, computation, context, respond
 
