@@ -147,7 +147,7 @@ def start_server(workers: int, queue_limit: int, deadline: float) -> tuple[subpr
     port = free_port()
     env = {**os.environ, "QUADCERT_LOG_LEVEL": "WARNING", "QUADCERT_QUEUE_LIMIT": str(queue_limit),
            "QUADCERT_REQUEST_DEADLINE_SECONDS": str(deadline)}
-    process = subprocess.Popen([sys.executable, "-m", "service.cli", "serve", "--port", str(port), "--workers",
+    process = subprocess.Popen([sys.executable, "-m", "quadcert.cli", "serve", "--port", str(port), "--workers",
                                 str(workers)], env=env, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
     url = f"http://127.0.0.1:{port}"
     for _ in range(600):

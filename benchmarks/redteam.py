@@ -171,7 +171,7 @@ def verdict(enclosure: tuple[float, float], ball: Any) -> str:
 # -- the paths -----------------------------------------------------------------------------------
 
 def _library(arithmetic: Any) -> Callable[[Case, float], Any]:
-    from service import integrate
+    from quadcert import integrate
 
     def run(case: Case, deadline: float) -> Any:
         return integrate(case.text, case.lower, case.upper, case.tolerance, deadline_seconds=deadline,
@@ -180,7 +180,7 @@ def _library(arithmetic: Any) -> Callable[[Case, float], Any]:
 
 
 def _flint_path() -> Callable[[Case, float], Any]:
-    from service.arithmetic import FlintArithmetic, claim_flint_context, release_flint_context
+    from quadcert.arithmetic import FlintArithmetic, claim_flint_context, release_flint_context
 
     inner = _library(FlintArithmetic)
 
@@ -197,7 +197,7 @@ class _Service:
     def __init__(self) -> None:
         from fastapi.testclient import TestClient
 
-        from service.api import Settings, create_app
+        from quadcert.api import Settings, create_app
 
         settings = Settings(workers=2, queue_limit=64, request_deadline_seconds=4.0, log_level="ERROR")
         self.client = TestClient(create_app(settings), raise_server_exceptions=False)
@@ -246,8 +246,8 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--no-service", action="store_true", help="skip the HTTP path")
     args = parser.parse_args(argv)
 
-    from service.arithmetic import MpmathArithmetic
-    from service.errors import QuadcertError
+    from quadcert.arithmetic import MpmathArithmetic
+    from quadcert.errors import QuadcertError
 
     rng = random.Random(args.seed)
     paths: dict[str, Callable[[Case, float], Any]] = {

@@ -30,9 +30,9 @@ import mpmath
 import numpy as np
 import scipy.integrate
 
-from service import integrate, parse
-from service.arithmetic import MpmathArithmetic
-from service.derivatives import Program
+from quadcert import integrate, parse
+from quadcert.arithmetic import MpmathArithmetic
+from quadcert.derivatives import Program
 
 A = flint.acb
 
@@ -254,7 +254,7 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--markdown", type=Path)
     args = parser.parse_args(argv)
     if args.backend == "flint":
-        from service.arithmetic import claim_flint_context
+        from quadcert.arithmetic import claim_flint_context
 
         claim_flint_context()  # this benchmark runs on one thread, like an engine worker
     names = QUICK if args.quick else args.only

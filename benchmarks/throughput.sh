@@ -7,7 +7,7 @@ cd "$(dirname "$0")/.."
 duration="${1:-15}"
 connections="${2:-32}"
 port=$(python3 -c 'import socket; s=socket.socket(); s.bind(("127.0.0.1", 0)); print(s.getsockname()[1])')
-QUADCERT_LOG_LEVEL=WARNING QUADCERT_QUEUE_LIMIT=256 python3 -m service.cli serve --port "$port" &
+QUADCERT_LOG_LEVEL=WARNING QUADCERT_QUEUE_LIMIT=256 python3 -m quadcert.cli serve --port "$port" &
 server=$!
 trap 'kill -TERM $server; wait $server' EXIT
 for _ in $(seq 100); do curl -sf "http://127.0.0.1:$port/readyz" >/dev/null && break; sleep 0.2; done

@@ -7,7 +7,7 @@ import pickle
 
 import pytest
 
-from service import errors
+from quadcert import errors
 
 INSTANCES = [
     errors.QuadcertError("base", code="quadcert_error"),

@@ -20,12 +20,12 @@ from fractions import Fraction
 
 from hypothesis import example, given, strategies as st
 
-from service.api._exact_json import dumps
-from service.api._formats import FIELDS, render
-from service.cli import _main, _table
-from service.quadrature import CheckResult, IntegralResult
-from service.quadrature._finish import error_bound
-from service.results import check_body, integral_body
+from quadcert.api._exact_json import dumps
+from quadcert.api._formats import FIELDS, render
+from quadcert.cli import _main, _table
+from quadcert.quadrature import CheckResult, IntegralResult
+from quadcert.quadrature._finish import error_bound
+from quadcert.results import check_body, integral_body
 
 NUMBER = re.compile(r"-?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?|-?inf")
 BOUNDS = st.floats(allow_nan=False, allow_infinity=False, width=64)
@@ -94,7 +94,7 @@ def test_every_renderer_rounds_outward(a: float, b: float) -> None:
 @given(BOUNDS, BOUNDS, BOUNDS)
 def test_check_distances_round_outward(a: float, b: float, claimed: float) -> None:
     """The verdict's |claimed − exact| bounds: near rounded down, far up, in text (and so JUnit) and JSON."""
-    from service.quadrature._check import distance_bounds
+    from quadcert.quadrature._check import distance_bounds
 
     result = result_of(a, b)
     near, far = distance_bounds(Fraction(claimed), *result.enclosure)
@@ -122,8 +122,8 @@ def test_zero_prints_as_zero() -> None:
 
 def test_mesh_and_plan_answers_round_outward() -> None:
     """The service's mesh panels and plan figures, as the worker sends them, against the engine's floats."""
-    from service.api._jobs import run_integral, run_plan
-    from service.quadrature import integrate, plan
+    from quadcert.api._jobs import run_integral, run_plan
+    from quadcert.quadrature import integrate, plan
 
     request = {"integrand": "sin(3*x)*exp(x/3)", "lower_limit": "0.1", "upper_limit": 2, "tolerance": 1e-6,
                "include_mesh": True}

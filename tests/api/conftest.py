@@ -7,7 +7,7 @@ from typing import Iterator
 import pytest
 from fastapi.testclient import TestClient
 
-from service.api import Settings, create_app
+from quadcert.api import Settings, create_app
 
 
 @pytest.fixture(scope="package")

@@ -8,7 +8,7 @@ import time
 import pytest
 from fastapi.testclient import TestClient
 
-from service.api import Settings, create_app
+from quadcert.api import Settings, create_app
 
 RAW = {"content-type": "application/json"}
 

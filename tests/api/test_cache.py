@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from service.api._cache import ENTRY_BYTES, PANEL_BYTES, ResultCache
+from quadcert.api._cache import ENTRY_BYTES, PANEL_BYTES, ResultCache
 
 
 def test_meshes_are_bounded_by_bytes() -> None:

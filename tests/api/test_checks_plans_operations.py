@@ -64,7 +64,7 @@ def test_exported_openapi_is_in_sync(client: TestClient) -> None:
     served = client.get("/openapi.json").json()
     assert served["openapi"].startswith("3.1")
     exported = json.loads(NOTES.read_text())
-    assert served == exported, "run: python -m service.api.export_openapi > openapi-notes/openapi.json"
+    assert served == exported, "run: python -m quadcert.api.export_openapi > openapi-notes/openapi.json"
 
 
 def test_every_json_operation_documents_malformed_body(client: TestClient) -> None:

@@ -97,8 +97,8 @@ def test_a_tolerance_below_float64_resolution_stops_early(client: TestClient) ->
 def test_cli_json_is_the_http_body(client: TestClient, capsys) -> None:
     """One result shape: `quadcert integrate --json` prints what POST /v1/integrals answers (timings and the
     cache flag aside). Both compute on flint's balls, so the figures agree to the last digit."""
-    from service.arithmetic import release_flint_context
-    from service.cli import main
+    from quadcert.arithmetic import release_flint_context
+    from quadcert.cli import main
 
     try:
         assert main(["integrate", "exp(-t^2)", "0", "1.5", "--var", "t", "--tol", "1e-9", "--json"]) == 0

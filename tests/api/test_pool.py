@@ -9,8 +9,8 @@ import signal
 import pytest
 
 from tests.conftest import HP, encloses
-from service.api._pool import WorkerPool
-from service.errors import DeadlineExceeded, Saturated, ShuttingDown, WorkerLost
+from quadcert.api._pool import WorkerPool
+from quadcert.errors import DeadlineExceeded, Saturated, ShuttingDown, WorkerLost
 
 pytestmark = pytest.mark.anyio
 

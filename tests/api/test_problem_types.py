@@ -7,7 +7,7 @@ from pathlib import Path
 
 from fastapi.testclient import TestClient
 
-from service.api._problems import PROBLEM_TYPES
+from quadcert.api._problems import PROBLEM_TYPES
 
 SOURCE = Path(__file__).resolve().parents[2] / "service"
 RAISED = re.compile(r"""code\s*=\s*"([a-z_]+)\"""")
@@ -27,7 +27,7 @@ def raised_codes() -> set[str]:
 
 def test_every_raised_code_is_documented() -> None:
     missing = sorted(raised_codes() - set(PROBLEM_TYPES))
-    assert not missing, f"document these in service/api/_problems.py PROBLEM_TYPES: {missing}"
+    assert not missing, f"document these in service/quadcert/api/_problems.py PROBLEM_TYPES: {missing}"
     assert len(raised_codes()) > 50
 
 

@@ -8,9 +8,9 @@ from fractions import Fraction
 import pytest
 from hypothesis import assume, given, strategies as st
 
-from service import integrate
-from service.arithmetic import FlintArithmetic, MpmathArithmetic, claim_flint_context, release_flint_context
-from service.errors import ArithmeticFault, InvalidInput
+from quadcert import integrate
+from quadcert.arithmetic import FlintArithmetic, MpmathArithmetic, claim_flint_context, release_flint_context
+from quadcert.errors import ArithmeticFault, InvalidInput
 from tests.arithmetic.test_guarded_functions import DOMAINS, REFERENCE, hp_of, interval_and_point
 from tests.conftest import HP, encloses
 
@@ -81,8 +81,8 @@ def test_flint_float_bounds_are_the_exact_outward_rounding(numerator, denominato
 
     import flint
 
-    from service.arithmetic import fraction_down as _down
-    from service.arithmetic._flint_backend import _bounds, _exact_fraction
+    from quadcert.arithmetic import fraction_down as _down
+    from quadcert.arithmetic._flint_backend import _bounds, _exact_fraction
 
     ball = flint.arb(flint.fmpq(numerator, denominator)) * flint.arb(2) ** scale
     low, high = _bounds(ball)

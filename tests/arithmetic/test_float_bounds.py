@@ -17,8 +17,8 @@ import pytest
 from hypothesis import given, strategies as st
 from mpmath import libmp
 
-from service.arithmetic import FlintArithmetic, Interval, MpmathArithmetic, fraction_down, fraction_up
-from service.arithmetic._interval import binary_directed, raw_down, raw_up
+from quadcert.arithmetic import FlintArithmetic, Interval, MpmathArithmetic, fraction_down, fraction_up
+from quadcert.arithmetic._interval import binary_directed, raw_down, raw_up
 
 TINY = Fraction(2) ** -1074                  # the smallest subnormal (IEEE 754 binary64, the standard)
 SMALLEST_NORMAL = Fraction(2) ** -1022

@@ -14,8 +14,8 @@ import pytest
 from hypothesis import assume, given, strategies as st
 import mpmath
 
-from service.arithmetic import Interval, MpmathArithmetic
-from service.errors import ArithmeticFault
+from quadcert.arithmetic import Interval, MpmathArithmetic
+from quadcert.errors import ArithmeticFault
 from tests.conftest import HP
 
 DOMAINS = {  # function -> (low, high) of the arguments drawn

@@ -11,9 +11,9 @@ import xml.etree.ElementTree as ET
 
 import pytest
 
-from service.arithmetic import release_flint_context
-from service.cli import main
-from service.cli._main import build_parser
+from quadcert.arithmetic import release_flint_context
+from quadcert.cli import main
+from quadcert.cli._main import build_parser
 
 
 @pytest.fixture(autouse=True)
@@ -23,7 +23,7 @@ def _release_flint():
 
 
 def _run(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "service.cli", *args], capture_output=True, text=True, timeout=120)
+    return subprocess.run([sys.executable, "-m", "quadcert.cli", *args], capture_output=True, text=True, timeout=120)
 
 
 @pytest.mark.parametrize("args", [

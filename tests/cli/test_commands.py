@@ -7,8 +7,8 @@ import xml.etree.ElementTree as ET
 
 import pytest
 
-from service.arithmetic import release_flint_context
-from service.cli import main
+from quadcert.arithmetic import release_flint_context
+from quadcert.cli import main
 from tests.conftest import HP, encloses
 
 

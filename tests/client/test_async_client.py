@@ -5,9 +5,9 @@ from __future__ import annotations
 import httpx
 import pytest
 
-from service.api import Settings, create_app
-from service.client import AsyncClient
-from service.errors import ProblemError
+from quadcert.api import Settings, create_app
+from quadcert.client import AsyncClient
+from quadcert.errors import ProblemError
 from tests.conftest import HP, encloses
 
 pytestmark = pytest.mark.anyio

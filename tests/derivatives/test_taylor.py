@@ -7,9 +7,9 @@ from fractions import Fraction
 import pytest
 from hypothesis import given, strategies as st
 
-from service.arithmetic import MpmathArithmetic
-from service.derivatives import Program
-from service.formula import parse
+from quadcert.arithmetic import MpmathArithmetic
+from quadcert.derivatives import Program
+from quadcert.formula import parse
 from tests.conftest import HP
 
 FORMULAS = [
@@ -45,7 +45,7 @@ def _hp_eval(text: str, v):
 
 
 def _walk(node, v, names):
-    from service.formula import Binary, Call, Constant, Negate, Number, Variable
+    from quadcert.formula import Binary, Call, Constant, Negate, Number, Variable
     if isinstance(node, Number):
         return HP.mpf(node.value.numerator) / node.value.denominator
     if isinstance(node, Variable):

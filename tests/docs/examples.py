@@ -77,7 +77,7 @@ def masked(text: str) -> str:
 def client() -> Any:
     from fastapi.testclient import TestClient
 
-    from service.api import Settings, create_app
+    from quadcert.api import Settings, create_app
 
     return TestClient(create_app(Settings(workers=1, log_level="WARNING", cache_entries=0)))
 

@@ -8,7 +8,7 @@ import time
 import httpx
 import uvicorn
 
-from service.api import Settings, create_app
+from quadcert.api import Settings, create_app
 from tests.e2e.conftest import free_port
 
 

@@ -155,10 +155,10 @@ def test_serve_says_where_it_listens_and_refuses_bad_ports() -> None:
     running = start_server()
     try:
         port = running.url.rsplit(":", 1)[1]
-        taken = subprocess.run([sys.executable, "-m", "service.cli", "serve", "--port", port], capture_output=True,
+        taken = subprocess.run([sys.executable, "-m", "quadcert.cli", "serve", "--port", port], capture_output=True,
                                text=True, timeout=60)
         assert taken.returncode == 2 and "is in use" in taken.stderr and "started" not in taken.stderr
-        wrong = subprocess.run([sys.executable, "-m", "service.cli", "serve", "--port", "99999"],
+        wrong = subprocess.run([sys.executable, "-m", "quadcert.cli", "serve", "--port", "99999"],
                                capture_output=True, text=True, timeout=60)
         assert wrong.returncode == 2 and "65535" in wrong.stderr
     finally:

@@ -12,8 +12,8 @@ import time
 import httpx
 import pytest
 
-from service.client import Client
-from service.errors import ProblemError
+from quadcert.client import Client
+from quadcert.errors import ProblemError
 from tests.conftest import HP, encloses
 from tests.e2e.conftest import Server, start_server, stop_server
 
@@ -47,7 +47,7 @@ def test_python_client(server: Server) -> None:
 
 
 def _cli(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "service.cli", *args], capture_output=True, text=True, timeout=120)
+    return subprocess.run([sys.executable, "-m", "quadcert.cli", *args], capture_output=True, text=True, timeout=120)
 
 
 def test_cli_against_the_server(server: Server, tmp_path) -> None:

@@ -7,7 +7,7 @@ import sys
 
 import pytest
 
-from service.formula._fuzz import check_one
+from quadcert.formula._fuzz import check_one
 
 atheris = pytest.importorskip("atheris")
 
@@ -21,7 +21,7 @@ def test_seed_inputs_pass_the_target() -> None:
 
 
 def test_bounded_fuzz_run_finds_nothing(tmp_path) -> None:
-    done = subprocess.run([sys.executable, "-m", "service.formula._fuzz", "-runs=5000", "-seed=1",
+    done = subprocess.run([sys.executable, "-m", "quadcert.formula._fuzz", "-runs=5000", "-seed=1",
                            f"-artifact_prefix={tmp_path}/"], capture_output=True, text=True, timeout=600)
     assert done.returncode == 0, done.stderr[-3000:]
     assert "Done 5000 runs" in done.stderr

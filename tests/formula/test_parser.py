@@ -4,8 +4,8 @@ from fractions import Fraction
 
 import pytest
 
-from service.errors import FormulaError
-from service.formula import Binary, Negate, Number, parse
+from quadcert.errors import FormulaError
+from quadcert.formula import Binary, Negate, Number, parse
 
 
 @pytest.mark.parametrize("text, canonical", [

@@ -2,8 +2,8 @@
 
 from hypothesis import given, strategies as st
 
-from service.errors import FormulaError
-from service.formula import parse
+from quadcert.errors import FormulaError
+from quadcert.formula import parse
 
 ALPHABET = st.sampled_from(list("x0123456789.e+-*/^(), ") + ["sin", "exp", "pi", "log", "abs", "min", "\u0445"])
 

@@ -1,6 +1,6 @@
 """The golden requests: a small fixed set whose full certified outputs are stored in outputs.json.
 
-Any change to those outputs must come with a new ``ENGINE_VERSION`` (service/_version.py), because caches and
+Any change to those outputs must come with a new ``ENGINE_VERSION`` (service/quadcert/_version.py), because caches and
 ETags are keyed by it. After bumping it, rewrite the stored outputs with
 
     python -m tests.golden.cases --write
@@ -13,8 +13,8 @@ import sys
 from pathlib import Path
 from typing import Any
 
-from service import ENGINE_VERSION, check, integrate, plan
-from service.arithmetic import MpmathArithmetic
+from quadcert import ENGINE_VERSION, check, integrate, plan
+from quadcert.arithmetic import MpmathArithmetic
 
 STORED = Path(__file__).with_name("outputs.json")
 

@@ -10,7 +10,7 @@ import json
 
 import pytest
 
-from service import ENGINE_VERSION
+from quadcert import ENGINE_VERSION
 from tests.golden.cases import CASES, STORED, run
 
 STORED_OUTPUTS = json.loads(STORED.read_text())
@@ -30,4 +30,4 @@ def test_certified_outputs_are_unchanged(name: str, call: str, arguments: dict) 
     assert actual == expected, (
         f"the certified output of golden case {name!r} changed while ENGINE_VERSION is still {ENGINE_VERSION}. "
         "Cached results and ETags would now match different bodies. If the change is intended, bump "
-        "ENGINE_VERSION in service/_version.py and run `python -m tests.golden.cases --write`.")
+        "ENGINE_VERSION in service/quadcert/_version.py and run `python -m tests.golden.cases --write`.")

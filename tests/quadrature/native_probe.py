@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from service.quadrature import _fast
+from quadcert.quadrature import _fast
 
 
 def taylor(compiled: _fast.Compiled, low: float, high: float, order: int) -> list[tuple[float, float]] | None:

@@ -9,9 +9,9 @@ from __future__ import annotations
 
 from hypothesis import given, settings, strategies as st
 
-from service import integrate
-from service.arithmetic import FlintArithmetic, MpmathArithmetic, claim_flint_context, release_flint_context
-from service.errors import QuadcertError
+from quadcert import integrate
+from quadcert.arithmetic import FlintArithmetic, MpmathArithmetic, claim_flint_context, release_flint_context
+from quadcert.errors import QuadcertError
 
 REF = __import__("mpmath").MPContext()
 REF.dps = 60

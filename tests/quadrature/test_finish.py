@@ -10,7 +10,7 @@ from fractions import Fraction
 
 from hypothesis import given, strategies as st
 
-from service.quadrature._finish import difference_up, error_bound
+from quadcert.quadrature._finish import difference_up, error_bound
 
 FLOATS = st.floats(allow_nan=False, allow_infinity=False, width=64)
 
@@ -49,7 +49,7 @@ def test_certified_digits_are_shared_by_the_whole_enclosure(low: float, spread: 
     """Reference: exact decimals. Every number in [low, high] lies in [d, d + one unit of d's last digit)."""
     from decimal import Decimal
 
-    from service.quadrature import certified_digits
+    from quadcert.quadrature import certified_digits
 
     high = min(low * (1 + spread), 1.7e308)
     text = certified_digits(low, high)

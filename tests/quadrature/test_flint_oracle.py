@@ -11,7 +11,7 @@ from fractions import Fraction
 import flint
 from hypothesis import given, strategies as st
 
-from service import integrate
+from quadcert import integrate
 from tests.conftest import HP, encloses
 
 small = st.integers(-9, 9)

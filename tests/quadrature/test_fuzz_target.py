@@ -10,8 +10,8 @@ import sys
 
 import pytest
 
-from service.quadrature import _fast
-from service.quadrature._fuzz import check_one
+from quadcert.quadrature import _fast
+from quadcert.quadrature._fuzz import check_one
 
 atheris = pytest.importorskip("atheris")
 pytestmark = pytest.mark.skipif(not _fast.AVAILABLE, reason="the C engine was not built")
@@ -32,7 +32,7 @@ def test_bounded_fuzz_run_finds_nothing(tmp_path) -> None:
     corpus.mkdir()
     for i, seed in enumerate(SEEDS):
         (corpus / f"seed{i}").write_bytes(seed)
-    done = subprocess.run([sys.executable, "-m", "service.quadrature._fuzz", "-runs=3000", "-seed=1",
+    done = subprocess.run([sys.executable, "-m", "quadcert.quadrature._fuzz", "-runs=3000", "-seed=1",
                            f"-artifact_prefix={tmp_path}/", str(corpus)], capture_output=True, text=True,
                           timeout=600)
     assert done.returncode == 0, done.stderr[-3000:]

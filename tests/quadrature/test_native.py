@@ -15,11 +15,11 @@ import flint
 import pytest
 from hypothesis import assume, given, strategies as st
 
-from service.arithmetic import MpmathArithmetic
-from service.derivatives import Program
-from service.errors import NotCertifiable
-from service.formula import parse
-from service.quadrature import _fast, integrate
+from quadcert.arithmetic import MpmathArithmetic
+from quadcert.derivatives import Program
+from quadcert.errors import NotCertifiable
+from quadcert.formula import parse
+from quadcert.quadrature import _fast, integrate
 from tests.quadrature import native_probe
 from tests.conftest import HP
 
@@ -295,7 +295,7 @@ def test_node_budget_is_honoured_with_a_rigorous_partial_enclosure() -> None:
 
 
 def test_malformed_programs_are_rejected_not_run() -> None:
-    from service.quadrature import _native
+    from quadcert.quadrature import _native
 
     bad = [b"", (3).to_bytes(4, "little") * 2, (99).to_bytes(4, "little") + bytes(4)]
     for code in bad:
@@ -307,7 +307,7 @@ def test_malformed_programs_are_rejected_not_run() -> None:
 
 
 def test_this_machines_c_library_passes_the_self_test() -> None:
-    """Reference: mpmath at 100 bits at the self-test's arguments (service/quadrature/_fast.py)."""
+    """Reference: mpmath at 100 bits at the self-test's arguments (service/quadcert/quadrature/_fast.py)."""
     _fast.trusted.cache_clear()
     assert _fast.trusted()
 

@@ -6,7 +6,7 @@ from fractions import Fraction
 
 import pytest
 
-from service.quadrature import _peano
+from quadcert.quadrature import _peano
 from tests.conftest import HP
 
 BREAKS = [0, Fraction(1, 6), Fraction(1, 3), Fraction(1, 2), Fraction(2, 3), Fraction(5, 6), 1]

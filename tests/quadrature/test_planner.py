@@ -6,8 +6,8 @@ import math
 
 import pytest
 
-from service import plan
-from service.errors import FormulaError
+from quadcert import plan
+from quadcert.errors import FormulaError
 
 
 def test_exp_on_0_2_at_half_ten_to_minus_4() -> None:

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import pytest
 
-from service import integrate
+from quadcert import integrate
 from tests.conftest import HP, encloses
 
 CASES = [

@@ -8,12 +8,12 @@ from fractions import Fraction
 import pytest
 import scipy.integrate
 
-from service import integrate
-from service.arithmetic import MpmathArithmetic
-from service.derivatives import Program
-from service.errors import InvalidInput, NotCertifiable
-from service.formula import parse
-from service.quadrature import _peano
+from quadcert import integrate
+from quadcert.arithmetic import MpmathArithmetic
+from quadcert.derivatives import Program
+from quadcert.errors import InvalidInput, NotCertifiable
+from quadcert.formula import parse
+from quadcert.quadrature import _peano
 from tests.conftest import HP, encloses
 
 

@@ -112,7 +112,7 @@ def _precedence(node: Node) -> int:
 def canonical_text(node: Node) -> str:
     """Text that parses back to the same tree, with minimal parentheses.
 
-    >>> from service.formula import parse
+    >>> from quadcert.formula import parse
     >>> canonical_text(parse("((2*x))^(2) +  sin( x )").root)
     '(2*x)^2 + sin(x)'
     """

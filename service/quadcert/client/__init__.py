@@ -1,6 +1,6 @@
 """A small client for a quadcert service, sync and async, with typed results.
 
->>> from service.client import Client
+>>> from quadcert.client import Client
 >>> with Client("http://127.0.0.1:8000") as client:      # doctest: +SKIP
 ...     result = client.integrate("exp(-x^2)", 0, 1, 1e-10)
 ...     result.enclosure

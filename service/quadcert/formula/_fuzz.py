@@ -1,7 +1,7 @@
 """Coverage-guided fuzz target for the tokenizer and parser (atheris).
 
-    python -m service.formula._fuzz -atheris_runs=1000000      # a long run
-    python -m service.formula._fuzz -max_total_time=600        # ten minutes
+    python -m quadcert.formula._fuzz -atheris_runs=1000000      # a long run
+    python -m quadcert.formula._fuzz -max_total_time=600        # ten minutes
 
 Any exception other than FormulaError is a finding; so is a canonical text that does not parse back to the
 same tree.

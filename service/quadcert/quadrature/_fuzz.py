@@ -1,6 +1,6 @@
 """Coverage-guided differential fuzz target for the compiled float64 engine (atheris).
 
-    python -m service.quadrature._fuzz -max_total_time=600      # ten minutes
+    python -m quadcert.quadrature._fuzz -max_total_time=600      # ten minutes
 
 Each input that parses as a formula in x is compiled and run by the C engine over [0, 1] (and its Taylor
 enclosures over a small interval); the arbitrary-precision engine on the reference backend does the same

@@ -315,7 +315,7 @@ def parse(text: str, variable: str = "x", parameters: tuple[str, ...] | list[str
     >>> parse("sinn(x)")
     Traceback (most recent call last):
     ...
-    service.errors.FormulaError: unknown function 'sinn'; did you mean 'sin'? (at column 1)
+    quadcert.errors.FormulaError: unknown function 'sinn'; did you mean 'sin'? (at column 1)
     """
     if not isinstance(text, str):
         raise FormulaError("formula must be text", code="invalid_formula")

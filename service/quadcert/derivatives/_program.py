@@ -29,8 +29,8 @@ Compiled = tuple[str, Any]
 class Program:
     """Evaluates one formula over intervals, for values (order 0) or Taylor coefficients.
 
-    >>> from service.formula import parse
-    >>> from service.arithmetic import MpmathArithmetic
+    >>> from quadcert.formula import parse
+    >>> from quadcert.arithmetic import MpmathArithmetic
     >>> ar = MpmathArithmetic(64)
     >>> program = Program(parse("x^3"), ar)
     >>> [ar.bounds(c) for c in program.taylor(ar.exact(Fraction(2)), 3)]

@@ -1,4 +1,4 @@
-"""Print the service's OpenAPI document: python -m service.api.export_openapi > openapi-notes/openapi.json"""
+"""Print the service's OpenAPI document: python -m quadcert.api.export_openapi > openapi-notes/openapi.json"""
 
 from __future__ import annotations
 

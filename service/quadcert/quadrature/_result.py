@@ -1,4 +1,4 @@
-"""The result types live in ``service/results.py`` (light, shared with the client); re-exported here."""
+"""The result types live in ``service/quadcert/results.py`` (light, shared with the client); re-exported here."""
 
 from ..results import CheckResult, IntegralResult, PanelReport, Plan, RulePlan
 

@@ -5,7 +5,7 @@ The data path, one package each: ``formula`` (text to tree) → ``arithmetic``
 ``quadrature`` (certified Simpson, planner) → ``api`` (HTTP service), with
 ``cli`` and ``client`` on top.
 
->>> from service import integrate
+>>> from quadcert import integrate
 >>> result = integrate("exp(x)", 0, 2, 1e-8)
 >>> result.enclosure[0] <= 6.38905609893065 <= result.enclosure[1]
 True
