@@ -3,11 +3,13 @@
 from __future__ import annotations
 
 import argparse
+import contextlib
 import signal
+import threading
 import sys
 import time
 from decimal import Decimal
-from typing import Any, Sequence
+from typing import Any, Iterator, Sequence
 
 import simplejson
 
@@ -102,7 +104,8 @@ def _integrate(args: argparse.Namespace) -> int:
         with _client(args.url, args) as client:
             result = client.integrate(args.formula, args.lower, args.upper, args.tol, **options)
     else:
-        result = integrate(args.formula, args.lower, args.upper, args.tol, **options)
+        with _working("certifying"):
+            result = integrate(args.formula, args.lower, args.upper, args.tol, **options)
     if args.json:  # the same body the HTTP service answers
         print(_json(integral_body(result, {"variable": args.var, "tolerance": _typed(args.tol)})))
     else:
@@ -161,7 +164,8 @@ def _one_check(args: argparse.Namespace, name: str, item: dict[str, Any]
             left = _time_left(args)
             if left is not None:
                 item.setdefault("deadline_seconds", max(left * 0.9, 1e-3))
-            outcome = check(**item)
+            with _working(f"checking {name}"):
+                outcome = check(**item)
     except QuadcertError as error:
         _print_problem(error)
         return _junit.CaseOutcome(name, "error", f"{error.code}: {error.message}", time.perf_counter() - started), None
@@ -194,6 +198,33 @@ def _checks(args: argparse.Namespace) -> int:
     counts = {v: sum(c.verdict == v for c in cases) for v in ("pass", "fail", "undecided", "error")}
     print(f"{len(cases)} checks: " + ", ".join(f"{n} {v}" for v, n in counts.items() if n), file=sys.stderr)
     return _exit_for(cases)
+
+
+@contextlib.contextmanager
+def _working(what: str) -> Iterator[None]:
+    """While one long computation runs, a ticking line on stderr when it is a terminal (tqdm), so a run of
+    minutes is never silent; nothing when stderr is a file or a pipe."""
+    if not sys.stderr.isatty():
+        yield
+        return
+    from tqdm import tqdm
+
+    done = threading.Event()
+    bar = tqdm(total=None, desc=what, bar_format="{desc}: {elapsed}", file=sys.stderr, leave=False,
+               delay=1.0)
+
+    def tick() -> None:
+        while not done.wait(0.5):
+            bar.refresh()
+
+    ticker = threading.Thread(target=tick, daemon=True)
+    ticker.start()
+    try:
+        yield
+    finally:
+        done.set()
+        ticker.join()
+        bar.close()
 
 
 def _progress(items: list[Any], unit: str) -> Any:
@@ -299,7 +330,9 @@ def build_parser() -> argparse.ArgumentParser:
 
     serve = commands.add_parser("serve", help="run the HTTP service (keeps running until stopped)",
                                 description="Run the HTTP service. It keeps running until SIGTERM or Ctrl-C.",
-                                epilog="example:\n  quadcert serve --port 8000 &",
+                                epilog="exit codes:\n  0  stopped by SIGTERM or Ctrl-C after draining\n  2  could "
+                                       "not start (a port in use or out of range, a bad setting)\n\n"
+                                       "example:\n  quadcert serve --port 8000 &",
                                 formatter_class=argparse.RawDescriptionHelpFormatter)
     serve.add_argument("--host", default=None, help="address to bind (default 127.0.0.1)")
     serve.add_argument("--port", type=int, default=None, help="port (default 8000)")
