@@ -12,7 +12,8 @@ ENV PYTHONDONTWRITEBYTECODE=1 PYTHONUNBUFFERED=1 PIP_NO_CACHE_DIR=1 \
     QUADCERT_HOST=0.0.0.0 QUADCERT_PORT=8000
 
 COPY --from=build /wheels /wheels
-RUN python -m pip install --no-compile /wheels/*.whl && rm -rf /wheels && useradd --create-home --uid 10001 quadcert
+RUN python -m pip install --no-compile "$(ls /wheels/*.whl)[server]" && rm -rf /wheels \
+    && useradd --create-home --uid 10001 quadcert
 
 USER quadcert
 EXPOSE 8000

@@ -117,7 +117,7 @@ def _describe(result: IntegralResult) -> str:
     status = "certified" if result.tolerance_met else f"NOT within tolerance ({result.stop_reason})"
     digits = certified_digits(*result.enclosure)
     value = f"{digits}  (the digits the enclosure certifies; --json has all of them)" if digits else \
-        f"{result.value!r}  (no leading digit is certain: see the enclosure)"
+        f"{result.value!r} ± {shown(result.error_bound, 2, 'up')}  (the enclosure straddles a digit boundary)"
     applied = result.applied_tolerance if result.applied_tolerance is not None else result.tolerance
     target = shown(applied, 6, "near") + ("" if applied == result.tolerance else
                                           f" (the relative tolerance; the absolute one is "
@@ -313,7 +313,11 @@ def _describe_plan(result: Plan) -> str:
 
 
 def _serve(args: argparse.Namespace) -> int:
-    from ._serve import serve
+    try:
+        from ._serve import serve
+    except ModuleNotFoundError as error:
+        raise InvalidInput(f"the service needs the server extra ({error.name} is missing): "
+                           "pip install 'quadcert[server]'", code="invalid_input") from None
 
     return serve(args.host, args.port, args.workers)
 
