@@ -1,8 +1,7 @@
 """Between routes and workers: validate cheaply in-process, consult the cache, run in the pool.
 
-Every method answers ``(status, body)`` where body is a response dict or a
-problem dict, so routes and the batch endpoint share one path and nothing
-raises past here.
+Every method answers ``(status, body)`` with the real HTTP status, where body is a response dict or a
+problem dict, so routes and the batch endpoint share one path and nothing raises past here.
 """
 
 from __future__ import annotations
@@ -83,7 +82,8 @@ class Computation:
             else:
                 canonical = self.canonical(body)
         except QuadcertError as error:
-            return (0, problem_body(**_problem_args(_error(error)), **context)), None
+            problem = problem_body(**_problem_args(_error(error)), **context)
+            return (problem["status"], problem), None
         key = cache_key(kind, canonical)
         cached = self.cache.get(key)
         if cached is not None:
@@ -94,7 +94,8 @@ class Computation:
                                          wait, group=group, compute_seconds=None if compute is None else compute + 1.0)
         except ServiceError as error:
             self.metrics.results.labels(error.code).inc()
-            return (0, problem_body(error.code, str(error), **context)), key
+            problem = problem_body(error.code, str(error), **context)
+            return (problem["status"], problem), key
         self.metrics.engine_seconds.observe(time.perf_counter() - started)
         if "error" in answer:
             self.metrics.results.labels("refused").inc()
@@ -102,7 +103,8 @@ class Computation:
                 log.error("engine failure", extra={"detail": answer["error"]["detail"],
                                                    "trace": answer["error"].get("trace")})
                 answer["error"].pop("trace", None)
-            return (0, from_engine_error(answer["error"], **context)), key
+            problem = from_engine_error(answer["error"], **context)
+            return (problem["status"], problem), key
         result = answer["ok"]
         self.metrics.results.labels("certified").inc()
         return (200, result), key
@@ -116,7 +118,7 @@ class Computation:
         deadline = deadline or self.settings.request_deadline_seconds
         (status, result), key = await self._run("integral", body, deadline, wait, context, group, compute)
         if status != 200 or result.get("cached"):
-            return (_status(status, result), result), key
+            return (status, result), key
         response = result  # already the answer's shape (results.integral_body, built in the worker)
         if key is not None and result["stop_reason"] != "deadline":
             self.cache.put(key, response)
@@ -125,7 +127,7 @@ class Computation:
     async def check(self, body: dict[str, Any], context: dict[str, Any]) -> Answer:
         (status, result), key = await self._run("check", body, self.settings.request_deadline_seconds, 0.0, context)
         if status != 200 or result.get("cached"):
-            return _status(status, result), result
+            return status, result
         response = {**result, "integral": {**result["integral"], "cached": False}}
         if key is not None and result["verdict"] != "undecided":
             self.cache.put(key, response)
@@ -134,7 +136,7 @@ class Computation:
     async def plan(self, body: dict[str, Any], context: dict[str, Any]) -> Answer:
         (status, result), key = await self._run("plan", body, self.settings.request_deadline_seconds, 0.0, context)
         if status != 200 or result.get("cached"):
-            return _status(status, result), result
+            return status, result
         response = {**result, "engine_version": ENGINE_VERSION}
         if key is not None:
             self.cache.put(key, response)
@@ -150,6 +152,3 @@ def _problem_args(error: dict[str, Any]) -> dict[str, Any]:
         args["location"] = tuple(error["location"])
     return args
 
-
-def _status(status: int, body: dict[str, Any]) -> int:
-    return body["status"] if status == 0 else status

@@ -9,7 +9,7 @@ import time
 import uuid
 from typing import Any, Awaitable, Callable
 
-from ._problems import PROBLEM_MEDIA_TYPE, problem_body
+from ._problems import PROBLEM_MEDIA_TYPE, problem_body, problem_headers
 
 Scope = dict[str, Any]
 Receive = Callable[[], Awaitable[dict[str, Any]]]
@@ -23,9 +23,8 @@ _ALWAYS_OPEN = ("/healthz", "/readyz", "/metrics")
 
 async def _send_problem(send: Send, body: dict[str, Any], retry_after: int | None = None) -> None:
     payload = json.dumps(body).encode()
-    headers = [(b"content-type", PROBLEM_MEDIA_TYPE.encode()), (b"content-length", str(len(payload)).encode())]
-    if retry_after is not None:
-        headers.append((b"retry-after", str(retry_after).encode()))
+    headers = [(b"content-type", PROBLEM_MEDIA_TYPE.encode()), (b"content-length", str(len(payload)).encode()),
+               *((k.lower().encode(), v.encode()) for k, v in problem_headers(body, retry_after).items())]
     await send({"type": "http.response.start", "status": body["status"], "headers": headers})
     await send({"type": "http.response.body", "body": payload})
 

@@ -138,10 +138,17 @@ def problem_body(code: str, detail: str, *, kind: str | None = None, instance: s
     return body
 
 
+def problem_headers(body: dict[str, Any], retry_after: int | None) -> dict[str, str]:
+    """The headers every problem answer carries, decided in this one place: Retry-After on a 503."""
+    headers = {"X-Quadcert-Version": __version__, "Cache-Control": "no-store"}
+    if retry_after is not None and body["status"] == 503:
+        headers["Retry-After"] = str(retry_after)
+    return headers
+
+
 def problem_response(body: dict[str, Any], retry_after: int | None = None) -> JSONResponse:
-    headers = {"Retry-After": str(retry_after)} if retry_after is not None and body["status"] == 503 else {}
-    headers["X-Quadcert-Version"] = __version__
-    return ExactJSONResponse(body, status_code=body["status"], media_type=PROBLEM_MEDIA_TYPE, headers=headers)
+    return ExactJSONResponse(body, status_code=body["status"], media_type=PROBLEM_MEDIA_TYPE,
+                             headers=problem_headers(body, retry_after))
 
 
 def from_engine_error(error: dict[str, Any], **context: Any) -> dict[str, Any]:

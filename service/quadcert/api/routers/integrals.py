@@ -18,7 +18,7 @@ from .._cache import cache_key
 from .._cell_hints import hint, refuse_unknown_keys
 from .._formats import MEDIA_TYPES, render, render_problem
 from .._jobs import _error
-from .._problems import PROBLEM_MEDIA_TYPE, problem_body
+from .._problems import problem_body, problem_headers, problem_response
 from .._exact_json import ExactJSONResponse, ExactRoute
 from .._schemas import BatchRequest, BatchResponse, IntegralRequest, IntegralResponse
 from ._common import PROBLEM_RESPONSES, computation, context, respond
@@ -180,10 +180,9 @@ def _args(error: QuadcertError) -> dict:
 
 
 def _plain_problem(body: dict, fmt: str, request: Request) -> Response:
-    headers = {"Cache-Control": "no-store"}
-    if body["status"] == 503:
-        headers["Retry-After"] = str(request.app.state.settings.retry_after_seconds)
+    retry_after = request.app.state.settings.retry_after_seconds
     if fmt == "json":
-        return ExactJSONResponse(body, status_code=body["status"], media_type=PROBLEM_MEDIA_TYPE, headers=headers)
+        return problem_response(body, retry_after)
+    headers = problem_headers(body, retry_after)
     media = MEDIA_TYPES["xml"] if fmt == "xml" else "text/plain; charset=utf-8"
     return Response(render_problem(body, fmt), status_code=body["status"], media_type=media, headers=headers)
