@@ -9,9 +9,14 @@ from __future__ import annotations
 import math
 from dataclasses import asdict, dataclass, field
 from decimal import ROUND_CEILING, ROUND_FLOOR, Context, Decimal
-from typing import Any
+from typing import Any, Literal
 
 from ._version import ENGINE_VERSION
+
+#: why refinement stopped; only tolerance_met has tolerance_met true (the enclosure is rigorous in every case)
+StopReason = Literal["tolerance_met", "node_budget", "deadline", "resolution_limit"]
+#: a CI verdict: pass (certified |claimed − exact| <= tolerance), fail (certified >), undecided
+Verdict = Literal["pass", "fail", "undecided"]
 
 _DOWN = Context(prec=17, rounding=ROUND_FLOOR)
 _UP = Context(prec=17, rounding=ROUND_CEILING)
@@ -39,7 +44,7 @@ class IntegralResult:
     error_bound: float
     tolerance: float
     tolerance_met: bool
-    stop_reason: str                  # tolerance_met | node_budget | deadline | resolution_limit
+    stop_reason: StopReason
     nodes: int
     panels: int
     integrand: str
@@ -85,7 +90,7 @@ class CheckResult:
     """``pass``: certified |claimed − exact| <= tolerance; ``fail``: certified > tolerance;
     ``undecided``: the budget or deadline ran out before either could be proven."""
 
-    verdict: str
+    verdict: Verdict
     claimed_value: Any                # the caller's number, unchanged (a JSON number arrives as its exact Decimal)
     tolerance: float                  # applied: the largest float64 not above the tolerance given
     distance: tuple[float, float]   # certified lower and upper bounds of |claimed − exact|

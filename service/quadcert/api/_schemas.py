@@ -8,6 +8,8 @@ from typing import Annotated, Any, Literal
 from pydantic import BaseModel, ConfigDict, Field, PlainValidator, StrictBool, StrictInt, StrictStr, WithJsonSchema
 from pydantic import conlist
 
+from ..results import StopReason, Verdict  # the engine's own state types, not a second copy
+
 
 def _json_number(value: Any) -> Decimal | int:
     """A JSON number as read by the exact reader (Decimal or int); Python floats as the decimal they print as."""
@@ -81,7 +83,7 @@ class IntegralResponse(BaseModel):
     applied_tolerance: float | None = Field(None, description="The absolute bound the error bound was held to: "
                                             "the tolerance, or relative_tolerance × |integral| where larger")
     tolerance_met: bool
-    stop_reason: Literal["tolerance_met", "node_budget", "deadline", "resolution_limit"]
+    stop_reason: StopReason
     nodes: int
     panels: int
     integrand: str = Field(description="The integrand in canonical form")
@@ -117,7 +119,7 @@ class BatchResponse(BaseModel):
 
 
 class CheckResponse(BaseModel):
-    verdict: Literal["pass", "fail", "undecided"]
+    verdict: Verdict
     claimed_value: float
     tolerance: float
     distance: Pair = Field(description="Certified bounds of |claimed − exact|")

@@ -5,12 +5,13 @@ from __future__ import annotations
 import os
 import xml.etree.ElementTree as ET
 from dataclasses import dataclass
+from typing import Literal
 
 
 @dataclass(frozen=True)
 class CaseOutcome:
     name: str
-    verdict: str          # pass | fail | undecided | error
+    verdict: Literal["pass", "fail", "undecided", "error"]
     message: str
     seconds: float
 
