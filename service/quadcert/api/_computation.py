@@ -144,7 +144,7 @@ class Computation:
 
 
 def _problem_args(error: dict[str, Any]) -> dict[str, Any]:
-    args = {"code": error["code"], "detail": error["detail"], "kind": error.get("kind")}
+    args = {"code": error["code"], "detail": error["detail"]}
     for name in ("column", "field"):
         if error.get(name) is not None:
             args[name] = error[name]

@@ -12,7 +12,7 @@ from ..results import check_body, integral_body, plan_body
 
 def _error(error: Exception) -> dict[str, Any]:
     if isinstance(error, QuadcertError):
-        payload: dict[str, Any] = {"code": error.code, "detail": error.message, "kind": type(error).__name__}
+        payload: dict[str, Any] = {"code": error.code, "detail": error.message}
         if isinstance(error, (FormulaError, InvalidInput)) and getattr(error, "column", None) is not None:
             payload["column"] = error.column
         if isinstance(error, InvalidInput) and error.field:
@@ -20,7 +20,7 @@ def _error(error: Exception) -> dict[str, Any]:
         if isinstance(error, NotCertifiable) and error.location is not None:
             payload["location"] = list(error.location)
         return payload
-    return {"code": "internal_error", "detail": f"{type(error).__name__}: {error}", "kind": "internal",
+    return {"code": "internal_error", "detail": f"{type(error).__name__}: {error}",
             "trace": traceback.format_exc(limit=8)}
 
 

@@ -119,15 +119,15 @@ PROBLEM_TYPES: dict[str, tuple[int, str, str]] = {
 CODES: dict[str, tuple[int, str]] = {code: (status, title) for code, (status, title, _) in PROBLEM_TYPES.items()}
 
 
-def status_and_title(code: str, kind: str | None = None) -> tuple[int, str]:
+def status_and_title(code: str) -> tuple[int, str]:
     if code in CODES and CODES[code][0]:
         return CODES[code]
     return 422, _INPUT
 
 
-def problem_body(code: str, detail: str, *, kind: str | None = None, instance: str | None = None,
+def problem_body(code: str, detail: str, *, instance: str | None = None,
                  request_id: str | None = None, **extra: Any) -> dict[str, Any]:
-    status, title = status_and_title(code, kind)
+    status, title = status_and_title(code)
     body: dict[str, Any] = {"type": f"/problems/{code}", "title": title, "status": status, "detail": detail,
                             "code": code}
     if instance:
@@ -153,6 +153,6 @@ def problem_response(body: dict[str, Any], retry_after: int | None = None) -> JS
 
 def from_engine_error(error: dict[str, Any], **context: Any) -> dict[str, Any]:
     """A worker's error dict (see _jobs) as a problem body."""
-    return problem_body(error["code"], error["detail"], kind=error.get("kind"), column=error.get("column"),
+    return problem_body(error["code"], error["detail"], column=error.get("column"),
                         field=error.get("field"),
                         location=tuple(error["location"]) if error.get("location") else None, **context)

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from decimal import Decimal
-from typing import Annotated, Any, Literal
+from typing import Annotated, Any
 
 from pydantic import BaseModel, ConfigDict, Field, PlainValidator, StrictBool, StrictInt, StrictStr, WithJsonSchema
 from pydantic import conlist

@@ -3,13 +3,10 @@
 from __future__ import annotations
 
 import math
-from decimal import ROUND_CEILING, ROUND_FLOOR, Context, Decimal
+from decimal import ROUND_FLOOR, Decimal
 
 from ..arithmetic import shown  # noqa: F401 - re-exported by the package
 from ..results import bound_decimal, bound_text  # noqa: F401 - re-exported: the engine's public helpers
-
-_DOWN = Context(prec=17, rounding=ROUND_FLOOR)
-_UP = Context(prec=17, rounding=ROUND_CEILING)
 
 
 def difference_up(x: float, y: float) -> float:
