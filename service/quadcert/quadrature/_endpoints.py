@@ -12,7 +12,7 @@ from typing import Any
 from ..arithmetic import Arithmetic
 from ..derivatives import Program
 from ..errors import FormulaError, InvalidInput, QuadcertError
-from ..formula import Formula, Negate, Number, parse
+from ..formula import Constant, Formula, Negate, Number, parse
 
 _PLAIN = re.compile(r"-?[0-9]{1,15}(\.[0-9]{1,15})?")
 _INFINITE = {"inf", "+inf", "-inf", "infinity", "+infinity", "-infinity", "oo", "-oo"}
@@ -26,8 +26,7 @@ def limit_text(value: LimitValue, field: str) -> str:
         raise InvalidInput(f"{field} must be a number or text", code="invalid_limit", field=field)
     if isinstance(value, float):
         if math.isinf(value):
-            raise InvalidInput(f"{field} is infinite; infinite limits are not supported, "
-                               "split off or transform the tail", code="infinite_limit", field=field)
+            return "inf" if value > 0 else "-inf"
         if math.isnan(value):
             raise InvalidInput(f"{field} is not a number", code="invalid_limit", field=field)
         return repr(value)
@@ -43,8 +42,7 @@ def limit_text(value: LimitValue, field: str) -> str:
         return str(value)
     if isinstance(value, str):
         if value.strip().lower() in _INFINITE:
-            raise InvalidInput(f"{field} is infinite; infinite limits are not supported, "
-                               "split off or transform the tail", code="infinite_limit", field=field)
+            return "-inf" if value.strip().startswith("-") else "inf"
         return value
     raise InvalidInput(f"{field} must be a number or text", code="invalid_limit", field=field)
 
@@ -53,8 +51,30 @@ def parse_limit(value: LimitValue, field: str, parameters: tuple[str, ...] = ())
     return _parse_limit_text(limit_text(value, field), field, tuple(parameters))
 
 
+#: an infinite limit, as a formula that only this module and the improper pieces look inside
+POSITIVE_INFINITY = Formula(Constant("inf"), "_")
+NEGATIVE_INFINITY = Formula(Negate(Constant("inf")), "_")
+
+
+def infinite_side(limit: Formula) -> int:
+    """+1 for +∞, −1 for −∞, 0 for a finite limit.
+
+    >>> infinite_side(parse_limit("-Infinity", "lower_limit")), infinite_side(parse_limit("2", "upper_limit"))
+    (-1, 0)
+    """
+    if limit == POSITIVE_INFINITY:
+        return 1
+    if limit == NEGATIVE_INFINITY:
+        return -1
+    return 0
+
+
 @lru_cache(maxsize=256)  # limits repeat even more than formulas do (0, 1, pi/2 ...)
 def _parse_limit_text(text: str, field: str, parameters: tuple[str, ...]) -> Formula:
+    if text == "inf":
+        return POSITIVE_INFINITY
+    if text == "-inf":
+        return NEGATIVE_INFINITY
     if _PLAIN.fullmatch(text):  # the common case, read without the parser into the tree it would build
         number = Number(Fraction(text.lstrip("-")))
         return Formula(Negate(number) if text.startswith("-") else number, "_")
@@ -77,6 +97,9 @@ def exact_limit(formula: Formula) -> Fraction | None:
 
 
 def enclose_limit(formula: Formula, ar: Arithmetic, parameters: dict[str, Fraction], field: str) -> Any:
+    if infinite_side(formula):
+        raise InvalidInput(f"{field} is infinite; this operation needs finite limits", code="infinite_limit",
+                           field=field)
     try:
         program = Program(formula, ar, parameters)
         if not program.is_constant:

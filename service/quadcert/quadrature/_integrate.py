@@ -5,13 +5,14 @@ from __future__ import annotations
 import math
 import time
 from fractions import Fraction
-from typing import Callable, Mapping
+from dataclasses import dataclass
+from typing import Callable, Mapping, Union
 
 from ..arithmetic import Arithmetic, FlintArithmetic, MpmathArithmetic, flint_context_claimed, fraction_down
 from ..derivatives import Program
 from ..errors import ArithmeticFault, InvalidInput, NotCertifiable
 from ..formula import Formula, parse
-from . import _fast, _inputs
+from . import _composite, _fast, _inputs
 from ._finish import error_bound
 from ._endpoints import LimitValue, enclose_limit, exact_limit, parse_limit
 from ._result import IntegralResult, PanelReport
@@ -20,6 +21,7 @@ from ._simpson import FLOAT_FLOOR, Refiner
 DEFAULT_PRECISION = 96
 _LIMIT_PRECISION = 128  # exact limits are enclosed at this precision for the float64 engine
 ArithmeticFactory = Callable[[int], Arithmetic]
+Limit = Union[Formula, Fraction]  # a limit as typed (a formula), or an exact cut chosen by the engine
 
 
 def default_arithmetic() -> ArithmeticFactory:
@@ -82,9 +84,7 @@ def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: Li
     lower_formula = parse_limit(lower_limit, "lower_limit", tuple(values))
     upper_formula = parse_limit(upper_limit, "upper_limit", tuple(values))
     deadline = None if deadline_seconds is None else time.monotonic() + deadline_seconds
-    native = arithmetic is None and precision_bits is None and _fast.AVAILABLE
-    prec = precision_bits or choose_precision(tolerance)
-    arithmetic = arithmetic or default_arithmetic()
+    settings = Settings(max_nodes, deadline, include_mesh, precision_bits, arithmetic)
 
     def target(low: float, high: float) -> float:
         """The absolute bound to meet: the tolerance, or the relative one times the smallest |integral| the
@@ -93,53 +93,108 @@ def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: Li
             return tolerance
         return max(tolerance, fraction_down(Fraction(relative) * Fraction(min(abs(low), abs(high)))))
 
+    def finish(segment: Segment) -> IntegralResult:
+        low, high = segment.low, segment.high
+        value, bound = error_bound(low, high)
+        if not math.isfinite(bound):
+            raise NotCertifiable("the integral is beyond the float64 range", code="result_out_of_range")
+        met = bound <= target(low, high)
+        stop = "resolution_limit" if segment.stop == FLOAT_FLOOR else segment.stop
+        return IntegralResult(
+            value=value, enclosure=(low, high), error_bound=bound, tolerance=tolerance, tolerance_met=met,
+            applied_tolerance=target(low, high),
+            stop_reason="tolerance_met" if met else (stop if stop != "tolerance_met" else "resolution_limit"),
+            nodes=segment.nodes, panels=segment.panels, integrand=formula.text, lower_limit=lower_formula.text,
+            upper_limit=upper_formula.text, precision_bits=segment.precision_bits,
+            compute_seconds=time.perf_counter() - started, mesh=segment.mesh if include_mesh else None,
+            bounds_used=segment.bounds_used)
+
+    if lower_formula.text != upper_formula.text and _composite.needs_pieces(lower_formula,
+                                                                             upper_formula):
+        return finish(_composite.integrate_pieces(formula, values, lower_formula, upper_formula, tolerance,
+                                                  settings, segment))
+    try:
+        return finish(segment(formula, values, lower_formula, upper_formula, target, tolerance, settings, relative))
+    except NotCertifiable as refusal:
+        if refusal.code not in _composite.INTERIOR_CODES or refusal.location is None:
+            raise
+        return finish(_composite.integrate_pieces(formula, values, lower_formula, upper_formula, tolerance,
+                                                  settings, segment, refusal=refusal))
+
+
+@dataclass(frozen=True)
+class Settings:
+    """The budgets and engine choices of one request, passed unchanged to every segment."""
+
+    max_nodes: int
+    deadline: float | None
+    include_mesh: bool
+    precision_bits: int | None
+    arithmetic: ArithmeticFactory | None
+
+
+@dataclass(frozen=True)
+class Segment:
+    """The certified integral over one stretch of panels, bounds rounded outward to float64."""
+
+    low: float
+    high: float
+    stop: str
+    nodes: int
+    panels: int
+    mesh: tuple[PanelReport, ...]
+    bounds_used: dict[str, int]
+    precision_bits: int
+
+
+def segment(formula: Formula, values: dict[str, Fraction], lower: Limit, upper: Limit,
+            target: Callable[[float, float], float], tolerance: float, settings: Settings,
+            relative: float | None = None) -> Segment:
+    """Panels over [lower, upper] (either order), compiled engine first; limits are formulas or exact rationals."""
+    native = settings.arithmetic is None and settings.precision_bits is None and _fast.AVAILABLE
     if native:
-        fast = _try_fast(formula, values, lower_formula, upper_formula, tolerance, relative, target, max_nodes,
-                         deadline, include_mesh)
+        fast = _try_fast(formula, values, lower, upper, tolerance, relative, target, settings.max_nodes,
+                         settings.deadline, settings.include_mesh)
         if fast is not None:
-            fast, value, bound = fast
-            low, high = fast.enclosure
-            return IntegralResult(
-                value=value, enclosure=(low, high), error_bound=bound, tolerance=tolerance,
-                applied_tolerance=target(low, high),
-                tolerance_met=bound <= target(low, high), stop_reason=fast.stop_reason, nodes=fast.nodes,
-                panels=fast.panels, integrand=formula.text, lower_limit=lower_formula.text,
-                upper_limit=upper_formula.text, precision_bits=53, compute_seconds=time.perf_counter() - started,
-                mesh=fast.mesh if include_mesh else None, bounds_used=fast.bounds_used)
+            outcome, low, high = fast
+            return Segment(low, high, outcome.stop_reason, outcome.nodes, outcome.panels,
+                           outcome.mesh if settings.include_mesh else (), outcome.bounds_used, 53)
+    prec = settings.precision_bits or choose_precision(tolerance)
+    arithmetic = settings.arithmetic or default_arithmetic()
     attempts = 0
     while True:
         ar = arithmetic(prec)
         program = Program(formula, ar, values)
-        a = enclose_limit(lower_formula, ar, values, "lower_limit")
-        b = enclose_limit(upper_formula, ar, values, "upper_limit")
-        outcome = _run(program, ar, a, b, lower_formula.text == upper_formula.text, max_nodes, deadline,
+        a = _enclosure(lower, ar, values, "lower_limit")
+        b = _enclosure(upper, ar, values, "upper_limit")
+        outcome = _run(program, ar, a, b, _same(lower, upper), settings.max_nodes, settings.deadline,
                        target, arithmetic, values, formula)
         attempts += 1
         if outcome[1] != "resolution_limit" or attempts >= 3 or prec * 2 > 4096:
             break
         prec *= 2
     enclosure, stop, nodes, panels, mesh, bounds_used = outcome
-    stop = "resolution_limit" if stop == FLOAT_FLOOR else stop
     low, high = ar.bounds(enclosure)
-    value, bound = error_bound(low, high)
-    if not math.isfinite(bound):
-        raise NotCertifiable("the integral is beyond the float64 range", code="result_out_of_range")
-    met = bound <= target(low, high)
-    return IntegralResult(
-        value=value, enclosure=(low, high), error_bound=bound, tolerance=tolerance, tolerance_met=met,
-        applied_tolerance=target(low, high),
-        stop_reason="tolerance_met" if met else (stop if stop != "tolerance_met" else "resolution_limit"),
-        nodes=nodes, panels=panels, integrand=formula.text, lower_limit=lower_formula.text,
-        upper_limit=upper_formula.text, precision_bits=prec,
-        compute_seconds=time.perf_counter() - started, mesh=mesh if include_mesh else None,
-        bounds_used=bounds_used)
+    return Segment(low, high, stop, nodes, panels, mesh, bounds_used, prec)
 
 
-def _try_fast(formula: Formula, values: dict[str, Fraction], lower: Formula, upper: Formula, tolerance: float,
+def _same(lower: Limit, upper: Limit) -> bool:
+    if isinstance(lower, Formula) and isinstance(upper, Formula):
+        return lower.text == upper.text
+    return isinstance(lower, Fraction) and isinstance(upper, Fraction) and lower == upper
+
+
+def _enclosure(limit: Limit, ar: Arithmetic, values: dict[str, Fraction], field: str) -> object:
+    if isinstance(limit, Fraction):
+        return ar.exact(limit)
+    return enclose_limit(limit, ar, values, field)
+
+
+def _try_fast(formula: Formula, values: dict[str, Fraction], lower: Limit, upper: Limit, tolerance: float,
               relative: float | None, target: Callable[[float, float], float], max_nodes: int,
               deadline: float | None, include_mesh: bool) -> tuple[_fast.FastOutcome, float, float] | None:
     """The compiled float64 engine's answer when it is a usable one; None hands over to the precise engine."""
-    if lower.text == upper.text:
+    if _same(lower, upper):
         return None
     compiled = _fast.compile_formula(formula, values)
     if compiled is None:
@@ -167,10 +222,12 @@ def _try_fast(formula: Formula, values: dict[str, Fraction], lower: Formula, upp
         return None  # float64's resolution stopped it: the precise engine may get there, with more bits
     # past the deadline or the node budget, starting over on the slower engine with the same budget could
     # not do better and would run on past what the caller allowed: the compiled answer stands
-    return outcome, value, bound
+    return outcome, low, high
 
 
-def _exact_bounds(limit: Formula, values: dict[str, Fraction], field: str) -> tuple[Fraction, Fraction]:
+def _exact_bounds(limit: Limit, values: dict[str, Fraction], field: str) -> tuple[Fraction, Fraction]:
+    if isinstance(limit, Fraction):
+        return limit, limit
     exact = exact_limit(limit)
     if exact is not None:
         return exact, exact

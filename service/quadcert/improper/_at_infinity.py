@@ -1,0 +1,190 @@
+"""Envelopes of the integrand on a tail [T, ∞) or (−∞, −T].
+
+On x = s·y, y ≥ T ≥ 1 (s = +1 for the right tail, −1 for the left one), every subexpression g gets, where a
+rule proves it, an upper envelope |g| ≤ k·y^p·e^(−r·y), a lower envelope |g| ≥ k·y^p·e^(−r·y) (p and r
+rational; r < 0 is exponential growth) and a sign (+1 when g ≥ 0 on the whole tail, −1 when g ≤ 0, else 0;
+strictly positive needs a lower envelope as well).
+The rules are listed, each with its reason, in ``docs/improper-integrals.md``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+from fractions import Fraction
+from typing import Mapping
+
+from ..arithmetic import Interval
+from ..derivatives import Program
+from ..errors import ArithmeticFault
+from ..formula import Binary, Call, Formula, Negate, Node, Variable
+from ._near_point import _has_variable, _rational
+from ._scalars import Scalars, Unsupported
+
+
+@dataclass(frozen=True)
+class Growth:
+    """k·y^p·e^(−r·y) on y ≥ T, with k an enclosure of the constant."""
+
+    k: Interval
+    p: Fraction
+    r: Fraction
+
+
+@dataclass(frozen=True)
+class TailEnvelope:
+    upper: Growth | None
+    lower: Growth | None
+    sign: int
+
+
+class InTail:
+    """The envelope rules on one tail; ``envelope(root)`` is the integrand's.
+
+    >>> from quadcert.formula import parse
+    >>> tail = InTail(parse("x^2*exp(-x)"), {}, +1, Fraction(8))
+    >>> env = tail.envelope(tail.formula.root)
+    >>> env.upper.p, env.upper.r, env.sign
+    (Fraction(2, 1), Fraction(1, 1), 1)
+    """
+
+    def __init__(self, formula: Formula, values: Mapping[str, Fraction], side: int, start: Fraction) -> None:
+        if start < 1:
+            raise ValueError("a tail starts at T ≥ 1")
+        self.formula, self.values, self.side, self.start = formula, dict(values), side, start
+        self.s = Scalars()
+        self.start_iv = self.s.num(start)
+        self._memo: dict[Node, TailEnvelope] = {}
+
+    # -- the growth algebra ------------------------------------------------------------------------
+    def sup(self, d: Fraction, rho: Fraction) -> Interval:
+        """A bound on sup over y ≥ T of y^d·e^(−ρ·y) (ρ ≥ 0; d ≤ 0 when ρ = 0)."""
+        s, ar = self.s, self.s.ar
+        if rho < 0 or (rho == 0 and d > 0):
+            raise Unsupported("an envelope that grows faster cannot be compared")
+        at_start = ar.mul(s.power(self.start_iv, d), s.exp(s.num(-rho * self.start)))
+        if d <= 0 or d / rho <= self.start:
+            return at_start  # decreasing on [T, ∞)
+        return s.power(ar.div(s.num(d / rho), ar.constant("e")), d)  # the peak at y = d/ρ
+
+    def times(self, a: Growth, b: Growth) -> Growth:
+        return Growth(self.s.ar.mul(a.k, b.k), a.p + b.p, a.r + b.r)
+
+    def raised(self, a: Growth, n: Fraction) -> Growth:
+        return Growth(self.s.power(a.k, n), a.p * n, a.r * n)
+
+    def plus(self, a: Growth, b: Growth) -> Growth:
+        ar = self.s.ar
+        p, r = max(a.p, b.p), min(a.r, b.r)
+        k = ar.add(ar.mul(a.k, self.sup(a.p - p, a.r - r)), ar.mul(b.k, self.sup(b.p - p, b.r - r)))
+        return Growth(k, p, r)
+
+    def scaled(self, a: Growth, factor: Interval) -> Growth:
+        return Growth(self.s.ar.mul(a.k, factor), a.p, a.r)
+
+    def bound(self, a: Growth) -> Interval:
+        return self.s.ar.mul(a.k, self.sup(a.p, a.r))
+
+    def infimum(self, a: Growth) -> Interval:
+        """inf over the tail of k·y^p·e^(−r·y) for p ≥ 0 and r ≤ 0 (increasing: the value at T)."""
+        if a.p < 0 or a.r > 0:
+            raise Unsupported("no useful infimum")
+        s, ar = self.s, self.s.ar
+        return ar.mul(a.k, ar.mul(s.power(self.start_iv, a.p), s.exp(s.num(-a.r * self.start))))
+
+    def linear_rate(self, a: Growth) -> Fraction | None:
+        """A rate c with k·y^p ≤ c·y on the tail (p ≤ 1, r = 0), as a rational rounded up."""
+        if a.r != 0 or a.p > 1:
+            return None
+        s = self.s
+        return s.ceiling_fraction(s.ar.mul(a.k, s.power(self.start_iv, a.p - 1)))
+
+    # -- rules ---------------------------------------------------------------------------------------
+    def envelope(self, node: Node) -> TailEnvelope:
+        cached = self._memo.get(node)
+        if cached is None:
+            cached = self._rule(node)
+            self._memo[node] = cached
+        return cached
+
+    def _constant(self, node: Node) -> TailEnvelope:
+        ar, s = self.s.ar, self.s
+        try:
+            value = Program(Formula(node, self.formula.variable, self.formula.parameters), ar, self.values).value(ar.zero)
+        except ArithmeticFault:
+            raise Unsupported("a constant subexpression cannot be evaluated") from None
+        size = s.magnitude(value)
+        upper = Growth(size, Fraction(0), Fraction(0))
+        if ar.sign(value) == 0:
+            return TailEnvelope(upper, None, 0)
+        return TailEnvelope(upper, upper, ar.sign(value))
+
+    def _rule(self, node: Node) -> TailEnvelope:
+        if not _has_variable(node):
+            return self._constant(node)
+        if isinstance(node, Variable):
+            one = Growth(self.s.ar.one, Fraction(1), Fraction(0))
+            return TailEnvelope(one, one, self.side)
+        if isinstance(node, Negate):
+            inner = self.envelope(node.operand)
+            return replace(inner, sign=-inner.sign)
+        if isinstance(node, Binary):
+            if node.op in "+-":
+                return self._sum(node)
+            left, right = self.envelope(node.left), self.envelope(node.right)
+            if node.op == "*":
+                if left.upper is None or right.upper is None:
+                    raise Unsupported("a factor has no bound in the tail")
+                lower = self.times(left.lower, right.lower) if left.lower and right.lower else None
+                return TailEnvelope(self.times(left.upper, right.upper), lower, left.sign * right.sign)
+            if node.op == "/":
+                if right.lower is None or left.upper is None:
+                    raise Unsupported("a denominator is not bounded away from zero in the tail")
+                upper = self.times(left.upper, self.raised(right.lower, Fraction(-1)))
+                lower = None
+                if left.lower is not None and right.upper is not None:
+                    lower = self.times(left.lower, self.raised(right.upper, Fraction(-1)))
+                return TailEnvelope(upper, lower, left.sign * right.sign)
+            if _has_variable(node.right):
+                return self.envelope(Call("exp", (Binary("*", node.right, Call("log", (node.left,))),)))
+            return self.raise_to(left, _rational(node.right, self.values))
+        if isinstance(node, Call):
+            from ._tail_functions import tail_call
+            return tail_call(self, node)
+        raise Unsupported(f"no rule for {type(node).__name__}")
+
+    def _sum(self, node: Binary) -> TailEnvelope:
+        left, right = self.envelope(node.left), self.envelope(node.right)
+        sign_right = right.sign if node.op == "+" else -right.sign
+        if left.upper is None or right.upper is None:
+            raise Unsupported("a term of a sum has no bound in the tail")
+        upper = self.plus(left.upper, right.upper)
+        if left.sign and left.sign == sign_right:
+            candidates = [e for e in (left.lower, right.lower) if e is not None]
+            lower = min(candidates, key=lambda e: (e.r, -e.p)) if candidates else None
+            return TailEnvelope(upper, lower, left.sign)
+        for big, small, sign in ((left, right, left.sign), (right, left, sign_right)):
+            if big.lower is None or not sign:
+                continue
+            try:
+                ratio = self.sup(small.upper.p - big.lower.p, small.upper.r - big.lower.r)
+            except Unsupported:
+                continue
+            k = self.s.ar.sub(big.lower.k, self.s.ar.mul(small.upper.k, ratio))
+            if self.s.positive(k):
+                return TailEnvelope(upper, Growth(k, big.lower.p, big.lower.r), sign)
+        return TailEnvelope(upper, None, 0)
+
+    def raise_to(self, base: TailEnvelope, n: Fraction) -> TailEnvelope:
+        if n.denominator != 1 and (base.sign != 1 or (n < 0 and base.lower is None)):
+            raise Unsupported("a non-integer power of a base not proved positive")
+        if n == 0:
+            one = Growth(self.s.ar.one, Fraction(0), Fraction(0))
+            return TailEnvelope(one, one, 1)
+        up, down = (base.upper, base.lower) if n > 0 else (base.lower, base.upper)
+        if up is None:
+            raise Unsupported("the base of a negative power is not bounded away from zero in the tail")
+        lower = self.raised(down, n) if down is not None else None
+        sign = 1 if n.denominator != 1 or n.numerator % 2 == 0 else base.sign
+        return TailEnvelope(self.raised(up, n), lower, sign)
+
+

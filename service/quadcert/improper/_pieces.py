@@ -1,0 +1,200 @@
+"""Certified enclosures of the singular pieces and tails, sized to a share of the tolerance.
+
+A piece's enclosure comes from integrating its upper envelope in closed form, with outward rounding:
+
+- next to a point: ∫₀^δ k·t^p·L^q dt = k·δ^(p+1)·Σ_{j=0..q} q!/j!·L_δ^j/(p+1)^(q+1−j)   (p > −1);
+- in a tail:       ∫_T^∞ k·y^p·e^(−r·y) dy ≤ k·T^p·e^(−r·T)/(r − max(p, 0)/T)          (r > max(p, 0)/T),
+                   ∫_T^∞ k·y^p dy = k·T^(p+1)/(−p−1)                                       (r = 0, p < −1).
+
+A proved sign halves the enclosure ([0, I] or [−I, 0]). A proved minorant of fixed sign that is not
+integrable (t^p with p ≤ −1 next to a point; y^p·e^(−r·y) with r < 0, or r = 0 and p ≥ −1, in a tail)
+proves divergence instead.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from fractions import Fraction
+from math import factorial
+from typing import Mapping
+
+from ..arithmetic import Interval
+from ..arithmetic._interval import raw_down, raw_up
+from ..errors import NotCertifiable
+from ..formula import Formula
+from ._at_infinity import Growth, InTail, TailEnvelope
+from ._near_point import Envelope, NearPoint, Power
+from ._scalars import Unsupported
+
+_MAX_ROUNDS = 12
+_SMALLEST_PIECE = Fraction(1, 2**3000)
+_FARTHEST_TAIL = Fraction(2**3000)
+
+
+@dataclass(frozen=True)
+class Piece:
+    """One piece of the integral enclosed by an envelope rather than by panels."""
+
+    kind: str                      # "singular-envelope" or "tail-envelope"
+    near: Fraction | None          # the end the piece touches (None: infinity)
+    cut: Fraction                  # where the panels take over
+    enclosure: tuple[Fraction, Fraction]
+    envelope: str                  # the bound used, for people
+
+
+def _power_text(power: Power, side: int, point: Fraction) -> str:
+    t = f"|x − {float(point):.17g}|" if point else "|x|"
+    logs = f"·log(1/{t})^{power.q}" if power.q else ""
+    return f"|f| ≤ {_high_text(power.k)}·{t}^({power.p}){logs}"
+
+
+def _growth_text(growth: Growth, relation: str = "≤") -> str:
+    rate = f"·exp(−{growth.r}·|x|)" if growth.r else ""
+    constant = _high_text(growth.k) if relation == "≤" else _low_text(growth.k)
+    return f"|f| {relation} {constant}·|x|^({growth.p}){rate}"
+
+
+def _high_text(k: Interval) -> str:
+    return f"{raw_up(k.hi):.6g}"
+
+
+def _low_text(k: Interval) -> str:
+    return f"{raw_down(k.lo):.6g}"
+
+
+def _signed(size: Fraction, sign: int) -> tuple[Fraction, Fraction]:
+    if sign > 0:
+        return Fraction(0), size
+    if sign < 0:
+        return -size, Fraction(0)
+    return -size, size
+
+
+def _near_integral(near: NearPoint, power: Power) -> object:
+    s, ar = near.s, near.s.ar
+    p1 = power.p + 1
+    total = ar.zero
+    for j in range(power.q + 1):
+        term = ar.div(ar.mul(s.num(Fraction(factorial(power.q), factorial(j))), s.power(near.log_delta, Fraction(j))),
+                      s.power(s.num(p1), Fraction(power.q + 1 - j)))
+        total = ar.add(total, term)
+    return ar.mul(ar.mul(power.k, s.power(near.delta_iv, p1)), total)
+
+
+def end_piece(formula: Formula, values: Mapping[str, Fraction], point: Fraction, side: int, budget: Fraction,
+              room: Fraction) -> Piece:
+    """The piece (point, point + side·δ] with an enclosure no wider than budget, or a refusal.
+
+    Raises NotCertifiable with code ``divergent_integral`` (a proved minorant that is not integrable),
+    ``singularity_not_bounded`` (no rule applies) or ``singularity_undecided`` (an envelope that is not
+    integrable without a minorant that proves divergence).
+    """
+    delta = Fraction(1, 16)
+    while delta > room / 4:
+        delta /= 2
+    location = (float(point), float(point))
+    for _ in range(_MAX_ROUNDS):
+        try:
+            near = NearPoint(formula, values, point, side, delta)
+            env = near.envelope(formula.root)
+        except Unsupported as why:
+            raise NotCertifiable(f"the integrand is undefined at x = {float(point):.17g} and cannot be bounded next to "
+                                 f"it: {why}", code="singularity_not_bounded", location=location) from None
+        _refuse_divergent_near(near, env, point, location)
+        assert env.upper is not None
+        if env.upper.p <= -1:
+            raise NotCertifiable(f"cannot decide whether the integral converges next to x = {float(point):.17g}: the "
+                                 f"best bound found, {_power_text(env.upper, side, point)}, is not integrable and no "
+                                 "minorant of fixed sign proves divergence", code="singularity_undecided",
+                                 location=location)
+        size = near.s.high(_near_integral(near, env.upper))
+        width = size if env.sign else 2 * size
+        if width <= budget:
+            low, high = _signed(size, env.sign)
+            return Piece("singular-envelope", point, point + side * delta, (low, high),
+                         _power_text(env.upper, side, point))
+        shrink = (budget / width) ** (1 / float(env.upper.p + 1)) / 2 if width else 0.5
+        target = delta * Fraction(max(min(shrink, 0.5), 2.0**-900))
+        while delta > target and delta > _SMALLEST_PIECE:
+            delta /= 2
+        if delta <= _SMALLEST_PIECE:
+            break
+    raise NotCertifiable(f"the piece next to x = {float(point):.17g} cannot be made small enough for the tolerance",
+                         code="singularity_not_bounded", location=location)
+
+
+def _refuse_divergent_near(near: NearPoint, env: Envelope, point: Fraction, location: tuple[float, float]) -> None:
+    if env.sign and env.lower is not None:
+        low = near.lower_fold(env.lower)
+        if low.p <= -1:
+            raise NotCertifiable(
+                f"the integral diverges at x = {float(point):.17g}: next to it the integrand keeps the sign "
+                f"{'+' if env.sign > 0 else '−'} and |f| ≥ {_low_text(low.k)}·|x − {float(point):.17g}|^({low.p}), "
+                "which is not integrable", code="divergent_integral", location=location)
+
+
+def _tail_integral(tail: InTail, growth: Growth) -> object | None:
+    s, ar = tail.s, tail.s.ar
+    T = tail.start
+    if growth.r > 0:
+        denominator = growth.r - max(growth.p, Fraction(0)) / T
+        if denominator <= 0:
+            return None
+        value = ar.mul(growth.k, ar.mul(s.power(tail.start_iv, growth.p), s.exp(s.num(-growth.r * T))))
+        return ar.div(value, s.num(denominator))
+    if growth.r == 0 and growth.p < -1:
+        return ar.div(ar.mul(growth.k, s.power(tail.start_iv, growth.p + 1)), s.num(-growth.p - 1))
+    return None
+
+
+def tail_piece(formula: Formula, values: Mapping[str, Fraction], side: int, start: Fraction,
+               budget: Fraction) -> Piece:
+    """The tail beyond side·T (T ≥ start) with an enclosure no wider than budget, or a refusal."""
+    T = Fraction(1)
+    while T < start:
+        T *= 2
+    location = (float("inf"), float("inf")) if side > 0 else (float("-inf"), float("-inf"))
+    for _ in range(4 * _MAX_ROUNDS):
+        try:
+            tail = InTail(formula, values, side, T)
+            env = tail.envelope(formula.root)
+        except Unsupported as why:
+            raise NotCertifiable(f"the tail towards {'+' if side > 0 else '−'}∞ cannot be bounded: {why}",
+                                 code="tail_not_bounded", location=location) from None
+        _refuse_divergent_tail(env, side, location)
+        size = _tail_integral(tail, env.upper) if env.upper is not None else None
+        if size is None:
+            if env.upper is not None and env.upper.r == 0 and env.upper.p >= -1 or env.upper is None:
+                raise NotCertifiable(
+                    f"cannot decide whether the integral converges towards {'+' if side > 0 else '−'}∞: the best "
+                    f"bound found{', ' + _growth_text(env.upper) if env.upper else ''}, is not integrable, and "
+                    "no minorant of fixed sign proves divergence (an integral that converges only conditionally, "
+                    "such as sin(x)/x, is refused)", code="tail_undecided", location=location)
+            T *= 2
+            continue
+        high = tail.s.high(size)
+        width = high if env.sign else 2 * high
+        if width <= budget:
+            low, top = _signed(high, env.sign)
+            cut = T * side
+            return Piece("tail-envelope", None, cut, (low, top), _growth_text(env.upper))
+        assert env.upper is not None
+        if env.upper.r == 0:  # power decay: jump straight to about the T that should do
+            factor = (width / budget) ** (1 / float(-env.upper.p - 1))
+            grow = max(2, min(int(factor) + 1, 2**200))
+            T *= 1 << (grow - 1).bit_length()
+        else:
+            T *= 2
+        if T > _FARTHEST_TAIL:
+            break
+    raise NotCertifiable(f"the tail towards {'+' if side > 0 else '−'}∞ decays too slowly for the tolerance",
+                         code="tail_not_bounded", location=location)
+
+
+def _refuse_divergent_tail(env: TailEnvelope, side: int, location: tuple[float, float]) -> None:
+    low = env.lower
+    if env.sign and low is not None and (low.r < 0 or (low.r == 0 and low.p >= -1)):
+        raise NotCertifiable(
+            f"the integral diverges towards {'+' if side > 0 else '−'}∞: there the integrand keeps the sign "
+            f"{'+' if env.sign > 0 else '−'} and {_growth_text(low, '≥')}, which is not integrable",
+            code="divergent_integral", location=location)

@@ -1,0 +1,222 @@
+"""An integral in pieces: envelope pieces at singular ends and infinite limits, panels in between.
+
+Used when a limit is infinite, or when the panels meet a point where the integrand cannot be evaluated (at an
+end, or inside the interval: the point is then located exactly, as the simplest rational inside the reported
+enclosure, and proved singular by the envelope rules or the request is refused). The envelope pieces share a
+quarter of the tolerance; the panel stretches share what is left.
+"""
+
+from __future__ import annotations
+
+import math
+from fractions import Fraction
+from typing import Any, Callable, Mapping
+
+from ..arithmetic import MpmathArithmetic, fraction_down, fraction_up
+from ..derivatives import Program
+from ..errors import ArithmeticFault, NotCertifiable
+from ..formula import Formula
+from ..improper import Piece, end_piece, tail_piece
+from ._endpoints import exact_limit, infinite_side
+from ._result import PanelReport
+
+INTERIOR_CODES = frozenset({"undefined_at_point", "unbounded_near"})
+MAX_BREAKPOINTS = 8
+_PIECE_SHARE = Fraction(1, 4)      # of the tolerance, for all envelope pieces together (widths)
+_PANEL_SHARE = Fraction(95, 100)   # of what is left, for the panel stretches (bounds); the rest absorbs rounding
+
+End = Any  # Fraction (exact), Formula (enclosed), or ±1 (an infinite limit)
+
+
+def needs_pieces(lower: Formula, upper: Formula) -> bool:
+    """Only infinite limits go to pieces at once; singular points are found by the panels' refusal."""
+    return bool(infinite_side(lower) or infinite_side(upper))
+
+
+def simplest_between(low: Fraction, high: Fraction) -> Fraction:
+    """The rational with the smallest denominator in [low, high] (a Stern–Brocot descent).
+
+    >>> simplest_between(Fraction(0.3), Fraction(0.30000000000000004))
+    Fraction(3, 10)
+    """
+    if low > high:
+        low, high = high, low
+    if low <= 0 <= high:
+        return Fraction(0)
+    if high < 0:
+        return -simplest_between(-high, -low)
+    whole = math.floor(low)
+    if whole == low or whole + 1 <= high:
+        return Fraction(whole if whole == low else whole + 1)
+    # low < x < high inside (whole, whole + 1): recurse on the reciprocals of the fractional parts
+    return whole + 1 / simplest_between(1 / (high - whole), 1 / (low - whole))
+
+
+class _Ends:
+    """Order, exactness and singularity of the points that bound the stretches."""
+
+    def __init__(self, formula: Formula, values: Mapping[str, Fraction]) -> None:
+        self.formula, self.values = formula, values
+        self.ar = MpmathArithmetic(128)
+        self.program = Program(formula, self.ar, values)
+
+    def numeric(self, end: End) -> tuple[Fraction, Fraction] | None:
+        """Exact bounds of a finite end; None for an infinite one."""
+        if isinstance(end, int):
+            return None
+        if isinstance(end, Fraction):
+            return end, end
+        from ._endpoints import enclose_limit
+        return self.ar.bounds_exact(enclose_limit(end, self.ar, dict(self.values), "limit"))
+
+    def exact(self, end: End) -> Fraction | None:
+        if isinstance(end, Fraction):
+            return end
+        if isinstance(end, Formula):
+            return exact_limit(end)
+        return None
+
+    def singular(self, end: End) -> bool:
+        point = self.exact(end)
+        if point is None:
+            return False
+        try:
+            self.program.value(self.ar.exact(point))
+        except ArithmeticFault:
+            return True
+        return False
+
+
+def integrate_pieces(formula: Formula, values: Mapping[str, Fraction], lower: Formula, upper: Formula,
+                     tolerance: float, settings: Any, segment: Callable[..., Any],
+                     refusal: NotCertifiable | None = None) -> Any:
+    """The composite integral as one Segment (see ``_integrate.segment``), in the caller's orientation."""
+    ends = _Ends(formula, values)
+    a: End = infinite_side(lower) or lower
+    b: End = infinite_side(upper) or upper
+    sign = 1
+    if _after(ends, a, b):
+        a, b, sign = b, a, -1
+    points: list[Fraction] = []
+    if refusal is not None and not _add_point(ends, a, b, points, refusal) and not (
+            ends.singular(a) or ends.singular(b)):
+        raise refusal
+    while True:
+        try:
+            result = _assemble(formula, values, ends, [a, *points, b], tolerance, settings, segment)
+        except NotCertifiable as again:
+            if again.code in INTERIOR_CODES and len(points) < MAX_BREAKPOINTS and _add_point(ends, a, b, points,
+                                                                                               again):
+                continue
+            raise
+        return _oriented(result, sign)
+
+
+def _after(ends: _Ends, a: End, b: End) -> bool:
+    if isinstance(a, int) or isinstance(b, int):
+        return (a if isinstance(a, int) else 0) > (b if isinstance(b, int) else 0) or (a == 1) or (b == -1)
+    (a_lo, a_hi), (b_lo, b_hi) = ends.numeric(a), ends.numeric(b)  # type: ignore[misc]
+    if a_hi < b_lo:
+        return False
+    if b_hi < a_lo:
+        return True
+    raise NotCertifiable("the limits are too close to order", code="unbounded_near")
+
+
+def _add_point(ends: _Ends, a: End, b: End, points: list[Fraction], refusal: NotCertifiable) -> bool:
+    """Add the singular point the refusal located; False when it is no new point strictly inside."""
+    if refusal.location is None or not all(math.isfinite(v) for v in refusal.location):
+        return False
+    point = simplest_between(Fraction(refusal.location[0]), Fraction(refusal.location[1]))
+    a_hi = None if isinstance(a, int) else ends.numeric(a)[1]  # type: ignore[index]
+    b_lo = None if isinstance(b, int) else ends.numeric(b)[0]  # type: ignore[index]
+    inside = (a_hi is None or point > a_hi) and (b_lo is None or point < b_lo)
+    if not inside or point in points or not ends.singular(point):
+        return False
+    points.append(point)
+    points.sort()
+    return True
+
+
+def _assemble(formula: Formula, values: Mapping[str, Fraction], ends: _Ends, chain: list[End], tolerance: float,
+              settings: Any, segment: Callable[..., Any]) -> Any:
+    stretches = list(zip(chain, chain[1:]))
+    plans = []
+    for u, v in stretches:
+        plans.append((isinstance(u, int) or ends.singular(u), isinstance(v, int) or ends.singular(v)))
+    count = sum(left + right for left, right in plans)
+    budget = Fraction(tolerance) * _PIECE_SHARE / max(count, 1)
+    pieces: list[Piece] = []
+    cuts: list[tuple[Any, Any]] = []
+    for (u, v), (left, right) in zip(stretches, plans):
+        start, stop = u, v
+        if left:
+            piece = _piece(formula, values, ends, u, v, +1, budget)
+            pieces.append(piece)
+            start = piece.cut
+        if right:
+            piece = _piece(formula, values, ends, v, start, -1, budget)
+            pieces.append(piece)
+            stop = piece.cut
+        cuts.append((start, stop))
+    used = sum((p.enclosure[1] - p.enclosure[0] for p in pieces), Fraction(0)) / 2
+    share = fraction_down((Fraction(tolerance) - used) * _PANEL_SHARE / len(cuts))
+    low, high = Fraction(0), Fraction(0)
+    nodes = panels = 0
+    stops: list[str] = []
+    mesh: list[PanelReport] = []
+    bounds_used: dict[str, int] = {}
+    precision = 53
+    for start, stop in cuts:
+        part = segment(formula, dict(values), start, stop, lambda _lo, _hi: share, share, settings)
+        low += Fraction(part.low)
+        high += Fraction(part.high)
+        nodes, panels = nodes + part.nodes, panels + part.panels
+        stops.append(part.stop)
+        mesh.extend(part.mesh)
+        precision = max(precision, part.precision_bits)
+        for name, n in part.bounds_used.items():
+            bounds_used[name] = bounds_used.get(name, 0) + n
+    for piece in pieces:
+        low += piece.enclosure[0]
+        high += piece.enclosure[1]
+        bounds_used[piece.kind] = bounds_used.get(piece.kind, 0) + 1
+        mesh.append(_report(piece))
+    stop = next((s for s in stops if s != "tolerance_met"), "tolerance_met")
+    mesh.sort(key=lambda r: (r.lower, r.upper))
+    from ._integrate import Segment
+    return Segment(fraction_down(low), fraction_up(high), stop, nodes, panels + len(pieces),
+                   tuple(mesh) if settings.include_mesh else (), bounds_used, precision)
+
+
+def _piece(formula: Formula, values: Mapping[str, Fraction], ends: _Ends, end: End, other: End, side: int,
+           budget: Fraction) -> Piece:
+    if isinstance(end, int):  # a tail: it must start beyond the other end of its stretch
+        other_bounds = ends.numeric(other) if not isinstance(other, int) else (Fraction(0), Fraction(0))
+        reach = max(abs(other_bounds[0]), abs(other_bounds[1])) + 1  # type: ignore[index]
+        return tail_piece(formula, values, end, reach, budget)
+    point = ends.exact(end)
+    assert point is not None
+    if isinstance(other, int):
+        room = Fraction(1)
+    else:
+        lo, hi = ends.numeric(other)  # type: ignore[misc]
+        room = (lo - point) if side > 0 else (point - hi)
+    return end_piece(formula, values, point, side, budget, room)
+
+
+def _report(piece: Piece) -> PanelReport:
+    if piece.near is None:
+        lower, upper = (float(piece.cut), math.inf) if piece.cut > 0 else (-math.inf, float(piece.cut))
+    else:
+        lower, upper = sorted((float(piece.near), float(piece.cut)))
+    return PanelReport(lower, upper, (fraction_down(piece.enclosure[0]), fraction_up(piece.enclosure[1])),
+                       piece.kind)
+
+
+def _oriented(result: Any, sign: int) -> Any:
+    if sign > 0:
+        return result
+    from dataclasses import replace
+    mesh = tuple(PanelReport(r.lower, r.upper, (-r.contribution[1], -r.contribution[0]), r.bound) for r in result.mesh)
+    return replace(result, low=-result.high, high=-result.low, mesh=mesh)
