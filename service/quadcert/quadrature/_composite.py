@@ -25,7 +25,9 @@ MAX_BREAKPOINTS = 8
 _PIECE_SHARE = Fraction(1, 4)      # of the tolerance, for all envelope pieces together (widths)
 _PANEL_SHARE = Fraction(95, 100)   # of what is left, for the panel stretches (bounds); the rest absorbs rounding
 
-End = Any  # Fraction (exact), Formula (enclosed), or ±1 (an infinite limit)
+_GROWTH = Fraction(2**10)
+
+End = Any  # Fraction (exact), Formula (enclosed), or the int ±1 (an infinite limit)
 
 
 def needs_pieces(lower: Formula, upper: Formula) -> bool:
@@ -158,7 +160,7 @@ def _assemble(formula: Formula, values: Mapping[str, Fraction], ends: _Ends, cha
             piece = _piece(formula, values, ends, v, start, -1, budget)
             pieces.append(piece)
             stop = piece.cut
-        cuts.append((start, stop))
+        cuts.extend(_graded(ends, start, stop, u, v, left, right))
     used = sum((p.enclosure[1] - p.enclosure[0] for p in pieces), Fraction(0)) / 2
     share = fraction_down((Fraction(tolerance) - used) * _PANEL_SHARE / len(cuts))
     low, high = Fraction(0), Fraction(0)
@@ -187,6 +189,51 @@ def _assemble(formula: Formula, values: Mapping[str, Fraction], ends: _Ends, cha
     from ._integrate import Segment
     return Segment(fraction_down(low), fraction_up(high), stop, nodes, panels + len(pieces),
                    tuple(mesh) if settings.include_mesh else (), bounds_used, precision)
+
+
+def _graded(ends: _Ends, start: Any, stop: Any, u: End, v: End, left: bool, right: bool
+            ) -> list[tuple[Any, Any]]:
+    """The stretch between two envelope pieces, cut into parts over which the panels can start coarse.
+
+    Next to a singular point the panels must shrink to the piece's size δ, and in front of a tail they must
+    span up to T; one stretch for all of it would need a bisection depth, and a first coarse panel, that the
+    compiled engine refuses. The parts grow geometrically, by a factor 2^10, away from the point or in from
+    the tail, and meet in the middle.
+    """
+    low = ends.numeric(start)
+    high = ends.numeric(stop)
+    if low is None or high is None:
+        return [(start, stop)]
+    middle = (low[1] + high[0]) / 2
+    if right and isinstance(v, int) and not isinstance(u, int):
+        middle = min(middle, low[1] + 1)  # a singular point before a tail: its parts stop one unit away
+    if left and isinstance(u, int) and not isinstance(v, int):
+        middle = max(middle, high[0] - 1)
+    marks: set[Fraction] = set()
+    if left and isinstance(u, int):  # from −T in towards the stretch
+        mark = Fraction(start) / _GROWTH
+        while mark < min(middle, -1, 2 * high[0]):
+            marks.add(mark)
+            mark /= _GROWTH
+    elif left:
+        origin = ends.exact(u)
+        step = (low[0] - origin) * _GROWTH  # type: ignore[operator]
+        while origin + step < middle:  # type: ignore[operator]
+            marks.add(origin + step)  # type: ignore[operator]
+            step *= _GROWTH
+    if right and isinstance(v, int):  # from T in towards the stretch
+        mark = Fraction(stop) / _GROWTH
+        while mark > max(middle, 1, 2 * low[1]):
+            marks.add(mark)
+            mark /= _GROWTH
+    elif right:
+        origin = ends.exact(v)
+        step = (origin - high[1]) * _GROWTH  # type: ignore[operator]
+        while origin - step > middle:  # type: ignore[operator]
+            marks.add(origin - step)  # type: ignore[operator]
+            step *= _GROWTH
+    points = [start, *sorted(m for m in marks if low[1] < m < high[0]), stop]
+    return list(zip(points, points[1:]))
 
 
 def _piece(formula: Formula, values: Mapping[str, Fraction], ends: _Ends, end: End, other: End, side: int,
