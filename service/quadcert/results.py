@@ -172,6 +172,9 @@ def _panel(panel: dict[str, Any]) -> dict[str, Any]:
 
 
 def _outward(value: Any, up: bool) -> Any:
+    """A float bound as an outward decimal; an infinite end (a tail's) as the text "inf" or "-inf"."""
+    if isinstance(value, float) and math.isinf(value):
+        return "inf" if value > 0 else "-inf"
     return bound_decimal(value, up) if isinstance(value, float) else value
 
 

@@ -49,8 +49,8 @@ VALUES = [
     ({"upper_limit": 1e300, "integrand": "exp(x)"}, ("magnitude_exceeded", "unbounded_near")),
     ({"upper_limit": "1e1000", "integrand": "1"}, ("limit_out_of_range",)),
     ({"upper_limit": "1e300", "integrand": "1e10"}, ("result_out_of_range",)),
-    ({"upper_limit": "inf"}, ("infinite_limit",)),
-    ({"lower_limit": "-Infinity"}, ("infinite_limit",)),
+    ({"upper_limit": "inf"}, ("divergent_integral",)),      # x on [0, inf)
+    ({"lower_limit": "-Infinity"}, ("divergent_integral",)),  # x on (-inf, 1]
     ({"tolerance": 1e-300}, ("tolerance_out_of_range",)),
     ({"tolerance": -1}, ("invalid_tolerance",)),
     ({"tolerance": 0}, ("invalid_tolerance",)),

@@ -77,7 +77,7 @@ async def test_engine_errors_come_back_as_answers() -> None:
     try:
         answer = await pool.run("integral", {"integrand": "1/x", "lower_limit": -1, "upper_limit": 1,
                                              "tolerance": 1e-6}, 10)
-        assert answer["error"]["code"] == "undefined_at_point"
+        assert answer["error"]["code"] == "divergent_integral"
     finally:
         await pool.close()
 

@@ -44,11 +44,20 @@ def test_etag_revalidation(client: TestClient) -> None:
 
 def test_failures_are_one_line_non_2xx(client: TestClient) -> None:
     for params in [{**BASE, "integrand": "log(x)", "lower_limit": "-1"}, {**BASE, "integrand": "sinn(x)"},
-                   {**BASE, "tolerance": "abc"}, {**BASE, "upper_limit": "inf"}]:
+                   {**BASE, "tolerance": "abc"},
+                   {**BASE, "integrand": "1/x", "lower_limit": "1", "upper_limit": "inf"}]:
         response = client.get("/v1/integral", params=params)
         assert response.status_code >= 400, params
         assert "\n" not in response.text and response.text.startswith("error ")
         assert response.headers.get("etag") is None
+
+
+def test_an_infinite_limit_answers_one_number(client: TestClient) -> None:
+    """Reference: ∫₀^∞ exp(−x²) dx = √π/2 (closed form, A&S 7.1.1 with erf(∞) = 1)."""
+    params = {**BASE, "upper_limit": "inf", "tolerance": "1e-10"}
+    response = client.get("/v1/integral", params=params)
+    assert response.status_code == 200, response.text
+    assert abs(float(response.text) - 0.886226925452758) < 1e-9
 
 
 def test_tolerance_not_met_is_never_a_number(client: TestClient) -> None:

@@ -272,7 +272,7 @@ def test_hand_over_to_the_precise_engine(formula: str, a: str, b: str, tolerance
 
 
 @pytest.mark.parametrize("formula, a, b", [
-    ("1/x", "-1", "1"), ("log(x)", "0", "1"), ("sqrt(x - 0.1)", "0.1", "1"), ("1/(x - 0.3)^2", "0", "1"),
+    ("1/x", "-1", "1"), ("log(x)", "-1", "1"), ("sqrt(x - 2)", "0", "1"), ("1/(x - 0.3)^2", "0", "1"),
     ("1/(x - 0.5)^2", "0", "1"), ("tan(x)", "0", "2"), ("log(sin(10*x))", "0.1", "1"), ("sqrt(-x)", "0", "1"),
 ])
 def test_refusals_are_the_precise_engines_own(formula: str, a: str, b: str) -> None:

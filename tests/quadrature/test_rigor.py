@@ -81,12 +81,11 @@ def test_scipy_quad_is_confidently_wrong_where_we_are_certified() -> None:
 
 @pytest.mark.parametrize("integrand, a, b, code", [
     ("log(x)", -1, 1, "undefined_at_point"),
-    ("1/x", -1, 1, "undefined_at_point"),
-    ("1/(x - 0.3)", 0, 1, "unbounded_near"),
-    ("1/sqrt(x)", 0, 1, "undefined_at_point"),
+    ("1/x", -1, 1, "divergent_integral"),           # no principal values: ∫ 1/x over [−1, 1] diverges
+    ("1/(x - 0.3)", 0, 1, "divergent_integral"),
     ("sqrt(x - 2)", 0, 1, "undefined_at_point"),
     ("tan(x)", 0, 3, "unbounded_near"),
-    ("1/abs(x - 1/3)", 0, 1, "unbounded_near"),
+    ("1/abs(x - 1/3)", 0, 1, "divergent_integral"),
     ("log(x - 2)", 0, 1, "undefined_at_point"),
 ])
 def test_refusals_are_coded_with_location(integrand, a, b, code) -> None:
@@ -109,8 +108,6 @@ def test_refusal_of_singularity_points_at_it() -> None:
     ({"tolerance": math.inf}, "invalid_tolerance"),
     ({"tolerance": 1e-300}, "tolerance_out_of_range"),
     ({"max_nodes": 10**12}, "budget_out_of_range"),
-    ({"upper_limit": "inf"}, "infinite_limit"),
-    ({"upper_limit": math.inf}, "infinite_limit"),
     ({"upper_limit": "x+1"}, "unknown_name"),
     ({"upper_limit": "2x"}, "implicit_multiplication"),
 ])

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 import traceback
 from typing import Any, Callable
 
@@ -18,7 +19,8 @@ def _error(error: Exception) -> dict[str, Any]:
         if isinstance(error, InvalidInput) and error.field:
             payload["field"] = error.field
         if isinstance(error, NotCertifiable) and error.location is not None:
-            payload["location"] = list(error.location)
+            # JSON has no infinity: a tail's location is the text "inf" or "-inf"
+            payload["location"] = [v if math.isfinite(v) else ("inf" if v > 0 else "-inf") for v in error.location]
         return payload
     return {"code": "internal_error", "detail": f"{type(error).__name__}: {error}",
             "trace": traceback.format_exc(limit=8)}

@@ -64,7 +64,8 @@ PROBLEM_TYPES: dict[str, tuple[int, str, str]] = {
     # the other values
     "invalid_input": (422, _INPUT, "A request value is unusable; 'field' names it."),
     "invalid_limit": (422, _INPUT, "A limit is not a number or a constant expression."),
-    "infinite_limit": (422, _INPUT, "Infinite limits are not certified yet: split off or transform the tail."),
+    "infinite_limit": (422, _INPUT, "This operation (a plan of uniform node counts) needs finite limits; "
+                       "integrals take inf and -inf."),
     "limit_out_of_range": (422, _INPUT, "A limit is beyond ±1e300."),
     "invalid_tolerance": (422, _INPUT, "A tolerance is not a finite number above zero."),
     "tolerance_out_of_range": (422, _INPUT, "A tolerance is outside [1e-60, 1e300] (a relative one: below 1)."),
@@ -92,6 +93,20 @@ PROBLEM_TYPES: dict[str, tuple[int, str, str]] = {
                        "A function's argument leaves its domain."),
     "unbounded": (422, "The integrand may be unbounded or undefined near a point", "A division by zero or a "
                   "pole."),
+    "divergent_integral": (422, "The integral diverges", "Proved: next to 'location' (a point, or ±inf) the "
+                           "integrand keeps one sign and is at least a multiple of a power that is not integrable; "
+                           "'detail' gives that minorant."),
+    "singularity_not_bounded": (422, "The integrand cannot be bounded next to a singular point",
+                                "No envelope rule applies at 'location'; 'detail' names the subexpression. "
+                                "Rewrite the formula, or split the interval there."),
+    "singularity_undecided": (422, "Convergence next to a singular point is undecided",
+                              "The best envelope found at 'location' is not integrable, and no minorant of one "
+                              "sign proves divergence."),
+    "tail_not_bounded": (422, "The integrand cannot be bounded in a tail", "No envelope rule applies towards "
+                         "'location' (±inf), or it decays too slowly for the tolerance."),
+    "tail_undecided": (422, "Convergence of a tail is undecided", "The best envelope found is not integrable and "
+                       "no minorant of one sign proves divergence; integrals that converge only conditionally, "
+                       "such as sin(x)/x on [0, inf), are refused."),
     "arithmetic_fault": (422, _CERTIFY, "Interval arithmetic could not bound a value."),
     "magnitude_exceeded": (422, "A value in the computation is too large", "A value beyond 2^65536 arose."),
     "result_out_of_range": (422, "The integral is beyond the float64 range", "Scale the formula."),

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from decimal import Decimal
-from typing import Annotated, Any
+from typing import Annotated, Any, Literal, Union
 
 from pydantic import BaseModel, ConfigDict, Field, PlainValidator, StrictBool, StrictInt, StrictStr, WithJsonSchema
 from pydantic import conlist
@@ -24,11 +24,15 @@ def _json_number(value: Any) -> Decimal | int:
 Number = Annotated[Decimal | int, PlainValidator(_json_number), WithJsonSchema({"type": "number"})]
 Limit = Annotated[Number | Annotated[StrictStr, Field(max_length=512)],
                   Field(description="A number, or text: an exact decimal such as \"0.1\" or a constant "
-                                    "expression such as \"pi/2\". JSON numbers are read as the decimal they spell.")]
+                                    "expression such as \"pi/2\". JSON numbers are read as the decimal they spell. "
+                                    "\"inf\", \"-inf\", \"+inf\" or \"infinity\" (any case) is an infinite "
+                                    "limit: the tail is enclosed by a proved envelope.")]
 
 
 #: a closed interval [low, high] as two numbers
 Pair = conlist(float, min_length=2, max_length=2)
+#: a stretch of the mesh or a refusal's location: numbers, or "inf"/"-inf" at a tail
+Ends = conlist(Union[float, Literal["inf", "-inf"]], min_length=2, max_length=2)
 
 
 class _Strict(BaseModel):
@@ -69,8 +73,8 @@ class BatchRequest(_Strict):
 
 
 class Panel(BaseModel):
-    lower: float
-    upper: float
+    lower: Union[float, Literal["-inf"]]
+    upper: Union[float, Literal["inf"]]
     contribution: Pair
     bound: str
 
@@ -109,7 +113,7 @@ class Problem(BaseModel):
     instance: str | None = None
     column: int | None = None
     field: str | None = None
-    location: Pair | None = None
+    location: Ends | None = None
     request_id: str | None = None
     errors: list[dict] | None = None
 

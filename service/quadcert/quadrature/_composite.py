@@ -110,6 +110,10 @@ def integrate_pieces(formula: Formula, values: Mapping[str, Fraction], lower: Fo
             if again.code in INTERIOR_CODES and len(points) < MAX_BREAKPOINTS and _add_point(ends, a, b, points,
                                                                                                again):
                 continue
+            if refusal is not None and again.code == "singularity_not_bounded":
+                # not an isolated singularity the rules can bound (log(x) on [−1, 1] is undefined on a whole
+                # stretch): the panels' own refusal says more
+                raise refusal from None
             raise
         return _oriented(result, sign)
 

@@ -78,8 +78,8 @@ async def read_integral(
     request: Request,
     integrand: Annotated[str, Query(max_length=4096, description="the formula, e.g. exp(-x^2); in a URL write "
                                     "+ as %2B")],
-    lower_limit: Annotated[str, Query(max_length=512, description="a number or a constant expression, e.g. pi/2")],
-    upper_limit: Annotated[str, Query(max_length=512, description="a number or a constant expression")],
+    lower_limit: Annotated[str, Query(max_length=512, description="a number, a constant expression (e.g. pi/2), or inf/-inf")],
+    upper_limit: Annotated[str, Query(max_length=512, description="a number, a constant expression, or inf/-inf")],
     tolerance: Annotated[str, Query(max_length=80, description="Absolute tolerance, read as the exact decimal "
                                     "it spells")] = "1e-8",
     variable: Annotated[str, Query(max_length=64, description="the integration variable (default x)")] = "x",
