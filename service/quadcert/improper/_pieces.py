@@ -20,7 +20,7 @@ from typing import Mapping
 
 from ..arithmetic import Interval
 from ..arithmetic._interval import raw_down, raw_up
-from ..errors import NotCertifiable
+from ..errors import ArithmeticFault, NotCertifiable
 from ..formula import Formula
 from ._at_infinity import Growth, InTail, TailEnvelope
 from ._near_point import Envelope, NearPoint, Power
@@ -97,7 +97,7 @@ def end_piece(formula: Formula, values: Mapping[str, Fraction], point: Fraction,
         try:
             near = NearPoint(formula, values, point, side, delta)
             env = near.envelope(formula.root)
-        except Unsupported as why:
+        except (Unsupported, ArithmeticFault, ZeroDivisionError, OverflowError) as why:
             raise NotCertifiable(f"the integrand is undefined at x = {float(point):.17g} and cannot be bounded next to "
                                  f"it: {why}", code="singularity_not_bounded", location=location) from None
         _refuse_divergent_near(near, env, point, location)
@@ -107,7 +107,11 @@ def end_piece(formula: Formula, values: Mapping[str, Fraction], point: Fraction,
                                  f"best bound found, {_power_text(env.upper, side, point)}, is not integrable and no "
                                  "minorant of fixed sign proves divergence", code="singularity_undecided",
                                  location=location)
-        size = near.s.high(_near_integral(near, env.upper))
+        try:
+            size = near.s.high(_near_integral(near, env.upper))
+        except ArithmeticFault as why:
+            raise NotCertifiable(f"the envelope next to x = {float(point):.17g} cannot be integrated: {why}",
+                                 code="singularity_not_bounded", location=location) from None
         width = size if env.sign else 2 * size
         if width <= budget:
             low, high = _signed(size, env.sign)
@@ -158,11 +162,15 @@ def tail_piece(formula: Formula, values: Mapping[str, Fraction], side: int, star
         try:
             tail = InTail(formula, values, side, T)
             env = tail.envelope(formula.root)
-        except Unsupported as why:
+        except (Unsupported, ArithmeticFault, ZeroDivisionError, OverflowError) as why:
             raise NotCertifiable(f"the tail towards {'+' if side > 0 else '−'}∞ cannot be bounded: {why}",
                                  code="tail_not_bounded", location=location) from None
         _refuse_divergent_tail(env, side, location)
-        size = _tail_integral(tail, env.upper) if env.upper is not None else None
+        try:
+            size = _tail_integral(tail, env.upper) if env.upper is not None else None
+        except ArithmeticFault as why:
+            raise NotCertifiable(f"the envelope of the tail cannot be integrated: {why}", code="tail_not_bounded",
+                                 location=location) from None
         if size is None:
             if env.upper is not None and env.upper.r == 0 and env.upper.p >= -1 or env.upper is None:
                 raise NotCertifiable(

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import math
 from fractions import Fraction
+from dataclasses import replace
 from typing import Any, Callable, Mapping
 
 from ..arithmetic import MpmathArithmetic, fraction_down, fraction_up
@@ -167,6 +168,8 @@ def _assemble(formula: Formula, values: Mapping[str, Fraction], ends: _Ends, cha
         cuts.extend(_graded(ends, start, stop, u, v, left, right))
     used = sum((p.enclosure[1] - p.enclosure[0] for p in pieces), Fraction(0)) / 2
     share = fraction_down((Fraction(tolerance) - used) * _PANEL_SHARE / len(cuts))
+    # the node budget is shared too, so that max_nodes still bounds the work of the whole request
+    settings = replace(settings, max_nodes=max(settings.max_nodes // len(cuts), 3))
     low, high = Fraction(0), Fraction(0)
     nodes = panels = 0
     stops: list[str] = []
@@ -268,6 +271,5 @@ def _report(piece: Piece) -> PanelReport:
 def _oriented(result: Any, sign: int) -> Any:
     if sign > 0:
         return result
-    from dataclasses import replace
     mesh = tuple(PanelReport(r.lower, r.upper, (-r.contribution[1], -r.contribution[0]), r.bound) for r in result.mesh)
     return replace(result, low=-result.high, high=-result.low, mesh=mesh)
