@@ -10,6 +10,7 @@ from ._at_infinity import Growth, InTail, TailEnvelope
 from ._near_point import Envelope, NearPoint, Power
 from ._pieces import Piece, end_piece, tail_piece
 from ._scalars import Unsupported
+from ._shift import shifted
 
-__all__ = ["Envelope", "Growth", "InTail", "NearPoint", "Piece", "Power", "TailEnvelope", "Unsupported", "end_piece",
+__all__ = ["Envelope", "Growth", "InTail", "NearPoint", "Piece", "Power", "TailEnvelope", "Unsupported", "end_piece", "shifted",
            "tail_piece"]

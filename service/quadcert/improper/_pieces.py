@@ -29,6 +29,7 @@ from ._scalars import Unsupported
 _MAX_ROUNDS = 12
 _SMALLEST_PIECE = Fraction(1, 2**3000)
 _FARTHEST_TAIL = Fraction(2**3000)
+_RETRY_TAIL_UNTIL = 2**24
 
 
 @dataclass(frozen=True)
@@ -163,6 +164,9 @@ def tail_piece(formula: Formula, values: Mapping[str, Fraction], side: int, star
             tail = InTail(formula, values, side, T)
             env = tail.envelope(formula.root)
         except (Unsupported, ArithmeticFault, ZeroDivisionError, OverflowError) as why:
+            if T < _RETRY_TAIL_UNTIL:  # dominance rules may hold only further out (x + 2 ≥ x/2 needs x ≥ 4)
+                T *= 4
+                continue
             raise NotCertifiable(f"the tail towards {'+' if side > 0 else '−'}∞ cannot be bounded: {why}",
                                  code="tail_not_bounded", location=location) from None
         _refuse_divergent_tail(env, side, location)

@@ -17,7 +17,7 @@ from ..arithmetic import MpmathArithmetic, fraction_down, fraction_up
 from ..derivatives import Program
 from ..errors import ArithmeticFault, NotCertifiable
 from ..formula import Formula
-from ..improper import Piece, end_piece, tail_piece
+from ..improper import Piece, end_piece, shifted, tail_piece
 from ._endpoints import exact_limit, infinite_side
 from ._result import PanelReport
 
@@ -155,6 +155,7 @@ def _assemble(formula: Formula, values: Mapping[str, Fraction], ends: _Ends, cha
     budget = Fraction(tolerance) * _PIECE_SHARE / max(count, 1)
     pieces: list[Piece] = []
     cuts: list[tuple[Any, Any]] = []
+    origins: list[Fraction | None] = []
     for (u, v), (left, right) in zip(stretches, plans):
         start, stop = u, v
         if left:
@@ -165,9 +166,11 @@ def _assemble(formula: Formula, values: Mapping[str, Fraction], ends: _Ends, cha
             piece = _piece(formula, values, ends, v, start, -1, budget)
             pieces.append(piece)
             stop = piece.cut
-        cuts.extend(_graded(ends, start, stop, u, v, left, right))
+        parts = _graded(ends, start, stop, u, v, left, right)
+        cuts.extend(parts)
+        origins.extend(_origin(ends, part, u if left else None, v if right else None) for part in parts)
     used = sum((p.enclosure[1] - p.enclosure[0] for p in pieces), Fraction(0)) / 2
-    share = fraction_down((Fraction(tolerance) - used) * _PANEL_SHARE / len(cuts))
+    shares = _shares(ends, cuts, (Fraction(tolerance) - used) * _PANEL_SHARE)
     # the node budget is shared too, so that max_nodes still bounds the work of the whole request
     settings = replace(settings, max_nodes=max(settings.max_nodes // len(cuts), 3))
     low, high = Fraction(0), Fraction(0)
@@ -176,8 +179,15 @@ def _assemble(formula: Formula, values: Mapping[str, Fraction], ends: _Ends, cha
     mesh: list[PanelReport] = []
     bounds_used: dict[str, int] = {}
     precision = 53
-    for start, stop in cuts:
-        part = segment(formula, dict(values), start, stop, lambda _lo, _hi: share, share, settings)
+    for (start, stop), share, origin in zip(cuts, shares, origins):
+        if origin is None:
+            part = segment(formula, dict(values), start, stop, lambda _lo, _hi, share=share: share, share, settings,
+                           precision_floor=_bits_to_resolve(ends, start, stop))
+        else:  # next to a singular point c: ∫ f(c + t) dt over [start − c, stop − c]
+            part = segment(shifted(formula, origin), dict(values), start - origin, stop - origin,
+                           lambda _lo, _hi, share=share: share, share, settings,
+                           precision_floor=_bits_to_resolve(ends, start - origin, stop - origin))
+            part = _moved(part, origin)
         low += Fraction(part.low)
         high += Fraction(part.high)
         nodes, panels = nodes + part.nodes, panels + part.panels
@@ -196,6 +206,61 @@ def _assemble(formula: Formula, values: Mapping[str, Fraction], ends: _Ends, cha
     from ._integrate import Segment
     return Segment(fraction_down(low), fraction_up(high), stop, nodes, panels + len(pieces),
                    tuple(mesh) if settings.include_mesh else (), bounds_used, precision)
+
+
+def _origin(ends: _Ends, part: tuple[Any, Any], left: End | None, right: End | None) -> Fraction | None:
+    """The singular point a part of a stretch is integrated from, when that point is not 0 and the part is
+    near it (within a thousandth of the point's size), else None."""
+    start, stop = part
+    for end, other in ((left, stop), (right, start)):
+        point = None if end is None or isinstance(end, int) else ends.exact(end)
+        if point is None or point == 0 or not isinstance(other, Fraction):
+            continue
+        if abs(other - point) <= abs(point) / 1024:
+            return point
+    return None
+
+
+def _moved(part: Any, origin: Fraction) -> Any:
+    """A part integrated in t = x − c, with its mesh moved back to x (ends rounded outward)."""
+    from dataclasses import replace as _replace
+    mesh = tuple(PanelReport(fraction_down(Fraction(r.lower) + origin), fraction_up(Fraction(r.upper) + origin),
+                             r.contribution, r.bound) for r in part.mesh)
+    return _replace(part, mesh=mesh)
+
+
+def _bits_to_resolve(ends: _Ends, start: Any, stop: Any) -> int:
+    """Bits that resolve the stretch's own width next to its distance from 0, with 64 to spare."""
+    low, high = ends.numeric(start), ends.numeric(stop)
+    if low is None or high is None or high[0] <= low[1]:
+        return 0
+    scale = max(abs(low[0]), abs(high[1]), Fraction(1))
+    return 64 + (scale / (high[0] - low[1])).__ceil__().bit_length()
+
+
+def _shares(ends: _Ends, cuts: list[tuple[Any, Any]], total: Fraction) -> list[float]:
+    """The panel stretches' shares of the tolerance: half split evenly, half in proportion to a rough size of
+    ∫|f| on each (|f| at three points times the length). float64's floor on a stretch is proportional to that
+    size, so a stretch holding most of the integral also gets most of the tolerance. Steering only: every
+    stretch still certifies its own share."""
+    sizes = []
+    for start, stop in cuts:
+        low, high = ends.numeric(start), ends.numeric(stop)
+        size = 0.0
+        if low is not None and high is not None:
+            a, b = low[1], high[0]
+            for x in (a, (a + b) / 2, b):
+                try:
+                    value = ends.program.value(ends.ar.exact(x))
+                    size = max(size, max(abs(v) for v in ends.ar.bounds(value)))
+                except ArithmeticFault:
+                    pass
+            size = size * float(b - a) if math.isfinite(size) else 0.0
+        sizes.append(size if math.isfinite(size) else 0.0)
+    whole = sum(sizes)
+    n = len(cuts)
+    return [fraction_down(total * (Fraction(1, 2 * n) + (Fraction(size) / Fraction(whole) / 2 if whole else
+                                                         Fraction(1, 2 * n)))) for size in sizes]
 
 
 def _graded(ends: _Ends, start: Any, stop: Any, u: End, v: End, left: bool, right: bool

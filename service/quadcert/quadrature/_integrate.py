@@ -149,8 +149,11 @@ class Segment:
 
 def segment(formula: Formula, values: dict[str, Fraction], lower: Limit, upper: Limit,
             target: Callable[[float, float], float], tolerance: float, settings: Settings,
-            relative: float | None = None) -> Segment:
-    """Panels over [lower, upper] (either order), compiled engine first; limits are formulas or exact rationals."""
+            relative: float | None = None, precision_floor: int = 0) -> Segment:
+    """Panels over [lower, upper] (either order), compiled engine first; limits are formulas or exact rationals.
+
+    ``precision_floor``: the fewest bits the precise engine may use (a stretch 1e-40 wide next to 1/3 needs
+    its nodes resolved at that scale)."""
     native = settings.arithmetic is None and settings.precision_bits is None and _fast.AVAILABLE
     if native:
         fast = _try_fast(formula, values, lower, upper, tolerance, relative, target, settings.max_nodes,
@@ -159,7 +162,7 @@ def segment(formula: Formula, values: dict[str, Fraction], lower: Limit, upper: 
             outcome, low, high = fast
             return Segment(low, high, outcome.stop_reason, outcome.nodes, outcome.panels,
                            outcome.mesh if settings.include_mesh else (), outcome.bounds_used, 53)
-    prec = settings.precision_bits or choose_precision(tolerance)
+    prec = settings.precision_bits or min(max(choose_precision(tolerance), precision_floor), 4096)
     arithmetic = settings.arithmetic or default_arithmetic()
     attempts = 0
     while True:

@@ -208,6 +208,8 @@ static inline void sum_add(running_sum *acc, double x) {
 
 static inline double sum_value(const running_sum *acc) { return acc->hi + acc->lo; }
 
+#define ROUNDING_SHARE 64.0   /* width below this many times the rounding: the floor is in sight */
+
 static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nodes, double deadline, iv *total_out) {
     iv fa, fb;
     if (node_value(r, a, &fa) || node_value(r, b, &fb)) return DECLINE_VALUE;
@@ -238,13 +240,16 @@ static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nod
                 if (bound <= target_of(tol, rel, total.lo, total.hi) * (1 - 1e-9)) { *total_out = total; return MET; }
                 next_check = width_sum * 0.95;
             }
-            if (rounding_sum > 0.25 * goal) return DECLINE_RESOLUTION;   /* float64 cannot get there */
+            /* float64 cannot get there: its rounding alone takes a quarter of the goal, and it is already a
+               visible share of the width (on a coarse mesh next to a singular end the first panels' sums
+               are huge and so is their rounding, yet refining shrinks both) */
+            if (rounding_sum > 0.25 * goal && width_sum < ROUNDING_SHARE * rounding_sum) return DECLINE_RESOLUTION;
             if (r->heap_size >= checkpoint) {
                 /* doubling the panels must shrink the total: if twice in a row it barely moves while
                    rounding is already a visible share of it, the float64 floor has been reached before
                    the tolerance (far from the floor, wide panels of an oscillating integrand can keep
                    the total flat for a while, and that is no reason to give up) */
-                int near_floor = width_sum < 64 * rounding_sum;
+                int near_floor = width_sum < ROUNDING_SHARE * rounding_sum;
                 stalls = (near_floor && width_sum > 0.9 * width_at_checkpoint) ? stalls + 1 : 0;
                 if (stalls >= 2) return DECLINE_STALLED;
                 width_at_checkpoint = width_sum;
