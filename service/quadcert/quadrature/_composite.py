@@ -230,11 +230,12 @@ def _moved(part: Any, origin: Fraction) -> Any:
 
 
 def _bits_to_resolve(ends: _Ends, start: Any, stop: Any) -> int:
-    """Bits that resolve the stretch's own width next to its distance from 0, with 64 to spare."""
+    """Bits that resolve the stretch's own width next to the size of its ends, with 64 to spare (a stretch
+    [1e-40, 2e-40] needs no more than [1, 2]; one [1/3, 1/3 + 1e-40] needs about 133 more)."""
     low, high = ends.numeric(start), ends.numeric(stop)
     if low is None or high is None or high[0] <= low[1]:
         return 0
-    scale = max(abs(low[0]), abs(high[1]), Fraction(1))
+    scale = max(abs(low[0]), abs(high[1]))
     return 64 + (scale / (high[0] - low[1])).__ceil__().bit_length()
 
 
