@@ -6,6 +6,7 @@ import argparse
 import contextlib
 import signal
 import threading
+import re
 import sys
 import time
 from decimal import Decimal
@@ -397,10 +398,25 @@ def _alarm(signum: int, frame: Any) -> None:
     raise _TimedOut()
 
 
+_OPTION_LIKE = re.compile(r"-(?:-|h$|o$)")
+
+
+def _negative_limits(argv: list[str]) -> list[str]:
+    """Let a negative limit be typed as itself: ``-inf``, ``-pi/2``, ``-1`` are values, not options.
+
+    argparse reads any token that starts with '-' and is not a number as an option; such a token is given a
+    leading space, which the engine ignores (``--tol`` and the other options keep their meaning).
+
+    >>> _negative_limits(["integrate", "exp(x)", "-inf", "0", "--tol", "1e-9"])
+    ['integrate', 'exp(x)', ' -inf', '0', '--tol', '1e-9']
+    """
+    return [f" {a}" if a.startswith("-") and len(a) > 1 and not _OPTION_LIKE.match(a) else a for a in argv]
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     """Run one command. Exit codes are a contract for CI (see EXIT_CODES): every path that cannot give a
     verdict, a traceback included, ends with one line on stderr and exit 2, never 1."""
-    args = build_parser().parse_args(argv)
+    args = build_parser().parse_args(_negative_limits(sys.argv[1:] if argv is None else list(argv)))
     timeout = getattr(args, "timeout", None)
     if timeout is not None:
         if not timeout > 0:

@@ -22,6 +22,7 @@ from ..arithmetic import Interval
 from ..arithmetic._interval import raw_down, raw_up
 from ..errors import ArithmeticFault, NotCertifiable
 from ..formula import Formula
+from ..formula._nodes import decimal_text
 from ._at_infinity import Growth, InTail, TailEnvelope
 from ._near_point import Envelope, NearPoint, Power
 from ._scalars import Unsupported
@@ -43,16 +44,26 @@ class Piece:
     envelope: str                  # the bound used, for people
 
 
-def _power_text(power: Power, side: int, point: Fraction) -> str:
-    t = f"|x − {float(point):.17g}|" if point else "|x|"
+def _distance(variable: str, point: Fraction) -> str:
+    return f"|{variable} − {_point_text(point)}|" if point else f"|{variable}|"
+
+
+def _point_text(point: Fraction) -> str:
+    """The point exactly: 0.3, 1/3, 1e-40."""
+    return decimal_text(point)
+
+
+def _power_text(power: Power, variable: str, point: Fraction, relation: str = "≤") -> str:
+    t = _distance(variable, point)
     logs = f"·log(1/{t})^{power.q}" if power.q else ""
-    return f"|f| ≤ {_high_text(power.k)}·{t}^({power.p}){logs}"
+    constant = _high_text(power.k) if relation == "≤" else _low_text(power.k)
+    return f"|f| {relation} {constant}·{t}^({power.p}){logs}"
 
 
-def _growth_text(growth: Growth, relation: str = "≤") -> str:
-    rate = f"·exp(−{growth.r}·|x|)" if growth.r else ""
+def _growth_text(growth: Growth, variable: str, relation: str = "≤") -> str:
+    rate = f"·exp(−{growth.r}·|{variable}|)" if growth.r else ""
     constant = _high_text(growth.k) if relation == "≤" else _low_text(growth.k)
-    return f"|f| {relation} {constant}·|x|^({growth.p}){rate}"
+    return f"|f| {relation} {constant}·|{variable}|^({growth.p}){rate}"
 
 
 def _high_text(k: Interval) -> str:
@@ -99,43 +110,45 @@ def end_piece(formula: Formula, values: Mapping[str, Fraction], point: Fraction,
             near = NearPoint(formula, values, point, side, delta)
             env = near.envelope(formula.root)
         except (Unsupported, ArithmeticFault, ZeroDivisionError, OverflowError) as why:
-            raise NotCertifiable(f"the integrand is undefined at x = {float(point):.17g} and cannot be bounded next to "
+            raise NotCertifiable(f"the integrand is undefined at {formula.variable} = {_point_text(point)} and cannot be bounded next to "
                                  f"it: {why}", code="singularity_not_bounded", location=location) from None
-        _refuse_divergent_near(near, env, point, location)
+        _refuse_divergent_near(near, env, point, location, formula.variable)
         assert env.upper is not None
         if env.upper.p <= -1:
-            raise NotCertifiable(f"cannot decide whether the integral converges next to x = {float(point):.17g}: the "
-                                 f"best bound found, {_power_text(env.upper, side, point)}, is not integrable and no "
+            raise NotCertifiable(f"cannot decide whether the integral converges next to {formula.variable} = {_point_text(point)}: the "
+                                 f"best bound found, {_power_text(env.upper, formula.variable, point)}, is not integrable and no "
                                  "minorant of fixed sign proves divergence", code="singularity_undecided",
                                  location=location)
         try:
             size = near.s.high(_near_integral(near, env.upper))
         except ArithmeticFault as why:
-            raise NotCertifiable(f"the envelope next to x = {float(point):.17g} cannot be integrated: {why}",
+            raise NotCertifiable(f"the envelope next to {formula.variable} = {_point_text(point)} cannot be integrated: {why}",
                                  code="singularity_not_bounded", location=location) from None
         width = size if env.sign else 2 * size
         if width <= budget:
             low, high = _signed(size, env.sign)
             return Piece("singular-envelope", point, point + side * delta, (low, high),
-                         _power_text(env.upper, side, point))
+                         _power_text(env.upper, formula.variable, point))
         shrink = (budget / width) ** (1 / float(env.upper.p + 1)) / 2 if width else 0.5
         target = delta * Fraction(max(min(shrink, 0.5), 2.0**-900))
         while delta > target and delta > _SMALLEST_PIECE:
             delta /= 2
         if delta <= _SMALLEST_PIECE:
             break
-    raise NotCertifiable(f"the piece next to x = {float(point):.17g} cannot be made small enough for the tolerance",
+    raise NotCertifiable(f"the piece next to {formula.variable} = {_point_text(point)} cannot be made small enough for "
+                         "the tolerance",
                          code="singularity_not_bounded", location=location)
 
 
-def _refuse_divergent_near(near: NearPoint, env: Envelope, point: Fraction, location: tuple[float, float]) -> None:
+def _refuse_divergent_near(near: NearPoint, env: Envelope, point: Fraction, location: tuple[float, float],
+                           variable: str) -> None:
     if env.sign and env.lower is not None:
         low = near.lower_fold(env.lower)
         if low.p <= -1:
             raise NotCertifiable(
-                f"the integral diverges at x = {float(point):.17g}: next to it the integrand keeps the sign "
-                f"{'+' if env.sign > 0 else '−'} and |f| ≥ {_low_text(low.k)}·|x − {float(point):.17g}|^({low.p}), "
-                "which is not integrable", code="divergent_integral", location=location)
+                f"the integral diverges at {variable} = {_point_text(point)}: next to it the integrand keeps the "
+                f"sign {'+' if env.sign > 0 else '−'} and {_power_text(low, variable, point, '≥')}, which is not "
+                "integrable", code="divergent_integral", location=location)
 
 
 def _tail_integral(tail: InTail, growth: Growth) -> object | None:
@@ -169,7 +182,7 @@ def tail_piece(formula: Formula, values: Mapping[str, Fraction], side: int, star
                 continue
             raise NotCertifiable(f"the tail towards {'+' if side > 0 else '−'}∞ cannot be bounded: {why}",
                                  code="tail_not_bounded", location=location) from None
-        _refuse_divergent_tail(env, side, location)
+        _refuse_divergent_tail(env, side, location, formula.variable)
         try:
             size = _tail_integral(tail, env.upper) if env.upper is not None else None
         except ArithmeticFault as why:
@@ -179,7 +192,7 @@ def tail_piece(formula: Formula, values: Mapping[str, Fraction], side: int, star
             if env.upper is not None and env.upper.r == 0 and env.upper.p >= -1 or env.upper is None:
                 raise NotCertifiable(
                     f"cannot decide whether the integral converges towards {'+' if side > 0 else '−'}∞: the best "
-                    f"bound found{', ' + _growth_text(env.upper) if env.upper else ''}, is not integrable, and "
+                    f"bound found{', ' + _growth_text(env.upper, formula.variable) if env.upper else ''}, is not integrable, and "
                     "no minorant of fixed sign proves divergence (an integral that converges only conditionally, "
                     "such as sin(x)/x, is refused)", code="tail_undecided", location=location)
             T *= 2
@@ -189,7 +202,7 @@ def tail_piece(formula: Formula, values: Mapping[str, Fraction], side: int, star
         if width <= budget:
             low, top = _signed(high, env.sign)
             cut = T * side
-            return Piece("tail-envelope", None, cut, (low, top), _growth_text(env.upper))
+            return Piece("tail-envelope", None, cut, (low, top), _growth_text(env.upper, formula.variable))
         assert env.upper is not None
         if env.upper.r == 0:  # power decay: jump straight to about the T that should do
             factor = (width / budget) ** (1 / float(-env.upper.p - 1))
@@ -203,10 +216,10 @@ def tail_piece(formula: Formula, values: Mapping[str, Fraction], side: int, star
                          code="tail_not_bounded", location=location)
 
 
-def _refuse_divergent_tail(env: TailEnvelope, side: int, location: tuple[float, float]) -> None:
+def _refuse_divergent_tail(env: TailEnvelope, side: int, location: tuple[float, float], variable: str) -> None:
     low = env.lower
     if env.sign and low is not None and (low.r < 0 or (low.r == 0 and low.p >= -1)):
         raise NotCertifiable(
             f"the integral diverges towards {'+' if side > 0 else '−'}∞: there the integrand keeps the sign "
-            f"{'+' if env.sign > 0 else '−'} and {_growth_text(low, '≥')}, which is not integrable",
+            f"{'+' if env.sign > 0 else '−'} and {_growth_text(low, variable, '≥')}, which is not integrable",
             code="divergent_integral", location=location)
