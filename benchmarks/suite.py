@@ -4,6 +4,7 @@
     python -m benchmarks.suite --tolerances 1e-8 --json benchmarks/out/suite.json --markdown benchmarks/out/suite.md
     python -m benchmarks.suite --quick                  # three integrands at 1e-6, for a smoke run
     python -m benchmarks.suite --backend mpmath         # the reference backend instead of flint's balls
+    python -m benchmarks.suite --improper --tolerances 1e-8   # singular and infinite integrals (improper_suite)
 
 For each integrand and tolerance it reports our time, nodes, panels and whether the tolerance was certified;
 scipy.integrate.quad's time, evaluations, claimed error and actual error; mpmath.quad's time; python-flint's
@@ -250,6 +251,7 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--quick", action="store_true")
     parser.add_argument("--backend", choices=["flint", "mpmath"], default="flint",
                         help="engine arithmetic: flint (what the service's workers and the CLI use) or mpmath")
+    parser.add_argument("--improper", action="store_true", help="the improper section instead of the main suite")
     parser.add_argument("--json", type=Path)
     parser.add_argument("--markdown", type=Path)
     args = parser.parse_args(argv)
@@ -257,6 +259,15 @@ def main(argv: list[str] | None = None) -> int:
         from quadcert.arithmetic import claim_flint_context
 
         claim_flint_context()  # this benchmark runs on one thread, like an engine worker
+    if args.improper:
+        from . import improper_suite
+
+        rows_improper, summary_improper = improper_suite.run(
+            args.tolerances if args.tolerances != [1e-4, 1e-8, 1e-12] else [1e-6, 1e-8, 1e-10])
+        print(improper_suite.markdown(rows_improper))
+        print()
+        print("summary:", json.dumps(summary_improper, indent=1))
+        return 0
     names = QUICK if args.quick else args.only
     cases = [c for c in SUITE if not names or c.name in names]
     tolerances = [1e-6] if args.quick else args.tolerances

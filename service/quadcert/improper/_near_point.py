@@ -28,7 +28,7 @@ from ..errors import ArithmeticFault
 from ..formula import Binary, Call, Formula, Negate, Node, Variable
 from ._scalars import EPSILON, ExactArithmetic, Scalars, Unsupported
 
-ORDER = 5  # Taylor coefficients used for subexpressions that are regular at the point
+ORDER = 4  # Taylor coefficients used for subexpressions that are regular at the point (zeros up to order 3)
 
 
 @dataclass(frozen=True)
@@ -70,7 +70,7 @@ class NearPoint:
     """
 
     def __init__(self, formula: Formula, values: Mapping[str, Fraction], point: Fraction, side: int,
-                 delta: Fraction) -> None:
+                 delta: Fraction, at_point: dict[Node, object] | None = None) -> None:
         if not 0 < delta <= Fraction(1, 16):
             raise ValueError("the piece must be at most 1/16 long, so that log(1/t) ≥ e on it")
         self.formula, self.values, self.point, self.side, self.delta = formula, dict(values), point, side, delta
@@ -80,6 +80,9 @@ class NearPoint:
         self.log_delta = ar.neg(self.s.log(self.delta_iv))  # L_δ = log(1/δ) ≥ 2
         self.region = ar.hull(self.s.num(point), self.s.num(point + side * delta))
         self._memo: dict[Node, Envelope] = {}
+        # what does not depend on δ (Taylor coefficients at the point, zero proofs) is shared between the
+        # rounds that shrink δ, through a dict the caller keeps
+        self._at_point: dict[Node, object] = {} if at_point is None else at_point
 
     # -- the power algebra -------------------------------------------------------------------------
     def sup(self, d: Fraction, k: Fraction) -> Interval:
@@ -184,9 +187,15 @@ class NearPoint:
         try:
             program = self._program(node, ar)
             remainder = program.taylor(self.region, ORDER)
-            at_point = program.taylor(s.num(self.point), ORDER - 1)
         except ArithmeticFault:
             return None
+        at_point = self._at_point.get(node)
+        if at_point is None:
+            try:
+                at_point = program.taylor(s.num(self.point), ORDER - 1)
+            except ArithmeticFault:
+                return None
+            self._at_point[node] = at_point
         m = min(len(remainder) - 1, len(at_point))
         return self._from_taylor(at_point[:m], remainder[m], m, node)
 
@@ -196,10 +205,14 @@ class NearPoint:
             return True
         if node is None or not (s.low(coefficient) <= 0 <= s.high(coefficient)):
             return False
-        try:
-            exact = self._program(node, ExactArithmetic()).taylor(self.point, j)
-        except (Unsupported, ArithmeticFault, ZeroDivisionError):
-            return False
+        key = ("exact", node)
+        exact = self._at_point.get(key)  # type: ignore[call-overload]
+        if exact is None:
+            try:
+                exact = self._program(node, ExactArithmetic()).taylor(self.point, ORDER - 1)
+            except (Unsupported, ArithmeticFault, ZeroDivisionError):
+                exact = []
+            self._at_point[key] = exact  # type: ignore[index]
         return len(exact) > j and exact[j] == 0
 
     def _from_taylor(self, coefficients: list[Interval], remainder: Interval, m: int,

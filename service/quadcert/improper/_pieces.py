@@ -105,9 +105,10 @@ def end_piece(formula: Formula, values: Mapping[str, Fraction], point: Fraction,
     while delta > room / 4:
         delta /= 2
     location = (float(point), float(point))
+    at_point: dict = {}
     for _ in range(_MAX_ROUNDS):
         try:
-            near = NearPoint(formula, values, point, side, delta)
+            near = NearPoint(formula, values, point, side, delta, at_point)
             env = near.envelope(formula.root)
         except (Unsupported, ArithmeticFault, ZeroDivisionError, OverflowError) as why:
             raise NotCertifiable(f"the integrand is undefined at {formula.variable} = {_point_text(point)} and cannot be bounded next to "

@@ -62,6 +62,9 @@ class _Ends:
         self.formula, self.values = formula, values
         self.ar = MpmathArithmetic(128)
         self.program = Program(formula, self.ar, values)
+        self.rough_ar = MpmathArithmetic(53)  # sizes that only steer the work
+        self.rough = Program(formula, self.rough_ar, values)
+        self._numeric: dict[Formula, tuple[Fraction, Fraction]] = {}
 
     def numeric(self, end: End) -> tuple[Fraction, Fraction] | None:
         """Exact bounds of a finite end; None for an infinite one."""
@@ -69,8 +72,10 @@ class _Ends:
             return None
         if isinstance(end, Fraction):
             return end, end
-        from ._endpoints import enclose_limit
-        return self.ar.bounds_exact(enclose_limit(end, self.ar, dict(self.values), "limit"))
+        if end not in self._numeric:
+            from ._endpoints import enclose_limit
+            self._numeric[end] = self.ar.bounds_exact(enclose_limit(end, self.ar, dict(self.values), "limit"))
+        return self._numeric[end]
 
     def exact(self, end: End) -> Fraction | None:
         if isinstance(end, Fraction):
@@ -241,7 +246,7 @@ def _bits_to_resolve(ends: _Ends, start: Any, stop: Any) -> int:
 
 def _shares(ends: _Ends, cuts: list[tuple[Any, Any]], total: Fraction) -> list[float]:
     """The panel stretches' shares of the tolerance: half split evenly, half in proportion to a rough size of
-    ∫|f| on each (|f| at three points times the length). float64's floor on a stretch is proportional to that
+    ∫|f| on each (|f| at the midpoint times the length). float64's floor on a stretch is proportional to that
     size, so a stretch holding most of the integral also gets most of the tolerance. Steering only: every
     stretch still certifies its own share."""
     sizes = []
@@ -250,13 +255,11 @@ def _shares(ends: _Ends, cuts: list[tuple[Any, Any]], total: Fraction) -> list[f
         size = 0.0
         if low is not None and high is not None:
             a, b = low[1], high[0]
-            for x in (a, (a + b) / 2, b):
-                try:
-                    value = ends.program.value(ends.ar.exact(x))
-                    size = max(size, max(abs(v) for v in ends.ar.bounds(value)))
-                except ArithmeticFault:
-                    pass
-            size = size * float(b - a) if math.isfinite(size) else 0.0
+            try:
+                value = ends.rough.value(ends.rough_ar.exact((a + b) / 2))
+                size = max(abs(v) for v in ends.rough_ar.bounds(value)) * float(b - a)
+            except (ArithmeticFault, OverflowError):
+                pass
         sizes.append(size if math.isfinite(size) else 0.0)
     whole = sum(sizes)
     n = len(cuts)
