@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import math
+
 import httpx
 import pytest
 
@@ -33,6 +35,14 @@ async def test_async_client_calls() -> None:
                                         {"integrand": "log(x)", "lower_limit": -1, "upper_limit": 1}])
             # closed form 2^2/2 for the first item
             assert encloses(mixed[0].enclosure, 2) and mixed[1].code == "undefined_at_point"
+            tail = await client.integrate("exp(-x^2)", -math.inf, "inf", 1e-9, include_mesh=True)
+            assert encloses(tail.enclosure, HP.sqrt(HP.pi))  # A&S 7.1.1: the integral over the line is √π
+            assert tail.mesh[0].lower == -math.inf and tail.mesh[-1].upper == math.inf
+            assert tail.mesh[-1].bound == "tail-envelope" and tail.bounds_used["tail-envelope"] == 2
+            with pytest.raises(ProblemError) as info:
+                await client.integrate("1/x", 1, math.inf)
+            assert info.value.problem["code"] == "divergent_integral"
+            assert info.value.problem["location"] == ["inf", "inf"]
             with pytest.raises(ProblemError) as info:
                 await client.integrate("x +", 0, 1)
             assert info.value.problem["code"] == "unexpected_end"

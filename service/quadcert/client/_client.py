@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import math
+
 from decimal import Decimal, InvalidOperation
 from typing import Any, Mapping
 
@@ -24,7 +26,8 @@ def integral_from(body: Mapping[str, Any]) -> IntegralResult:
         upper_limit=body["upper_limit"], precision_bits=body["precision_bits"],
         compute_seconds=body["compute_seconds"], bounds_used=dict(body.get("bounds_used") or {}),
         applied_tolerance=body.get("applied_tolerance"),
-        mesh=tuple(PanelReport(p["lower"], p["upper"], tuple(p["contribution"]), p["bound"]) for p in mesh)
+        mesh=tuple(PanelReport(float(p["lower"]), float(p["upper"]), tuple(p["contribution"]), p["bound"])
+                   for p in mesh)  # float() reads a tail's "inf"/"-inf" back
         if mesh else None)
 
 
@@ -63,9 +66,18 @@ def _encode(body: Any) -> bytes:
     return simplejson.dumps(body, use_decimal=True, allow_nan=False).encode()
 
 
+def _limit(value: Any) -> Any:
+    """An infinite limit (math.inf, Decimal('-Infinity')) goes out as the text "inf" or "-inf": JSON has no
+    infinity."""
+    if isinstance(value, (float, Decimal)) and not isinstance(value, bool) and value in (math.inf, -math.inf):
+        return "inf" if value > 0 else "-inf"
+    return value
+
+
 def _request(integrand: str, lower_limit: Any, upper_limit: Any, tolerance: Any, options: dict[str, Any]
              ) -> dict[str, Any]:
-    body = {"integrand": integrand, "lower_limit": lower_limit, "upper_limit": upper_limit, "tolerance": tolerance}
+    body = {"integrand": integrand, "lower_limit": _limit(lower_limit), "upper_limit": _limit(upper_limit),
+            "tolerance": tolerance}
     body.update({k: v for k, v in options.items() if v is not None})
     return _exact_numbers(body)
 
