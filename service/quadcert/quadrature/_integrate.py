@@ -154,6 +154,8 @@ def segment(formula: Formula, values: dict[str, Fraction], lower: Limit, upper: 
 
     ``precision_floor``: the fewest bits the precise engine may use (a stretch 1e-40 wide next to 1/3 needs
     its nodes resolved at that scale)."""
+    if _same(lower, upper):  # ∫ from a limit to itself, infinite ones included
+        return Segment(0.0, 0.0, "tolerance_met", 0, 0, (), {}, settings.precision_bits or 53)
     native = settings.arithmetic is None and settings.precision_bits is None and _fast.AVAILABLE
     if native:
         fast = _try_fast(formula, values, lower, upper, tolerance, relative, target, settings.max_nodes,
