@@ -21,7 +21,7 @@ from quadcert.errors import NotCertifiable
 from quadcert.formula import parse
 from quadcert.quadrature import _fast, integrate
 from tests.quadrature import native_probe
-from tests.conftest import HP
+from tests.conftest import HP, encloses
 
 pytestmark = pytest.mark.skipif(not _fast.AVAILABLE, reason="the C engine was not built")
 
@@ -351,3 +351,16 @@ def test_long_oscillating_mesh_stays_in_float64() -> None:
     assert result.precision_bits == 53 and result.tolerance_met
     exact = 15 - HP.sin(3000) / 200
     assert HP.mpf(result.enclosure[0]) <= exact <= HP.mpf(result.enclosure[1])
+
+
+@pytest.mark.parametrize("formula, a, b, exact", [
+    ("x*exp(-x^2)", -5, 5, HP.mpf(0)),                      # odd integrand: 0 (closed form)
+    ("1/(1 + exp(-x))", -20, 20, HP.mpf(20)),               # σ(x) + σ(−x) = 1: half the length (closed form)
+    ("exp(-x^2)", -5, 5, HP.sqrt(HP.pi) * HP.erf(5)),       # A&S 7.1.1, mpmath at 110 digits
+])
+def test_symmetric_intervals_certify_at_1e_12_in_the_compiled_engine(formula, a, b, exact) -> None:
+    """Cut points are floats inside the midpoint's enclosure and an exact 0 stays exact, so panel widths carry
+    no uncertainty from their ends and float64 reaches 1e-12 here without the precise engine."""
+    result = integrate(formula, a, b, 1e-12)
+    assert result.precision_bits == 53 and result.tolerance_met
+    assert encloses(result.enclosure, exact)
