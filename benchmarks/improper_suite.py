@@ -62,14 +62,11 @@ CASES: list[tuple[str, str, str, str, Callable[[Any], Any], Callable[[Any], Any]
 ]
 
 
-def _best(function: Callable[[], Any], repeat: int = 3) -> tuple[float, Any]:
+def _best(function: Callable[[], Any]) -> tuple[float, Any]:
     """Best of three runs, for every integrator alike (caches warm: nodes, compiled formulas)."""
-    best, result = math.inf, None
-    for _ in range(repeat):
-        started = time.perf_counter()
-        result = function()
-        best = min(best, time.perf_counter() - started)
-    return best, result
+    from .suite import _timed
+
+    return _timed(function, 3)
 
 
 def _limit(text: str) -> float:

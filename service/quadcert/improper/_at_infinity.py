@@ -9,15 +9,16 @@ The rules are listed, each with its reason, in ``docs/improper-integrals.md``.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 from fractions import Fraction
 from typing import Mapping
 
 from ..arithmetic import Interval
 from ..derivatives import Program
 from ..errors import ArithmeticFault
-from ..formula import Binary, Call, Formula, Negate, Node, Variable
-from ._near_point import _has_variable, _rational
+from ..formula import Call, Formula, Node, Variable
+from ._near_point import _has_variable
+from ._algebra import Envelope, Rules
 from ._scalars import Scalars, Unsupported
 
 
@@ -30,14 +31,10 @@ class Growth:
     r: Fraction
 
 
-@dataclass(frozen=True)
-class TailEnvelope:
-    upper: Growth | None
-    lower: Growth | None
-    sign: int
+TailEnvelope = Envelope  # the same type; the name says which piece it bounds
 
 
-class InTail:
+class InTail(Rules[Growth]):
     """The envelope rules on one tail; ``envelope(root)`` is the integrand's.
 
     >>> from quadcert.formula import parse
@@ -69,7 +66,7 @@ class InTail:
     def times(self, a: Growth, b: Growth) -> Growth:
         return Growth(self.s.ar.mul(a.k, b.k), a.p + b.p, a.r + b.r)
 
-    def raised(self, a: Growth, n: Fraction) -> Growth:
+    def raised(self, a: Growth, n: Fraction, upper: bool = True) -> Growth:
         return Growth(self.s.power(a.k, n), a.p * n, a.r * n)
 
     def plus(self, a: Growth, b: Growth) -> Growth:
@@ -124,67 +121,29 @@ class InTail:
         if isinstance(node, Variable):
             one = Growth(self.s.ar.one, Fraction(1), Fraction(0))
             return TailEnvelope(one, one, self.side)
-        if isinstance(node, Negate):
-            inner = self.envelope(node.operand)
-            return replace(inner, sign=-inner.sign)
-        if isinstance(node, Binary):
-            if node.op in "+-":
-                return self._sum(node)
-            left, right = self.envelope(node.left), self.envelope(node.right)
-            if node.op == "*":
-                if left.upper is None or right.upper is None:
-                    raise Unsupported("a factor has no bound in the tail")
-                lower = self.times(left.lower, right.lower) if left.lower and right.lower else None
-                return TailEnvelope(self.times(left.upper, right.upper), lower, left.sign * right.sign)
-            if node.op == "/":
-                if right.lower is None or left.upper is None:
-                    raise Unsupported("a denominator is not bounded away from zero in the tail")
-                upper = self.times(left.upper, self.raised(right.lower, Fraction(-1)))
-                lower = None
-                if left.lower is not None and right.upper is not None:
-                    lower = self.times(left.lower, self.raised(right.upper, Fraction(-1)))
-                return TailEnvelope(upper, lower, left.sign * right.sign)
-            if _has_variable(node.right):
-                return self.envelope(Call("exp", (Binary("*", node.right, Call("log", (node.left,))),)))
-            return self.raise_to(left, _rational(node.right, self.values))
-        if isinstance(node, Call):
-            from ._tail_functions import tail_call
-            return tail_call(self, node)
-        raise Unsupported(f"no rule for {type(node).__name__}")
+        return self.rule(node)
 
-    def _sum(self, node: Binary) -> TailEnvelope:
-        left, right = self.envelope(node.left), self.envelope(node.right)
-        sign_right = right.sign if node.op == "+" else -right.sign
-        if left.upper is None or right.upper is None:
-            raise Unsupported("a term of a sum has no bound in the tail")
-        upper = self.plus(left.upper, right.upper)
-        if left.sign and left.sign == sign_right:
-            candidates = [e for e in (left.lower, right.lower) if e is not None]
-            lower = min(candidates, key=lambda e: (e.r, -e.p)) if candidates else None
-            return TailEnvelope(upper, lower, left.sign)
-        for big, small, sign in ((left, right, left.sign), (right, left, sign_right)):
-            if big.lower is None or not sign:
-                continue
-            try:
-                ratio = self.sup(small.upper.p - big.lower.p, small.upper.r - big.lower.r)
-            except Unsupported:
-                continue
-            k = self.s.ar.sub(big.lower.k, self.s.ar.mul(small.upper.k, ratio))
-            if self.s.positive(k):
-                return TailEnvelope(upper, Growth(k, big.lower.p, big.lower.r), sign)
-        return TailEnvelope(upper, None, 0)
+    def call(self, node: Call) -> TailEnvelope:
+        from ._tail_functions import tail_call
 
-    def raise_to(self, base: TailEnvelope, n: Fraction) -> TailEnvelope:
-        if n.denominator != 1 and (base.sign != 1 or (n < 0 and base.lower is None)):
-            raise Unsupported("a non-integer power of a base not proved positive")
-        if n == 0:
-            one = Growth(self.s.ar.one, Fraction(0), Fraction(0))
-            return TailEnvelope(one, one, 1)
-        up, down = (base.upper, base.lower) if n > 0 else (base.lower, base.upper)
-        if up is None:
-            raise Unsupported("the base of a negative power is not bounded away from zero in the tail")
-        lower = self.raised(down, n) if down is not None else None
-        sign = 1 if n.denominator != 1 or n.numerator % 2 == 0 else base.sign
-        return TailEnvelope(self.raised(up, n), lower, sign)
+        return tail_call(self, node)
 
+    # -- what the shared rules ask of this kind of piece ------------------------------------------------
+    def constant(self, k: Interval) -> Growth:
+        return Growth(k, Fraction(0), Fraction(0))
 
+    def ratio(self, small: Growth, big: Growth) -> Interval:
+        return self.sup(small.p - big.p, small.r - big.r)
+
+    def strongest(self, lowers: list[Growth]) -> Growth:
+        return min(lowers, key=lambda e: (e.r, -e.p))  # the slowest decay is the largest far out
+
+    def small_bound(self, upper: Growth | None) -> Interval | None:
+        if upper is not None and (upper.r > 0 or (upper.r == 0 and upper.p <= 0)):
+            return self.bound(upper)
+        return None
+
+    def least(self, lower: Growth | None) -> Interval | None:
+        if lower is None or lower.p < 0 or lower.r > 0:
+            return None
+        return self.infimum(lower)

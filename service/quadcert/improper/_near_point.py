@@ -17,7 +17,7 @@ defined on the open piece. Nothing here samples the integrand.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 from fractions import Fraction
 from math import ceil, floor
 from typing import Mapping
@@ -26,6 +26,7 @@ from ..arithmetic import Interval
 from ..derivatives import Program
 from ..errors import ArithmeticFault
 from ..formula import Binary, Call, Formula, Negate, Node, Variable
+from ._algebra import Envelope, Rules
 from ._scalars import EPSILON, ExactArithmetic, Scalars, Unsupported
 
 ORDER = 4  # Taylor coefficients used for subexpressions that are regular at the point (zeros up to order 3)
@@ -40,13 +41,6 @@ class Power:
     q: int
 
 
-@dataclass(frozen=True)
-class Envelope:
-    upper: Power | None
-    lower: Power | None
-    sign: int
-
-
 def _has_variable(node: Node) -> bool:
     if isinstance(node, Variable):
         return True
@@ -59,7 +53,7 @@ def _has_variable(node: Node) -> bool:
     return False
 
 
-class NearPoint:
+class NearPoint(Rules[Power]):
     """The envelope rules on one piece; ``envelope(root)`` is the integrand's.
 
     >>> from quadcert.formula import parse
@@ -161,7 +155,7 @@ class NearPoint:
             cached = self._regular(node)
             if cached is None or (cached.lower is None and isinstance(node, (Binary, Call, Negate))):
                 try:  # a root or power regular at the point says little there (sqrt(x) at 0): try the rules
-                    ruled = self._rule(node)
+                    ruled = self.rule(node)
                 except Unsupported:
                     if cached is None:
                         raise
@@ -235,80 +229,31 @@ class NearPoint:
         direction = ar.sign(leading) * (self.side if lead % 2 else 1)
         return Envelope(upper, Power(low, Fraction(lead), 0), direction)
 
-    def _rule(self, node: Node) -> Envelope:
-        if isinstance(node, Negate):
-            inner = self.envelope(node.operand)
-            return replace(inner, sign=-inner.sign)
-        if isinstance(node, Binary):
-            if node.op in "+-":
-                return self._sum(node)
-            if node.op == "*":
-                return self._product(self.envelope(node.left), self.envelope(node.right))
-            if node.op == "/":
-                return self._quotient(self.envelope(node.left), self.envelope(node.right))
-            return self._power(node)
-        if isinstance(node, Call):
-            from ._functions import near_call
-            return near_call(self, node)
-        raise Unsupported(f"no rule for {type(node).__name__}")  # Number, Variable, ... are always regular
+    def call(self, node: Call) -> Envelope:
+        from ._functions import near_call
 
-    def _sum(self, node: Binary) -> Envelope:
-        left, right = self.envelope(node.left), self.envelope(node.right)
-        sign_right = right.sign if node.op == "+" else -right.sign
-        if left.upper is None or right.upper is None:
-            raise Unsupported("a term of a sum has no bound")
-        upper = self.plus(left.upper, right.upper)
-        if left.sign and left.sign == sign_right:  # same sign: |f + g| ≥ |f|
-            lower = min((e for e in (left.lower, right.lower) if e is not None), key=lambda e: e.p, default=None)
-            return Envelope(upper, lower, left.sign)
-        for big, small, sign in ((left, right, left.sign), (right, left, sign_right)):
-            if big.lower is None or not sign:
-                continue
-            try:  # |f + g| ≥ |f| − |g| where g is of smaller order
-                ratio = self.sup(small.upper.p - big.lower.p, Fraction(small.upper.q - big.lower.q))
-            except Unsupported:
-                continue
-            k = self.s.ar.sub(big.lower.k, self.s.ar.mul(small.upper.k, ratio))
-            if self.s.positive(k):
-                return Envelope(upper, Power(k, big.lower.p, big.lower.q), sign)
-        return Envelope(upper, None, 0)
+        return near_call(self, node)
 
-    def _product(self, a: Envelope, b: Envelope) -> Envelope:
-        if a.upper is None or b.upper is None:
-            raise Unsupported("a factor has no bound")
-        lower = self.times(a.lower, b.lower) if a.lower is not None and b.lower is not None else None
-        return Envelope(self.times(a.upper, b.upper), lower, a.sign * b.sign)
+    # -- what the shared rules ask of this kind of piece ------------------------------------------------
+    def constant(self, k: Interval) -> Power:
+        return Power(k, Fraction(0), 0)
 
-    def _quotient(self, a: Envelope, b: Envelope) -> Envelope:
-        if b.lower is None:
-            raise Unsupported("a denominator is not bounded away from zero next to the point")
-        if a.upper is None:
-            raise Unsupported("a numerator has no bound")
-        upper = self.times(a.upper, self.raised(b.lower, Fraction(-1), upper=True))
-        lower = None
-        if a.lower is not None and b.upper is not None:
-            lower = self.times(a.lower, self.raised(b.upper, Fraction(-1), upper=False))
-        return Envelope(upper, lower, a.sign * b.sign)
+    def ratio(self, small: Power, big: Power) -> Interval:
+        return self.sup(small.p - big.p, Fraction(small.q - big.q))
 
-    def _power(self, node: Binary) -> Envelope:
-        if _has_variable(node.right):  # g^h = exp(h·log g), defined for g > 0 only
-            return self.envelope(Call("exp", (Binary("*", node.right, Call("log", (node.left,))),)))
-        exponent = _rational(node.right, self.values)
-        return self.raise_to(self.envelope(node.left), exponent)
+    def strongest(self, lowers: list[Power]) -> Power:
+        return min(lowers, key=lambda e: e.p)  # the smallest power of t is the largest next to the point
 
-    def raise_to(self, base: Envelope, r: Fraction) -> Envelope:
-        if r.denominator != 1 and (base.sign != 1 or (r < 0 and base.lower is None)):
-            raise Unsupported("a non-integer power of a base not proved positive")
-        if r == 0:
-            one = Power(self.s.ar.one, Fraction(0), 0)
-            return Envelope(one, one, 1)
-        up, down = (base.upper, base.lower) if r > 0 else (base.lower, base.upper)
-        if up is None:
-            raise Unsupported("the base of a negative power is not bounded away from zero")
-        upper = self.raised(up, r, upper=True)
-        lower = self.raised(down, r, upper=False) if down is not None else None
-        sign = 1 if r.denominator != 1 or r.numerator % 2 == 0 else base.sign
-        return Envelope(upper, lower, sign)
+    def small_bound(self, upper: Power | None) -> Interval | None:
+        if upper is not None and (upper.p > 0 or (upper.p == 0 and upper.q <= 0)):
+            return self.bound(upper)
+        return None
+
+    def least(self, lower: Power | None) -> Interval | None:
+        if lower is None:
+            return None
+        folded = self.lower_fold(lower)
+        return self.infimum(folded) if folded.p <= 0 else None
 
 
 def _rational(node: Node, values: Mapping[str, Fraction]) -> Fraction:

@@ -1,4 +1,5 @@
-"""The envelope rules for function calls in a tail (see docs/improper-integrals.md)."""
+"""The envelope rules for function calls in a tail that are its own: exp, log, and cosh/sinh of a growing
+argument (see docs/improper-integrals.md, section 4; the rules shared with points are in ``_algebra``)."""
 
 from __future__ import annotations
 
@@ -8,7 +9,6 @@ from typing import TYPE_CHECKING
 
 from ..arithmetic import Interval
 from ..formula import Call
-from ._functions import _ODD_BOUNDED, _cap, _small_factors
 from ._scalars import EPSILON, Unsupported
 
 if TYPE_CHECKING:
@@ -16,54 +16,23 @@ if TYPE_CHECKING:
 
 
 def tail_call(tail: "InTail", node: Call) -> "TailEnvelope":
-    from ._at_infinity import Growth, TailEnvelope
 
     name = node.function
     if name in ("min", "max") or len(node.args) != 1:
         raise Unsupported(f"{name} in a tail")
     g = tail.envelope(node.args[0])
-    s, ar = tail.s, tail.s.ar
-    zero = Fraction(0)
-
-    def constant(k: Interval) -> Growth:
-        return Growth(k, zero, zero)
-
-    bound = None
-    if g.upper is not None and (g.upper.r > 0 or (g.upper.r == 0 and g.upper.p <= 0)):
-        bound = tail.bound(g.upper)
-    if name == "sqrt":
-        return tail.raise_to(g, Fraction(1, 2))
-    if name == "abs":
-        return TailEnvelope(g.upper, g.lower, 1)
+    common = tail.common_call(name, g)
+    if common is not None:
+        return common
+    bound = tail.small_bound(g.upper)
     if name == "exp":
         return _exp(tail, g, bound)
-    if name in ("log", "log10"):
-        envelope = _log(tail, g)
-        if name == "log10":
-            inverse = ar.div(ar.one, s.log(s.num(10)))
-            envelope = TailEnvelope(tail.scaled(envelope.upper, inverse),
-                                    tail.scaled(envelope.lower, inverse) if envelope.lower else None, envelope.sign)
-        return envelope
-    if name in _ODD_BOUNDED:
-        if bound is not None:
-            factors = _small_factors(ar, name, bound)
-            if factors is not None:
-                low, high = factors
-                lower = tail.scaled(g.lower, low) if g.lower is not None and s.positive(low) else None
-                return TailEnvelope(tail.scaled(g.upper, high), lower, g.sign)
-        lower = None
-        if name != "sin" and g.lower is not None and g.lower.p >= 0 and g.lower.r <= 0:
-            least = ar.function(name, tail.infimum(g.lower))
-            lower = constant(least) if s.positive(least) else None
-        return TailEnvelope(constant(_cap(ar, name)), lower, 0 if name == "sin" else g.sign)
-    if name == "cos":
-        if bound is not None:
-            least = ar.sub(ar.one, ar.scale(ar.sqr(bound), Fraction(1, 2)))
-            if s.positive(least):
-                return TailEnvelope(constant(ar.one), constant(least), 1)
-        return TailEnvelope(constant(ar.one), None, 0)
+    if name == "log":
+        return _log(tail, g)
+    if name == "log10":
+        return tail.log10_of(_log(tail, g))
     if name in ("sinh", "cosh"):
-        return _hyperbolic(tail, g, bound, name)
+        return _hyperbolic(tail, g, name)
     raise Unsupported(f"{name} in a tail")
 
 
@@ -127,16 +96,12 @@ def _log(tail: "InTail", g: "TailEnvelope") -> "TailEnvelope":
     return TailEnvelope(upper, None, 0)
 
 
-def _hyperbolic(tail: "InTail", g: "TailEnvelope", bound: Interval | None, name: str) -> "TailEnvelope":
+def _hyperbolic(tail: "InTail", g: "TailEnvelope", name: str) -> "TailEnvelope":
+    """cosh and sinh of an unbounded argument (the bounded one is a shared rule)."""
     from ._at_infinity import Growth, TailEnvelope
 
     s, ar = tail.s, tail.s.ar
     zero = Fraction(0)
-    if bound is not None:
-        grow = ar.function("cosh", bound)
-        if name == "cosh":
-            return TailEnvelope(Growth(grow, zero, zero), Growth(ar.one, zero, zero), 1)
-        return TailEnvelope(tail.scaled(g.upper, grow), g.lower, g.sign)
     rate_up = tail.linear_rate(g.upper) if g.upper is not None else None
     if rate_up is None:
         raise Unsupported(f"{name} of an argument growing faster than linearly in the tail")
