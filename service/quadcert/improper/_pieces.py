@@ -31,6 +31,7 @@ _MAX_ROUNDS = 12
 _SMALLEST_PIECE = Fraction(1, 2**3000)
 _FARTHEST_TAIL = Fraction(2**3000)
 _RETRY_TAIL_UNTIL = 2**24
+_MOVES_PER_ENVELOPE = 4
 
 
 @dataclass(frozen=True)
@@ -82,15 +83,18 @@ def _signed(size: Fraction, sign: int) -> tuple[Fraction, Fraction]:
     return -size, size
 
 
-def _near_integral(near: NearPoint, power: Power) -> object:
+def _near_integral(near: NearPoint, power: Power, delta: Fraction) -> object:
+    """∫₀^δ k·t^p·L^q dt for δ ≤ the δ the envelope was derived on (it holds pointwise there, so on less too)."""
     s, ar = near.s, near.s.ar
+    delta_iv = s.num(delta)
+    log_delta = ar.neg(s.log(delta_iv))
     p1 = power.p + 1
     total = ar.zero
     for j in range(power.q + 1):
-        term = ar.div(ar.mul(s.num(Fraction(factorial(power.q), factorial(j))), s.power(near.log_delta, Fraction(j))),
+        term = ar.div(ar.mul(s.num(Fraction(factorial(power.q), factorial(j))), s.power(log_delta, Fraction(j))),
                       s.power(s.num(p1), Fraction(power.q + 1 - j)))
         total = ar.add(total, term)
-    return ar.mul(ar.mul(power.k, s.power(near.delta_iv, p1)), total)
+    return ar.mul(ar.mul(power.k, s.power(delta_iv, p1)), total)
 
 
 def end_piece(formula: Formula, values: Mapping[str, Fraction], point: Fraction, side: int, budget: Fraction,
@@ -105,26 +109,26 @@ def end_piece(formula: Formula, values: Mapping[str, Fraction], point: Fraction,
     while delta > room / 4:
         delta /= 2
     location = (float(point), float(point))
-    at_point: dict = {}
+    try:  # one envelope, on the largest piece: it holds pointwise there, so on every smaller piece too
+        near = NearPoint(formula, values, point, side, delta)
+        env = near.envelope(formula.root)
+    except (Unsupported, ArithmeticFault, ZeroDivisionError, OverflowError) as why:
+        raise NotCertifiable(f"the integrand is undefined at {formula.variable} = {_point_text(point)} and cannot be "
+                             f"bounded next to it: {why}", code="singularity_not_bounded", location=location) from None
+    _refuse_divergent_near(near, env, point, location, formula.variable)
+    assert env.upper is not None
+    if env.upper.p <= -1:
+        raise NotCertifiable(f"cannot decide whether the integral converges next to {formula.variable} = "
+                             f"{_point_text(point)}: the best bound found, "
+                             f"{_power_text(env.upper, formula.variable, point)}, is not integrable and no "
+                             "minorant of fixed sign proves divergence", code="singularity_undecided",
+                             location=location)
     for _ in range(_MAX_ROUNDS):
         try:
-            near = NearPoint(formula, values, point, side, delta, at_point)
-            env = near.envelope(formula.root)
-        except (Unsupported, ArithmeticFault, ZeroDivisionError, OverflowError) as why:
-            raise NotCertifiable(f"the integrand is undefined at {formula.variable} = {_point_text(point)} and cannot be bounded next to "
-                                 f"it: {why}", code="singularity_not_bounded", location=location) from None
-        _refuse_divergent_near(near, env, point, location, formula.variable)
-        assert env.upper is not None
-        if env.upper.p <= -1:
-            raise NotCertifiable(f"cannot decide whether the integral converges next to {formula.variable} = {_point_text(point)}: the "
-                                 f"best bound found, {_power_text(env.upper, formula.variable, point)}, is not integrable and no "
-                                 "minorant of fixed sign proves divergence", code="singularity_undecided",
-                                 location=location)
-        try:
-            size = near.s.high(_near_integral(near, env.upper))
+            size = near.s.high(_near_integral(near, env.upper, delta))
         except ArithmeticFault as why:
-            raise NotCertifiable(f"the envelope next to {formula.variable} = {_point_text(point)} cannot be integrated: {why}",
-                                 code="singularity_not_bounded", location=location) from None
+            raise NotCertifiable(f"the envelope next to {formula.variable} = {_point_text(point)} cannot be "
+                                 f"integrated: {why}", code="singularity_not_bounded", location=location) from None
         width = size if env.sign else 2 * size
         if width <= budget:
             low, high = _signed(size, env.sign)
@@ -136,9 +140,8 @@ def end_piece(formula: Formula, values: Mapping[str, Fraction], point: Fraction,
             delta /= 2
         if delta <= _SMALLEST_PIECE:
             break
-    raise NotCertifiable(f"the piece next to {formula.variable} = {_point_text(point)} cannot be made small enough for "
-                         "the tolerance",
-                         code="singularity_not_bounded", location=location)
+    raise NotCertifiable(f"the piece next to {formula.variable} = {_point_text(point)} cannot be made small enough "
+                         "for the tolerance", code="singularity_not_bounded", location=location)
 
 
 def _refuse_divergent_near(near: NearPoint, env: Envelope, point: Fraction, location: tuple[float, float],
@@ -152,17 +155,18 @@ def _refuse_divergent_near(near: NearPoint, env: Envelope, point: Fraction, loca
                 "integrable", code="divergent_integral", location=location)
 
 
-def _tail_integral(tail: InTail, growth: Growth) -> object | None:
+def _tail_integral(tail: InTail, growth: Growth, T: Fraction) -> object | None:
+    """∫_T^∞ k·y^p·e^(−r·y) dy for T ≥ the T the envelope was derived on (it holds there, so further out too)."""
     s, ar = tail.s, tail.s.ar
-    T = tail.start
+    start = s.num(T)
     if growth.r > 0:
         denominator = growth.r - max(growth.p, Fraction(0)) / T
         if denominator <= 0:
             return None
-        value = ar.mul(growth.k, ar.mul(s.power(tail.start_iv, growth.p), s.exp(s.num(-growth.r * T))))
+        value = ar.mul(growth.k, ar.mul(s.power(start, growth.p), s.exp(s.num(-growth.r * T))))
         return ar.div(value, s.num(denominator))
     if growth.r == 0 and growth.p < -1:
-        return ar.div(ar.mul(growth.k, s.power(tail.start_iv, growth.p + 1)), s.num(-growth.p - 1))
+        return ar.div(ar.mul(growth.k, s.power(start, growth.p + 1)), s.num(-growth.p - 1))
     return None
 
 
@@ -184,33 +188,37 @@ def tail_piece(formula: Formula, values: Mapping[str, Fraction], side: int, star
             raise NotCertifiable(f"the tail towards {'+' if side > 0 else '−'}∞ cannot be bounded: {why}",
                                  code="tail_not_bounded", location=location) from None
         _refuse_divergent_tail(env, side, location, formula.variable)
-        try:
-            size = _tail_integral(tail, env.upper) if env.upper is not None else None
-        except ArithmeticFault as why:
-            raise NotCertifiable(f"the envelope of the tail cannot be integrated: {why}", code="tail_not_bounded",
-                                 location=location) from None
-        if size is None:
-            if env.upper is not None and env.upper.r == 0 and env.upper.p >= -1 or env.upper is None:
-                raise NotCertifiable(
-                    f"cannot decide whether the integral converges towards {'+' if side > 0 else '−'}∞: the best "
-                    f"bound found{', ' + _growth_text(env.upper, formula.variable) if env.upper else ''}, is not integrable, and "
-                    "no minorant of fixed sign proves divergence (an integral that converges only conditionally, "
-                    "such as sin(x)/x, is refused)", code="tail_undecided", location=location)
-            T *= 2
-            continue
-        high = tail.s.high(size)
-        width = high if env.sign else 2 * high
-        if width <= budget:
-            low, top = _signed(high, env.sign)
-            cut = T * side
-            return Piece("tail-envelope", None, cut, (low, top), _growth_text(env.upper, formula.variable))
-        assert env.upper is not None
-        if env.upper.r == 0:  # power decay: jump straight to about the T that should do
-            factor = (width / budget) ** (1 / float(-env.upper.p - 1))
-            grow = max(2, min(int(factor) + 1, 2**200))
-            T *= 1 << (grow - 1).bit_length()
-        else:
-            T *= 2
+        # the envelope holds on [T, ∞), so on every tail further out: move T out with the closed form alone,
+        # and derive a new envelope only when an exponential rate would improve with T (e^(−c·y²) → rate c·T)
+        for _ in range(_MOVES_PER_ENVELOPE):
+            try:
+                size = _tail_integral(tail, env.upper, T) if env.upper is not None else None
+            except ArithmeticFault as why:
+                raise NotCertifiable(f"the envelope of the tail cannot be integrated: {why}", code="tail_not_bounded",
+                                     location=location) from None
+            if size is None:
+                if env.upper is None or (env.upper.r == 0 and env.upper.p >= -1):
+                    raise NotCertifiable(
+                        f"cannot decide whether the integral converges towards {'+' if side > 0 else '−'}∞: the "
+                        f"best bound found{', ' + _growth_text(env.upper, formula.variable) if env.upper else ''}, is "
+                        "not integrable, and no minorant of fixed sign proves divergence (an integral that converges "
+                        "only conditionally, such as sin(x)/x, is refused)", code="tail_undecided", location=location)
+                T *= 2
+                continue
+            high = tail.s.high(size)
+            width = high if env.sign else 2 * high
+            if width <= budget:
+                low, top = _signed(high, env.sign)
+                return Piece("tail-envelope", None, T * side, (low, top), _growth_text(env.upper, formula.variable))
+            assert env.upper is not None
+            if env.upper.r == 0:  # power decay: jump straight to about the T that should do
+                factor = (width / budget) ** (1 / float(-env.upper.p - 1))
+                grow = max(2, min(int(factor) + 1, 2**200))
+                T *= 1 << (grow - 1).bit_length()
+            else:
+                T *= 2
+            if T > _FARTHEST_TAIL:
+                break
         if T > _FARTHEST_TAIL:
             break
     raise NotCertifiable(f"the tail towards {'+' if side > 0 else '−'}∞ decays too slowly for the tolerance",
