@@ -125,8 +125,9 @@ def integrate_pieces(formula: Formula, values: Mapping[str, Fraction], lower: Fo
 
 
 def _after(ends: _Ends, a: End, b: End) -> bool:
+    """True when a lies after b, so the integral runs backwards (a and b are never the same limit here)."""
     if isinstance(a, int) or isinstance(b, int):
-        return (a if isinstance(a, int) else 0) > (b if isinstance(b, int) else 0) or (a == 1) or (b == -1)
+        return a == 1 or b == -1
     (a_lo, a_hi), (b_lo, b_hi) = ends.numeric(a), ends.numeric(b)  # type: ignore[misc]
     if a_hi < b_lo:
         return False
