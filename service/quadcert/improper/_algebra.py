@@ -9,11 +9,13 @@ from __future__ import annotations
 
 from dataclasses import dataclass, replace
 from fractions import Fraction
-from typing import Any, Generic, TypeVar
+from typing import Any, Generic, Mapping, TypeVar
 
 from ..arithmetic import Interval
-from ..formula import Binary, Call, Node
-from ._scalars import Scalars, Unsupported
+from ..derivatives import Program
+from ..errors import ArithmeticFault
+from ..formula import Binary, Call, Formula, Negate, Node, Variable
+from ._scalars import ExactArithmetic, Scalars, Unsupported
 
 Form = TypeVar("Form")
 
@@ -74,8 +76,6 @@ class Rules(Generic[Form]):
 
     # -- shared rules -------------------------------------------------------------------------------------
     def rule(self, node: Node) -> Envelope[Form]:
-        from ..formula import Negate
-
         if isinstance(node, Negate):
             inner = self.envelope(node.operand)
             return replace(inner, sign=-inner.sign)
@@ -130,8 +130,6 @@ class Rules(Generic[Form]):
         return Envelope(upper, lower, a.sign * b.sign)
 
     def power_rule(self, node: Binary) -> Envelope[Form]:
-        from ._near_point import _has_variable, _rational
-
         if _has_variable(node.right):  # g^h = exp(h·log g), defined for g > 0 only
             return self.envelope(Call("exp", (Binary("*", node.right, Call("log", (node.left,))),)))
         return self.raise_to(self.envelope(node.left), _rational(node.right, self.values))  # type: ignore[attr-defined]
@@ -211,3 +209,26 @@ def _small_factors(ar: Any, name: str, bound: Interval) -> tuple[Interval, Inter
         return ar.div(one, ar.add(one, square)), one
     scale = ar.div(ar.exact(Fraction(2)), ar.function("sqrt", ar.constant("pi")))
     return ar.mul(scale, ar.sub(one, ar.scale(square, Fraction(1, 3)))), scale
+
+
+def _has_variable(node: Node) -> bool:
+    if isinstance(node, Variable):
+        return True
+    if isinstance(node, Negate):
+        return _has_variable(node.operand)
+    if isinstance(node, Binary):
+        return _has_variable(node.left) or _has_variable(node.right)
+    if isinstance(node, Call):
+        return any(_has_variable(a) for a in node.args)
+    return False
+
+
+def _rational(node: Node, values: Mapping[str, Fraction]) -> Fraction:
+    """The exact value of a constant exponent (a rational is needed for the power algebra)."""
+    try:
+        value = Program(Formula(node, "_", tuple(values)), ExactArithmetic(), values).value(Fraction(0))  # type: ignore[arg-type]
+    except (Unsupported, ArithmeticFault, ZeroDivisionError):
+        raise Unsupported("an exponent that is not a rational number") from None
+    if abs(value.numerator) > 10**6 or value.denominator > 10**6:
+        raise Unsupported("an exponent with too many digits")
+    return Fraction(value)

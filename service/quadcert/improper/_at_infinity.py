@@ -17,8 +17,7 @@ from ..arithmetic import Interval
 from ..derivatives import Program
 from ..errors import ArithmeticFault
 from ..formula import Call, Formula, Node, Variable
-from ._near_point import _has_variable
-from ._algebra import Envelope, Rules
+from ._algebra import Envelope, Rules, _has_variable
 from ._scalars import Scalars, Unsupported
 
 

@@ -25,8 +25,8 @@ from typing import Mapping
 from ..arithmetic import Interval
 from ..derivatives import Program
 from ..errors import ArithmeticFault
-from ..formula import Binary, Call, Formula, Negate, Node, Variable
-from ._algebra import Envelope, Rules
+from ..formula import Binary, Call, Formula, Negate, Node
+from ._algebra import Envelope, Rules, _has_variable
 from ._scalars import EPSILON, ExactArithmetic, Scalars, Unsupported
 
 ORDER = 4  # Taylor coefficients used for subexpressions that are regular at the point (zeros up to order 3)
@@ -39,18 +39,6 @@ class Power:
     k: Interval
     p: Fraction
     q: int
-
-
-def _has_variable(node: Node) -> bool:
-    if isinstance(node, Variable):
-        return True
-    if isinstance(node, Negate):
-        return _has_variable(node.operand)
-    if isinstance(node, Binary):
-        return _has_variable(node.left) or _has_variable(node.right)
-    if isinstance(node, Call):
-        return any(_has_variable(a) for a in node.args)
-    return False
 
 
 class NearPoint(Rules[Power]):
@@ -254,15 +242,3 @@ class NearPoint(Rules[Power]):
             return None
         folded = self.lower_fold(lower)
         return self.infimum(folded) if folded.p <= 0 else None
-
-
-def _rational(node: Node, values: Mapping[str, Fraction]) -> Fraction:
-    """The exact value of a constant exponent (a rational is needed for the power algebra)."""
-    try:
-        value = Program(Formula(node, "_", tuple(values)), ExactArithmetic(), values).value(Fraction(0))  # type: ignore[arg-type]
-    except (Unsupported, ArithmeticFault, ZeroDivisionError):
-        raise Unsupported("an exponent that is not a rational number") from None
-    if abs(value.numerator) > 10**6 or value.denominator > 10**6:
-        raise Unsupported("an exponent with too many digits")
-    return Fraction(value)
-

@@ -229,10 +229,9 @@ def _origin(ends: _Ends, part: tuple[Any, Any], left: End | None, right: End | N
 
 def _moved(part: Any, origin: Fraction) -> Any:
     """A part integrated in t = x − c, with its mesh moved back to x (ends rounded outward)."""
-    from dataclasses import replace as _replace
     mesh = tuple(PanelReport(fraction_down(Fraction(r.lower) + origin), fraction_up(Fraction(r.upper) + origin),
                              r.contribution, r.bound) for r in part.mesh)
-    return _replace(part, mesh=mesh)
+    return replace(part, mesh=mesh)
 
 
 def _bits_to_resolve(ends: _Ends, start: Any, stop: Any) -> int:
