@@ -35,8 +35,8 @@ class Case:
     upper: str
     tolerance: float
     function: Callable[[Any], Any]
-    splits: list[Any]            # for the reference: the singular point, the limits (mpmath numbers or ±inf)
-    power: float = 0.0           # the exponent α at the singular point (for the reference's substitution)
+    splits: list[Any]  # for the reference: the singular point, the limits (mpmath numbers or ±inf)
+    power: float = 0.0  # the exponent α at the singular point (for the reference's substitution)
 
 
 @dataclass
@@ -105,19 +105,40 @@ def random_case(rng: random.Random) -> Case:
         if rng.random() < 0.5:
             r = rng.randint(2, 30) / 10
             text = f"x^({p})*exp(-{r}*x)*{smooth}"
-            return Case(kind, text, start, "inf", tolerance,
-                        lambda x: x ** MP.mpf(p) * MP.exp(-MP.mpf(r) * x) * g(x), [MP.mpf(start), MP.inf])
+            return Case(
+                kind,
+                text,
+                start,
+                "inf",
+                tolerance,
+                lambda x: x ** MP.mpf(p) * MP.exp(-MP.mpf(r) * x) * g(x),
+                [MP.mpf(start), MP.inf],
+            )
         k = rng.randint(2, 3)
         text = f"x^({p})/(1 + x^2)^{k}*{smooth}"
         if p - 2 * k >= -1.2:
             text, p = f"1/(1 + x^2)^{k}*{smooth}", 0.0
-        return Case(kind, text, start, "inf", tolerance,
-                    lambda x: x ** MP.mpf(p) / (1 + x**2) ** k * g(x), [MP.mpf(start), MP.inf])
+        return Case(
+            kind,
+            text,
+            start,
+            "inf",
+            tolerance,
+            lambda x: x ** MP.mpf(p) / (1 + x**2) ** k * g(x),
+            [MP.mpf(start), MP.inf],
+        )
     r = rng.randint(2, 30) / 10
     mu = rng.randint(-20, 20) / 10
     text = f"exp(-{r}*(x - {mu})^2)*{smooth}"
-    return Case(kind, text, "-inf", "inf", tolerance,
-                lambda x: MP.exp(-MP.mpf(r) * (x - MP.mpf(mu)) ** 2) * g(x), [-MP.inf, MP.mpf(mu), MP.inf])
+    return Case(
+        kind,
+        text,
+        "-inf",
+        "inf",
+        tolerance,
+        lambda x: MP.exp(-MP.mpf(r) * (x - MP.mpf(mu)) ** 2) * g(x),
+        [-MP.inf, MP.mpf(mu), MP.inf],
+    )
 
 
 def _pieces(case: Case, spacing: Any) -> Any:
@@ -159,8 +180,9 @@ def _run(arithmetic: Any) -> Callable[[Case, float], Any]:
     from quadcert import integrate
 
     def run(case: Case, deadline: float) -> Any:
-        return integrate(case.text, case.lower, case.upper, case.tolerance, deadline_seconds=deadline,
-                         arithmetic=arithmetic)
+        return integrate(
+            case.text, case.lower, case.upper, case.tolerance, deadline_seconds=deadline, arithmetic=arithmetic
+        )
 
     return run
 
@@ -180,8 +202,10 @@ def record(tally: Tally, case: Case, outcome: Any, value: Any, radius: Any, seco
     with MP.workdps(60):
         if MP.mpf(low) > value + radius or MP.mpf(high) < value - radius:
             tally.misses += 1
-            tally.findings.append(f"MISS {case.text} on [{case.lower}, {case.upper}] tol {case.tolerance}: "
-                                  f"{outcome.enclosure} excludes {MP.nstr(value, 20)}")
+            tally.findings.append(
+                f"MISS {case.text} on [{case.lower}, {case.upper}] tol {case.tolerance}: "
+                f"{outcome.enclosure} excludes {MP.nstr(value, 20)}"
+            )
             return
     if outcome.tolerance_met:
         tally.certified += 1
@@ -223,8 +247,9 @@ def main(argv: list[str] | None = None) -> int:
                 outcome = ("refused", error.code)
             except Exception as error:  # noqa: BLE001 - a crash is a finding; the run goes on
                 tallies[name].crashes += 1
-                tallies[name].findings.append(f"CRASH {type(error).__name__}: {error} on {case.text} "
-                                              f"[{case.lower}, {case.upper}]")
+                tallies[name].findings.append(
+                    f"CRASH {type(error).__name__}: {error} on {case.text} [{case.lower}, {case.upper}]"
+                )
                 outcome = ("refused", "crash")
             record(tallies[name], case, outcome, value, radius, time.perf_counter() - started)
         done += 1
@@ -232,8 +257,10 @@ def main(argv: list[str] | None = None) -> int:
     print("| path | cases | certified | not met | refused | misses | crashes | unchecked | seconds | slowest |")
     print("| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |")
     for name, t in tallies.items():
-        print(f"| {name} | {t.cases} | {t.certified} | {t.not_met} | {t.refused} | {t.misses} | {t.crashes} | "
-              f"{t.unchecked} | {t.seconds:.0f} | {t.slowest:.2f} |")
+        print(
+            f"| {name} | {t.cases} | {t.certified} | {t.not_met} | {t.refused} | {t.misses} | {t.crashes} | "
+            f"{t.unchecked} | {t.seconds:.0f} | {t.slowest:.2f} |"
+        )
     for name, t in tallies.items():
         if t.refusal_codes:
             print(f"{name} refusals: " + ", ".join(f"{k} {v}" for k, v in sorted(t.refusal_codes.items())))

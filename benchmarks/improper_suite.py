@@ -32,33 +32,103 @@ INF = math.inf
 CASES: list[tuple[str, str, str, str, Callable[[Any], Any], Callable[[Any], Any], Any]] = [
     ("inverse sqrt", "1/sqrt(x)", "0", "1", lambda x: 1 / np.sqrt(x), lambda x: 1 / MP.sqrt(x), MP.mpf(2)),
     ("log", "log(x)", "0", "1", np.log, MP.log, MP.mpf(-1)),
-    ("x^x", "x^x", "0", "1", lambda x: x**x, lambda x: x**x, MP.nsum(lambda n: (-1) ** (n + 1) * n ** (-n), [1, MP.inf])),
-    ("x^-0.3 cos", "x^(-0.3)*cos(x)", "0", "1", lambda x: x**-0.3 * np.cos(x), lambda x: x ** MP.mpf("-0.3") * MP.cos(x),
-     MP.quad(lambda x: x ** MP.mpf("-0.3") * MP.cos(x), [0, 1])),
+    (
+        "x^x",
+        "x^x",
+        "0",
+        "1",
+        lambda x: x**x,
+        lambda x: x**x,
+        MP.nsum(lambda n: (-1) ** (n + 1) * n ** (-n), [1, MP.inf]),
+    ),
+    (
+        "x^-0.3 cos",
+        "x^(-0.3)*cos(x)",
+        "0",
+        "1",
+        lambda x: x**-0.3 * np.cos(x),
+        lambda x: x ** MP.mpf("-0.3") * MP.cos(x),
+        MP.quad(lambda x: x ** MP.mpf("-0.3") * MP.cos(x), [0, 1]),
+    ),
     ("sinc", "sin(x)/x", "0", "1", lambda x: np.sinc(x / np.pi), lambda x: MP.sin(x) / x, MP.si(1)),
-    ("1-cos over x^2", "(1 - cos(x))/x^2", "0", "1", lambda x: (1 - np.cos(x)) / x**2,
-     lambda x: (1 - MP.cos(x)) / x**2, MP.si(1) - 1 + MP.cos(1)),
-    ("arcsine end", "1/sqrt(1 - x^2)", "0", "1", lambda x: 1 / np.sqrt(1 - x**2), lambda x: 1 / MP.sqrt(1 - x**2),
-     MP.pi / 2),
-    ("inside 0.3", "1/sqrt(abs(x - 0.3))", "0", "1", lambda x: 1 / np.sqrt(abs(x - 0.3)),
-     lambda x: 1 / MP.sqrt(abs(x - MP.mpf("0.3"))), 2 * MP.sqrt(MP.mpf("0.3")) + 2 * MP.sqrt(MP.mpf("0.7"))),
-    ("elliptic K(1/2)", "1/sqrt((1 - x^2)*(1 - 0.5*x^2))", "0", "1", lambda x: 1 / np.sqrt((1 - x**2) * (1 - 0.5 * x**2)),
-     lambda x: 1 / MP.sqrt((1 - x**2) * (1 - x**2 / 2)), MP.ellipk(MP.mpf("0.5"))),
-    ("gauss line", "exp(-x^2)", "-inf", "inf", lambda x: np.exp(-x**2), lambda x: MP.exp(-x**2), MP.sqrt(MP.pi)),
+    (
+        "1-cos over x^2",
+        "(1 - cos(x))/x^2",
+        "0",
+        "1",
+        lambda x: (1 - np.cos(x)) / x**2,
+        lambda x: (1 - MP.cos(x)) / x**2,
+        MP.si(1) - 1 + MP.cos(1),
+    ),
+    (
+        "arcsine end",
+        "1/sqrt(1 - x^2)",
+        "0",
+        "1",
+        lambda x: 1 / np.sqrt(1 - x**2),
+        lambda x: 1 / MP.sqrt(1 - x**2),
+        MP.pi / 2,
+    ),
+    (
+        "inside 0.3",
+        "1/sqrt(abs(x - 0.3))",
+        "0",
+        "1",
+        lambda x: 1 / np.sqrt(abs(x - 0.3)),
+        lambda x: 1 / MP.sqrt(abs(x - MP.mpf("0.3"))),
+        2 * MP.sqrt(MP.mpf("0.3")) + 2 * MP.sqrt(MP.mpf("0.7")),
+    ),
+    (
+        "elliptic K(1/2)",
+        "1/sqrt((1 - x^2)*(1 - 0.5*x^2))",
+        "0",
+        "1",
+        lambda x: 1 / np.sqrt((1 - x**2) * (1 - 0.5 * x**2)),
+        lambda x: 1 / MP.sqrt((1 - x**2) * (1 - x**2 / 2)),
+        MP.ellipk(MP.mpf("0.5")),
+    ),
+    ("gauss line", "exp(-x^2)", "-inf", "inf", lambda x: np.exp(-(x**2)), lambda x: MP.exp(-(x**2)), MP.sqrt(MP.pi)),
     ("cauchy half", "1/(1 + x^2)", "0", "inf", lambda x: 1 / (1 + x**2), lambda x: 1 / (1 + x**2), MP.pi / 2),
-    ("normal moment", "x^2*exp(-x^2/4.5)/(1.5*sqrt(2*pi))", "-inf", "inf",
-     lambda x: x**2 * np.exp(-x**2 / 4.5) / (1.5 * np.sqrt(2 * np.pi)),
-     lambda x: x**2 * MP.exp(-x**2 / MP.mpf("4.5")) / (MP.mpf("1.5") * MP.sqrt(2 * MP.pi)), MP.mpf("2.25")),
-    ("normal tail", "exp(-x^2/2)/sqrt(2*pi)", "1.96", "inf", lambda x: np.exp(-x**2 / 2) / np.sqrt(2 * np.pi),
-     lambda x: MP.exp(-x**2 / 2) / MP.sqrt(2 * MP.pi), MP.erfc(MP.mpf("1.96") / MP.sqrt(2)) / 2),
-    ("gamma 1/2", "x^(-0.5)*exp(-x)", "0", "inf", lambda x: x**-0.5 * np.exp(-x), lambda x: x ** MP.mpf(-0.5) * MP.exp(-x),
-     MP.sqrt(MP.pi)),
+    (
+        "normal moment",
+        "x^2*exp(-x^2/4.5)/(1.5*sqrt(2*pi))",
+        "-inf",
+        "inf",
+        lambda x: x**2 * np.exp(-(x**2) / 4.5) / (1.5 * np.sqrt(2 * np.pi)),
+        lambda x: x**2 * MP.exp(-(x**2) / MP.mpf("4.5")) / (MP.mpf("1.5") * MP.sqrt(2 * MP.pi)),
+        MP.mpf("2.25"),
+    ),
+    (
+        "normal tail",
+        "exp(-x^2/2)/sqrt(2*pi)",
+        "1.96",
+        "inf",
+        lambda x: np.exp(-(x**2) / 2) / np.sqrt(2 * np.pi),
+        lambda x: MP.exp(-(x**2) / 2) / MP.sqrt(2 * MP.pi),
+        MP.erfc(MP.mpf("1.96") / MP.sqrt(2)) / 2,
+    ),
+    (
+        "gamma 1/2",
+        "x^(-0.5)*exp(-x)",
+        "0",
+        "inf",
+        lambda x: x**-0.5 * np.exp(-x),
+        lambda x: x ** MP.mpf(-0.5) * MP.exp(-x),
+        MP.sqrt(MP.pi),
+    ),
     ("log over x^2", "log(x)/x^2", "1", "inf", lambda x: np.log(x) / x**2, lambda x: MP.log(x) / x**2, MP.mpf(1)),
     ("sech line", "1/cosh(x)", "-inf", "inf", lambda x: 1 / np.cosh(x), lambda x: MP.sech(x), MP.pi),
     ("exp -sqrt", "exp(-sqrt(x))", "0", "inf", lambda x: np.exp(-np.sqrt(x)), lambda x: MP.exp(-MP.sqrt(x)), MP.mpf(2)),
     ("bose", "x/(exp(x) - 1)", "0", "inf", lambda x: x / np.expm1(x), lambda x: x / MP.expm1(x), MP.pi**2 / 6),
-    ("euler gamma", "exp(-x)*log(x)", "0", "inf", lambda x: np.exp(-x) * np.log(x), lambda x: MP.exp(-x) * MP.log(x),
-     -MP.euler),
+    (
+        "euler gamma",
+        "exp(-x)*log(x)",
+        "0",
+        "inf",
+        lambda x: np.exp(-x) * np.log(x),
+        lambda x: MP.exp(-x) * MP.log(x),
+        -MP.euler,
+    ),
 ]
 
 
@@ -96,7 +166,11 @@ def _flint(formula: str, a: str, b: str, tolerance: float) -> tuple[float, float
             left, right = value(node.left, x, analytic), value(node.right, x, analytic)
             if node.op == "^":
                 return left.pow(right, analytic=analytic)
-            return {"+": left + right, "-": left - right, "*": left * right}.get(node.op) if node.op != "/" else left / right
+            return (
+                {"+": left + right, "-": left - right, "*": left * right}.get(node.op)
+                if node.op != "/"
+                else left / right
+            )
         assert isinstance(node, Call)
         arg = value(node.args[0], x, analytic)
         if node.function in ("sqrt", "log"):
@@ -109,8 +183,11 @@ def _flint(formula: str, a: str, b: str, tolerance: float) -> tuple[float, float
     with flint.ctx.workprec(prec):
         started = time.perf_counter()
         try:
-            ball = flint.acb.integral(lambda x, analytic: value(root, x, analytic), flint.acb(flint.fmpq(*_ratio(a))),
-                                      flint.acb(flint.fmpq(*_ratio(b)))).real
+            ball = flint.acb.integral(
+                lambda x, analytic: value(root, x, analytic),
+                flint.acb(flint.fmpq(*_ratio(a))),
+                flint.acb(flint.fmpq(*_ratio(b))),
+            ).real
         except Exception:  # noqa: BLE001 - no answer from flint is a result of the comparison
             return None
         seconds = time.perf_counter() - started
@@ -120,6 +197,7 @@ def _flint(formula: str, a: str, b: str, tolerance: float) -> tuple[float, float
 
 def _ratio(text: str) -> tuple[int, int]:
     from fractions import Fraction
+
     value = Fraction(text)
     return value.numerator, value.denominator
 
@@ -131,21 +209,35 @@ def run(tolerances: list[float]) -> tuple[list[dict[str, Any]], dict[str, Any]]:
             seconds, ours = _best(lambda: integrate(formula, a, b, tolerance, deadline_seconds=60))
             contains = MP.mpf(ours.enclosure[0]) <= exact <= MP.mpf(ours.enclosure[1])
             with np.errstate(all="ignore"):
-                quad_seconds, (value, claimed) = _best(lambda: scipy.integrate.quad(
-                    numpy_f, _limit(a), _limit(b), epsabs=tolerance, epsrel=0, limit=2000)[:2])
+                quad_seconds, (value, claimed) = _best(
+                    lambda: scipy.integrate.quad(numpy_f, _limit(a), _limit(b), epsabs=tolerance, epsrel=0, limit=2000)[
+                        :2
+                    ]
+                )
             with MP.workdps(max(15, int(-math.log10(tolerance)) + 5)):
                 mp_seconds, _ = _best(lambda: MP.quad(mp_f, [MP.mpf(_limit(a)), MP.mpf(_limit(b))]))
             flint_answer = _flint(formula, a, b, tolerance)
-            rows.append({"name": name, "tolerance": tolerance, "ours_seconds": seconds, "ours_nodes": ours.nodes,
-                         "certified": ours.tolerance_met and contains, "contains": contains,
-                         "quad_seconds": quad_seconds, "quad_claimed": float(claimed),
-                         "quad_actual": float(abs(MP.mpf(value) - exact)), "mpmath_seconds": mp_seconds,
-                         "flint": flint_answer})
+            rows.append(
+                {
+                    "name": name,
+                    "tolerance": tolerance,
+                    "ours_seconds": seconds,
+                    "ours_nodes": ours.nodes,
+                    "certified": ours.tolerance_met and contains,
+                    "contains": contains,
+                    "quad_seconds": quad_seconds,
+                    "quad_claimed": float(claimed),
+                    "quad_actual": float(abs(MP.mpf(value) - exact)),
+                    "mpmath_seconds": mp_seconds,
+                    "flint": flint_answer,
+                }
+            )
     summary = {}
     for tolerance in tolerances:
         subset = [r for r in rows if r["tolerance"] == tolerance]
         summary[f"{tolerance:g}"] = {
-            "cases": len(subset), "certified": sum(r["certified"] for r in subset),
+            "cases": len(subset),
+            "certified": sum(r["certified"] for r in subset),
             "false_certificates": sum(not r["contains"] for r in subset),
             "median_ours_seconds": statistics.median(r["ours_seconds"] for r in subset),
             "median_mpmath_seconds": statistics.median(r["mpmath_seconds"] for r in subset),
@@ -157,12 +249,19 @@ def run(tolerances: list[float]) -> tuple[list[dict[str, Any]], dict[str, Any]]:
 
 
 def markdown(rows: list[dict[str, Any]]) -> str:
-    lines = ["| integrand | tol | ours s | nodes | certified | quad s | quad claimed | quad actual | mpmath s | flint |",
-             "| --- | --- | ---: | ---: | --- | ---: | ---: | ---: | ---: | --- |"]
+    lines = [
+        "| integrand | tol | ours s | nodes | certified | quad s | quad claimed | quad actual | mpmath s | flint |",
+        "| --- | --- | ---: | ---: | --- | ---: | ---: | ---: | ---: | --- |",
+    ]
     for r in rows:
-        flint_text = "–" if r["flint"] is None else (
-            f"{r['flint'][0]:.3g} s, width {r['flint'][1]:.2g}" if math.isfinite(r["flint"][1]) else "no bound")
-        lines.append(f"| {r['name']} | {r['tolerance']:g} | {r['ours_seconds']:.3g} | {r['ours_nodes']} | "
-                     f"{'yes' if r['certified'] else 'NO'} | {r['quad_seconds']:.3g} | {r['quad_claimed']:.2g} | "
-                     f"{r['quad_actual']:.2g} | {r['mpmath_seconds']:.3g} | {flint_text} |")
+        flint_text = (
+            "–"
+            if r["flint"] is None
+            else (f"{r['flint'][0]:.3g} s, width {r['flint'][1]:.2g}" if math.isfinite(r["flint"][1]) else "no bound")
+        )
+        lines.append(
+            f"| {r['name']} | {r['tolerance']:g} | {r['ours_seconds']:.3g} | {r['ours_nodes']} | "
+            f"{'yes' if r['certified'] else 'NO'} | {r['quad_seconds']:.3g} | {r['quad_claimed']:.2g} | "
+            f"{r['quad_actual']:.2g} | {r['mpmath_seconds']:.3g} | {flint_text} |"
+        )
     return "\n".join(lines)

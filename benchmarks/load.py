@@ -30,20 +30,36 @@ from urllib.parse import urlparse
 import httpx
 
 MIXES = {
-    "simple": lambda rng: {"integrand": "exp(-x^2)", "lower_limit": 0,
-                           "upper_limit": f"{rng.randint(1, 10**6) / 10**6 + 0.5:.6f}", "tolerance": 1e-6},
+    "simple": lambda rng: {
+        "integrand": "exp(-x^2)",
+        "lower_limit": 0,
+        "upper_limit": f"{rng.randint(1, 10**6) / 10**6 + 0.5:.6f}",
+        "tolerance": 1e-6,
+    },
     "cached": lambda rng: {"integrand": "exp(-x^2)", "lower_limit": 0, "upper_limit": 1, "tolerance": 1e-6},
-    "heavy": lambda rng: {"integrand": "sin(30*x)*exp(-x)", "lower_limit": 0,
-                          "upper_limit": f"{rng.randint(1, 10**6) / 10**6 + 2:.6f}", "tolerance": 1e-10},
-    "mesh": lambda rng: {"integrand": "sin(200*x)", "lower_limit": 0,
-                         "upper_limit": f"{rng.randint(1, 10**6) / 10**6 + 1:.6f}", "tolerance": 1e-8,
-                         "include_mesh": True},
-    "refused": lambda rng: {"integrand": rng.choice(["sinn(x)", "2x", "1/(x-0.5)", "log(x-2)"]),
-                            "lower_limit": 0, "upper_limit": 1},
+    "heavy": lambda rng: {
+        "integrand": "sin(30*x)*exp(-x)",
+        "lower_limit": 0,
+        "upper_limit": f"{rng.randint(1, 10**6) / 10**6 + 2:.6f}",
+        "tolerance": 1e-10,
+    },
+    "mesh": lambda rng: {
+        "integrand": "sin(200*x)",
+        "lower_limit": 0,
+        "upper_limit": f"{rng.randint(1, 10**6) / 10**6 + 1:.6f}",
+        "tolerance": 1e-8,
+        "include_mesh": True,
+    },
+    "refused": lambda rng: {
+        "integrand": rng.choice(["sinn(x)", "2x", "1/(x-0.5)", "log(x-2)"]),
+        "lower_limit": 0,
+        "upper_limit": 1,
+    },
 }
 #: the soak's mix: mostly simple and cached answers, some heavy work, meshes of a few hundred KB, refusals
-MIXES["mixed"] = lambda rng: MIXES[rng.choices(["simple", "cached", "heavy", "mesh", "refused"],
-                                               weights=[50, 25, 10, 10, 5])[0]](rng)
+MIXES["mixed"] = lambda rng: MIXES[
+    rng.choices(["simple", "cached", "heavy", "mesh", "refused"], weights=[50, 25, 10, 10, 5])[0]
+](rng)
 
 
 @dataclass
@@ -59,12 +75,14 @@ class Report:
         ordered = sorted(self.latencies) or [0.0]
         ok = self.statuses.get("200", 0)
         return {
-            "requests": self.requests, "seconds": round(self.seconds, 3),
+            "requests": self.requests,
+            "seconds": round(self.seconds, 3),
             "throughput_rps": round(self.requests / self.seconds, 1) if self.seconds else 0.0,
             "ok_rps": round(ok / self.seconds, 1) if self.seconds else 0.0,
             "p50_ms": round(1000 * statistics.median(ordered), 2),
             "p99_ms": round(1000 * ordered[min(len(ordered) - 1, int(0.99 * len(ordered)))], 2),
-            "statuses": dict(sorted(self.statuses.items())), "missing_retry_after": self.missing_retry_after,
+            "statuses": dict(sorted(self.statuses.items())),
+            "missing_retry_after": self.missing_retry_after,
             "rss_mb": self.rss_mb,
         }
 
@@ -99,8 +117,16 @@ def tree_rss_mb(pid: int) -> float:
     return total / 1024
 
 
-async def drive(url: str, mix: str, concurrency: int, duration: float, max_requests: int, seed: int = 1,
-                pid: int | None = None, sample_every: float = 0.0) -> Report:
+async def drive(
+    url: str,
+    mix: str,
+    concurrency: int,
+    duration: float,
+    max_requests: int,
+    seed: int = 1,
+    pid: int | None = None,
+    sample_every: float = 0.0,
+) -> Report:
     require_loopback(url)
     report = Report()
     rng = random.Random(seed)
@@ -145,10 +171,18 @@ def free_port() -> int:
 
 def start_server(workers: int, queue_limit: int, deadline: float) -> tuple[subprocess.Popen, str]:
     port = free_port()
-    env = {**os.environ, "QUADCERT_LOG_LEVEL": "WARNING", "QUADCERT_QUEUE_LIMIT": str(queue_limit),
-           "QUADCERT_REQUEST_DEADLINE_SECONDS": str(deadline)}
-    process = subprocess.Popen([sys.executable, "-m", "quadcert.cli", "serve", "--port", str(port), "--workers",
-                                str(workers)], env=env, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+    env = {
+        **os.environ,
+        "QUADCERT_LOG_LEVEL": "WARNING",
+        "QUADCERT_QUEUE_LIMIT": str(queue_limit),
+        "QUADCERT_REQUEST_DEADLINE_SECONDS": str(deadline),
+    }
+    process = subprocess.Popen(
+        [sys.executable, "-m", "quadcert.cli", "serve", "--port", str(port), "--workers", str(workers)],
+        env=env,
+        stdout=subprocess.DEVNULL,
+        stderr=subprocess.DEVNULL,
+    )
     url = f"http://127.0.0.1:{port}"
     for _ in range(600):
         try:
@@ -169,11 +203,15 @@ def stop_server(process: subprocess.Popen) -> None:
 
 
 def table(rows: list[tuple[str, dict[str, Any]]]) -> str:
-    lines = ["| run | requests | seconds | req/s | ok req/s | p50 ms | p99 ms | statuses | 503 without Retry-After |",
-             "| --- | ---: | ---: | ---: | ---: | ---: | ---: | --- | ---: |"]
+    lines = [
+        "| run | requests | seconds | req/s | ok req/s | p50 ms | p99 ms | statuses | 503 without Retry-After |",
+        "| --- | ---: | ---: | ---: | ---: | ---: | ---: | --- | ---: |",
+    ]
     for name, s in rows:
-        lines.append(f"| {name} | {s['requests']} | {s['seconds']} | {s['throughput_rps']} | {s['ok_rps']} | "
-                     f"{s['p50_ms']} | {s['p99_ms']} | {s['statuses']} | {s['missing_retry_after']} |")
+        lines.append(
+            f"| {name} | {s['requests']} | {s['seconds']} | {s['throughput_rps']} | {s['ok_rps']} | "
+            f"{s['p50_ms']} | {s['p99_ms']} | {s['statuses']} | {s['missing_retry_after']} |"
+        )
     return "\n".join(lines)
 
 
@@ -197,8 +235,17 @@ def main(argv: list[str] | None = None) -> int:
     try:
         duration = args.soak or args.duration
         pid = process.pid if process else None
-        report = asyncio.run(drive(url, args.mix, args.concurrency, duration, args.max_requests, pid=pid,
-                                   sample_every=max(1.0, duration / 20) if pid else 0.0))
+        report = asyncio.run(
+            drive(
+                url,
+                args.mix,
+                args.concurrency,
+                duration,
+                args.max_requests,
+                pid=pid,
+                sample_every=max(1.0, duration / 20) if pid else 0.0,
+            )
+        )
     finally:
         if process is not None:
             stop_server(process)

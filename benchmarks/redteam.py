@@ -59,6 +59,7 @@ class Tally:
 
 # -- random formulas, with the same function written for flint ------------------------------------
 
+
 def _factor(rng: random.Random) -> tuple[str, Callable[[Any, bool], Any]]:
     """A factor as our formula text and as a flint function. Functions with branch cuts (sqrt, log) honour
     flint's ``analytic`` flag, without which acb.integral may integrate across a cut and return a wrong ball."""
@@ -85,7 +86,7 @@ def _factor(rng: random.Random) -> tuple[str, Callable[[Any, bool], Any]]:
         return f"log({c} + x^2)", lambda x, analytic: (c + x * x).log(analytic=analytic)
     if kind == 9:
         n = rng.randrange(1, 7)
-        return f"x^{n}", lambda x, _a: x ** n
+        return f"x^{n}", lambda x, _a: x**n
     return f"{c}", lambda x, _a: A(c)
 
 
@@ -112,8 +113,11 @@ def random_case(rng: random.Random) -> Case:
         a = rng.choice([700, 745, 1000])
         lower, upper = str(a), str(a + rng.choice([1, 5, 10]))
         text = rng.choice(["exp(-x)", "exp(x)*exp(-2*x)", "exp(-x)*cos(x)"])
-        body = {"exp(-x)": lambda x, _a: (-x).exp(), "exp(x)*exp(-2*x)": lambda x, _a: x.exp() * (-2 * x).exp(),
-                "exp(-x)*cos(x)": lambda x, _a: (-x).exp() * x.cos()}[text]
+        body = {
+            "exp(-x)": lambda x, _a: (-x).exp(),
+            "exp(x)*exp(-2*x)": lambda x, _a: x.exp() * (-2 * x).exp(),
+            "exp(-x)*cos(x)": lambda x, _a: (-x).exp() * x.cos(),
+        }[text]
         return Case(text, lower, upper, _tolerance(rng), body)
     if shape == 1:  # near overflow
         lower, upper = "700", rng.choice(["705", "709", "709.7"])
@@ -147,8 +151,7 @@ def reference_ball(case: Case) -> Any:
     old = flint.ctx.prec
     flint.ctx.prec = REFERENCE_BITS
     try:
-        a, b = (A(flint.fmpq(*Fraction(t).as_integer_ratio())) for t in (_fraction(case.lower),
-                                                                           _fraction(case.upper)))
+        a, b = (A(flint.fmpq(*Fraction(t).as_integer_ratio())) for t in (_fraction(case.lower), _fraction(case.upper)))
         return A.integral(case.reference, a, b).real
     finally:
         flint.ctx.prec = old
@@ -159,7 +162,7 @@ def _fraction(text: str) -> Fraction:
 
 
 def verdict(enclosure: tuple[float, float], ball: Any) -> str:
-    """"ok", "miss" (disjoint from the reference ball) or "unchecked" (ball not finite)."""
+    """ "ok", "miss" (disjoint from the reference ball) or "unchecked" (ball not finite)."""
     if not ball.is_finite():
         return "unchecked"
     low, high = enclosure
@@ -170,12 +173,15 @@ def verdict(enclosure: tuple[float, float], ball: Any) -> str:
 
 # -- the paths -----------------------------------------------------------------------------------
 
+
 def _library(arithmetic: Any) -> Callable[[Case, float], Any]:
     from quadcert import integrate
 
     def run(case: Case, deadline: float) -> Any:
-        return integrate(case.text, case.lower, case.upper, case.tolerance, deadline_seconds=deadline,
-                         arithmetic=arithmetic)
+        return integrate(
+            case.text, case.lower, case.upper, case.tolerance, deadline_seconds=deadline, arithmetic=arithmetic
+        )
+
     return run
 
 
@@ -190,6 +196,7 @@ def _flint_path() -> Callable[[Case, float], Any]:
             return inner(case, deadline)
         finally:
             release_flint_context()
+
     return run
 
 
@@ -204,8 +211,10 @@ class _Service:
         self.client.__enter__()
 
     def __call__(self, case: Case, deadline: float) -> Any:
-        raw = (f'{{"integrand": {json.dumps(case.text)}, "lower_limit": {json.dumps(case.lower)}, '
-               f'"upper_limit": {json.dumps(case.upper)}, "tolerance": {case.tolerance}}}')
+        raw = (
+            f'{{"integrand": {json.dumps(case.text)}, "lower_limit": {json.dumps(case.lower)}, '
+            f'"upper_limit": {json.dumps(case.upper)}, "tolerance": {case.tolerance}}}'
+        )
         response = self.client.post("/v1/integrals", content=raw, headers={"content-type": "application/json"})
         body = response.json()
         if response.status_code != 200:
@@ -231,8 +240,9 @@ def record(tally: Tally, case: Case, outcome: Any, ball: Any, path: str) -> None
     result = verdict(enclosure, ball)
     if result == "miss":
         tally.misses += 1
-        tally.miss_examples.append(f"{path}: {case.text} on [{case.lower}, {case.upper}] tol {case.tolerance}: "
-                                   f"{enclosure} vs {ball}")
+        tally.miss_examples.append(
+            f"{path}: {case.text} on [{case.lower}, {case.upper}] tol {case.tolerance}: {enclosure} vs {ball}"
+        )
     elif result == "unchecked":
         tally.unchecked += 1
 
@@ -251,7 +261,10 @@ def main(argv: list[str] | None = None) -> int:
 
     rng = random.Random(args.seed)
     paths: dict[str, Callable[[Case, float], Any]] = {
-        "default": _library(None), "mpmath": _library(MpmathArithmetic), "flint": _flint_path()}
+        "default": _library(None),
+        "mpmath": _library(MpmathArithmetic),
+        "flint": _flint_path(),
+    }
     service = None if args.no_service else _Service()
     if service is not None:
         paths["service"] = service
@@ -259,7 +272,7 @@ def main(argv: list[str] | None = None) -> int:
     stop_at = time.monotonic() + args.minutes * 60 if args.minutes else math.inf
     done = 0
     try:
-        while (done < args.cases if args.minutes is None else time.monotonic() < stop_at):
+        while done < args.cases if args.minutes is None else time.monotonic() < stop_at:
             case = random_case(rng)
             try:
                 ball = reference_ball(case)
@@ -273,8 +286,10 @@ def main(argv: list[str] | None = None) -> int:
                     outcome = ("refused", error.code)
                 except Exception as error:  # noqa: BLE001 - a crash is a finding; the run goes on
                     tallies[name].crashes += 1
-                    tallies[name].miss_examples.append(f"{name}: CRASH {type(error).__name__}: {error} on "
-                                                       f"{case.text} [{case.lower}, {case.upper}] tol {case.tolerance}")
+                    tallies[name].miss_examples.append(
+                        f"{name}: CRASH {type(error).__name__}: {error} on "
+                        f"{case.text} [{case.lower}, {case.upper}] tol {case.tolerance}"
+                    )
                     outcome = ("refused", "crash")
                 tallies[name].seconds += time.perf_counter() - started
                 record(tallies[name], case, outcome, ball, name)
@@ -286,8 +301,10 @@ def main(argv: list[str] | None = None) -> int:
     print("| path | cases | certified | not met | refused | misses | crashes | unchecked | seconds |")
     print("| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |")
     for name, t in tallies.items():
-        print(f"| {name} | {t.cases} | {t.certified} | {t.not_met} | {t.refused} | {t.misses} | {t.crashes} | "
-              f"{t.unchecked} | {t.seconds:.0f} |")
+        print(
+            f"| {name} | {t.cases} | {t.certified} | {t.not_met} | {t.refused} | {t.misses} | {t.crashes} | "
+            f"{t.unchecked} | {t.seconds:.0f} |"
+        )
     for name, t in tallies.items():
         if t.refusal_codes:
             print(f"{name} refusals: " + ", ".join(f"{k} {v}" for k, v in sorted(t.refusal_codes.items())))

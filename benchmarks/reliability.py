@@ -24,8 +24,7 @@ import httpx
 
 from tests.e2e.conftest import start_server, stop_server
 
-SLOW = {"integrand": "sin(1000*x)", "lower_limit": 0, "upper_limit": 9000, "tolerance": 1e-9,
-        "max_nodes": 2_000_001}
+SLOW = {"integrand": "sin(1000*x)", "lower_limit": 0, "upper_limit": 9000, "tolerance": 1e-9, "max_nodes": 2_000_001}
 
 
 def _post(url: str, path: str, body: dict, results: dict, key: Any) -> threading.Thread:
@@ -36,6 +35,7 @@ def _post(url: str, path: str, body: dict, results: dict, key: Any) -> threading
             results[key] = (response.status_code, response.json(), time.monotonic() - started)
         except httpx.HTTPError as error:
             results[key] = ("error " + type(error).__name__, None, time.monotonic() - started)
+
     thread = threading.Thread(target=run)
     thread.start()
     return thread
@@ -47,11 +47,16 @@ def shutdown(runs: int, grace: float) -> None:
     for run in range(runs):
         server = start_server(QUADCERT_GRACE_SECONDS=str(grace), QUADCERT_REQUEST_DEADLINE_SECONDS="30")
         results: dict = {}
-        threads = [_post(server.url, "/v1/integrals", {**SLOW, "upper_limit": 9000 + i}, results, i)
-                   for i in range(8)]
-        threads.append(_post(server.url, "/v1/integrals/batch",
-                             {"items": [{"integrand": "x^2", "lower_limit": 0, "upper_limit": 3}] * 3 + [SLOW] * 4},
-                             results, "batch"))
+        threads = [_post(server.url, "/v1/integrals", {**SLOW, "upper_limit": 9000 + i}, results, i) for i in range(8)]
+        threads.append(
+            _post(
+                server.url,
+                "/v1/integrals/batch",
+                {"items": [{"integrand": "x^2", "lower_limit": 0, "upper_limit": 3}] * 3 + [SLOW] * 4},
+                results,
+                "batch",
+            )
+        )
         time.sleep(2)
         started = time.monotonic()
         server.process.send_signal(signal.SIGTERM)
@@ -65,23 +70,33 @@ def shutdown(runs: int, grace: float) -> None:
             else:
                 statuses[f"{status} {body.get('code', '') if isinstance(body, dict) else ''}".strip()] += 1
         print(f"run {run + 1}: exit code {code} after {exits[-1]:.2f} s", flush=True)
-    print(f"SIGTERM with grace {grace} s, {runs} runs: exit after {min(exits):.2f} to {max(exits):.2f} s "
-          f"(median {statistics.median(exits):.2f} s); answers: {dict(sorted(statuses.items()))}")
+    print(
+        f"SIGTERM with grace {grace} s, {runs} runs: exit after {min(exits):.2f} to {max(exits):.2f} s "
+        f"(median {statistics.median(exits):.2f} s); answers: {dict(sorted(statuses.items()))}"
+    )
 
 
 def fairness() -> None:
     """A 500-item batch (40 slow items, 460 quick ones) with single requests sent every 0.5 s meanwhile."""
     server = start_server()
     try:
-        items = [{**SLOW, "max_nodes": 200_001, "upper_limit": 1000 + i} for i in range(40)] + \
-                [{"integrand": "x^2", "lower_limit": 0, "upper_limit": 1001 + i, "tolerance": 1e-9} for i in range(460)]
+        items = [{**SLOW, "max_nodes": 200_001, "upper_limit": 1000 + i} for i in range(40)] + [
+            {"integrand": "x^2", "lower_limit": 0, "upper_limit": 1001 + i, "tolerance": 1e-9} for i in range(460)
+        ]
         results: dict = {}
         batch = _post(server.url, "/v1/integrals/batch", {"items": items}, results, "batch")
         singles, ready = [], Counter()
         time.sleep(0.2)
         for i in range(60):
-            singles.append(_post(server.url, "/v1/integrals",
-                                 {"integrand": "exp(-x^2)", "lower_limit": 0, "upper_limit": 1 + i / 100}, results, i))
+            singles.append(
+                _post(
+                    server.url,
+                    "/v1/integrals",
+                    {"integrand": "exp(-x^2)", "lower_limit": 0, "upper_limit": 1 + i / 100},
+                    results,
+                    i,
+                )
+            )
             try:
                 ready[httpx.get(f"{server.url}/readyz", timeout=10).status_code] += 1
             except httpx.HTTPError:
@@ -96,8 +111,10 @@ def fairness() -> None:
         waits = [results[i][2] for i in range(len(singles))]
         single_statuses = Counter(results[i][0] for i in range(len(singles)))
         print(f"batch: {status} after {seconds:.1f} s (batch deadline 60 s); items: {dict(codes)}")
-        print(f"{len(singles)} single requests meanwhile: statuses {dict(single_statuses)}, wait "
-              f"median {statistics.median(waits):.3f} s, max {max(waits):.3f} s; /readyz answers {dict(ready)}")
+        print(
+            f"{len(singles)} single requests meanwhile: statuses {dict(single_statuses)}, wait "
+            f"median {statistics.median(waits):.3f} s, max {max(waits):.3f} s; /readyz answers {dict(ready)}"
+        )
     finally:
         stop_server(server)
 
@@ -137,9 +154,11 @@ def connections(count: int, hold: float, nofile: int) -> None:
             time.sleep(0.5)
         for connection in held:
             connection.close()
-        print(f"{mode}: {len(held)} connections held {hold:.0f} s with the server at {nofile} open files: "
-              f"/healthz {ok} answered 200, {failed} failed, slowest {slowest * 1000:.0f} ms; "
-              f"server exit {stop_server(server)}")
+        print(
+            f"{mode}: {len(held)} connections held {hold:.0f} s with the server at {nofile} open files: "
+            f"/healthz {ok} answered 200, {failed} failed, slowest {slowest * 1000:.0f} ms; "
+            f"server exit {stop_server(server)}"
+        )
 
 
 def parsing(items: int = 240, chars: int = 4000) -> None:
@@ -169,9 +188,11 @@ def parsing(items: int = 240, chars: int = 4000) -> None:
         batch.join(600)
         status, answer, seconds = results["batch"]
         size = len(httpx.Request("POST", "http://x", json=body).content)
-        print(f"batch of {items} distinct {chars}-character formulas ({size / 1024:.0f} KiB): {status} after "
-              f"{seconds:.1f} s; /healthz probed {len(probes)} times meanwhile, slowest "
-              f"{max(probes) * 1000:.0f} ms, median {statistics.median(probes) * 1000:.1f} ms")
+        print(
+            f"batch of {items} distinct {chars}-character formulas ({size / 1024:.0f} KiB): {status} after "
+            f"{seconds:.1f} s; /healthz probed {len(probes)} times meanwhile, slowest "
+            f"{max(probes) * 1000:.0f} ms, median {statistics.median(probes) * 1000:.1f} ms"
+        )
     finally:
         stop_server(server)
 

@@ -72,52 +72,206 @@ def _sqrt_flint(z, analytic):
 
 SUITE: list[Case] = [
     _case("exp", "smooth", "exp(x)", 0, 2, np.exp, mpmath.exp, lambda z, _: z.exp()),
-    _case("gauss", "smooth", "exp(-x^2)", 0, 1, lambda x: np.exp(-x * x), lambda x: mpmath.exp(-x * x),
-          lambda z, _: (-z * z).exp()),
-    _case("runge", "smooth", "1/(1+25*x^2)", -1, 1, lambda x: 1 / (1 + 25 * x * x), lambda x: 1 / (1 + 25 * x * x),
-          lambda z, _: 1 / (1 + 25 * z * z)),
-    _case("arctan-pi", "smooth", "4/(1+x^2)", 0, 1, lambda x: 4 / (1 + x * x), lambda x: 4 / (1 + x * x),
-          lambda z, _: 4 / (1 + z * z)),
+    _case(
+        "gauss",
+        "smooth",
+        "exp(-x^2)",
+        0,
+        1,
+        lambda x: np.exp(-x * x),
+        lambda x: mpmath.exp(-x * x),
+        lambda z, _: (-z * z).exp(),
+    ),
+    _case(
+        "runge",
+        "smooth",
+        "1/(1+25*x^2)",
+        -1,
+        1,
+        lambda x: 1 / (1 + 25 * x * x),
+        lambda x: 1 / (1 + 25 * x * x),
+        lambda z, _: 1 / (1 + 25 * z * z),
+    ),
+    _case(
+        "arctan-pi",
+        "smooth",
+        "4/(1+x^2)",
+        0,
+        1,
+        lambda x: 4 / (1 + x * x),
+        lambda x: 4 / (1 + x * x),
+        lambda z, _: 4 / (1 + z * z),
+    ),
     _case("log1p", "smooth", "log(1+x)", 0, 1, np.log1p, lambda x: mpmath.log(1 + x), lambda z, _: (1 + z).log()),
-    _case("poly", "smooth", "x^7 - 3*x^3 + x", -1, 2, lambda x: x**7 - 3 * x**3 + x, lambda x: x**7 - 3 * x**3 + x,
-          lambda z, _: z**7 - 3 * z**3 + z),
-    _case("elliptic-K", "smooth", "1/sqrt(1 - 0.5*sin(x)^2)", 0, Fraction(157079632679, 10**11),
-          lambda x: 1 / np.sqrt(1 - 0.5 * np.sin(x) ** 2), lambda x: 1 / mpmath.sqrt(1 - mpmath.mpf(0.5) * mpmath.sin(x) ** 2),
-          lambda z, _: 1 / (1 - A(1) / 2 * z.sin() ** 2).sqrt()),
-    _case("peak-100", "peaked", "1/(1 + 100*(x-0.3)^2)", 0, 1, lambda x: 1 / (1 + 100 * (x - 0.3) ** 2),
-          lambda x: 1 / (1 + 100 * (x - mpmath.mpf("0.3")) ** 2), lambda z, _: 1 / (1 + 100 * (z - A("0.3")) ** 2)),
-    _case("peak-1e4", "peaked", "1/(1e-4 + (x-0.5)^2)", 0, 1, lambda x: 1 / (1e-4 + (x - 0.5) ** 2),
-          lambda x: 1 / (mpmath.mpf("1e-4") + (x - mpmath.mpf("0.5")) ** 2),
-          lambda z, _: 1 / (A("1e-4") + (z - A("0.5")) ** 2)),
-    _case("gauss-narrow", "peaked", "exp(-400*(x-0.7)^2)", 0, 1, lambda x: np.exp(-400 * (x - 0.7) ** 2),
-          lambda x: mpmath.exp(-400 * (x - mpmath.mpf("0.7")) ** 2), lambda z, _: (-400 * (z - A("0.7")) ** 2).exp()),
-    _case("sech-benchmark", "peaked",
-          "1/cosh(10*(x-0.2))^2 + 1/cosh(100*(x-0.4))^4 + 1/cosh(1000*(x-0.6))^6", 0, 1,
-          lambda x: 1 / np.cosh(10 * (x - 0.2)) ** 2 + 1 / np.cosh(100 * (x - 0.4)) ** 4 + 1 / np.cosh(1000 * (x - 0.6)) ** 6,
-          lambda x: mpmath.sech(10 * (x - mpmath.mpf("0.2"))) ** 2 + mpmath.sech(100 * (x - mpmath.mpf("0.4"))) ** 4
-          + mpmath.sech(1000 * (x - mpmath.mpf("0.6"))) ** 6,
-          lambda z, _: _sech(10 * (z - A("0.2"))) ** 2 + _sech(100 * (z - A("0.4"))) ** 4 + _sech(1000 * (z - A("0.6"))) ** 6),
-    _case("sin-10", "oscillatory", "sin(10*x)", 0, 3, lambda x: np.sin(10 * x), lambda x: mpmath.sin(10 * x),
-          lambda z, _: (10 * z).sin()),
-    _case("sin-50-damped", "oscillatory", "sin(50*x)*exp(-x)", 0, 2, lambda x: np.sin(50 * x) * np.exp(-x),
-          lambda x: mpmath.sin(50 * x) * mpmath.exp(-x), lambda z, _: (50 * z).sin() * (-z).exp()),
-    _case("cos-sq-30", "oscillatory", "cos(30*x)^2", 0, 1, lambda x: np.cos(30 * x) ** 2,
-          lambda x: mpmath.cos(30 * x) ** 2, lambda z, _: (30 * z).cos() ** 2),
-    _case("bessel-j0", "oscillatory", "cos(20*sin(x))", 0, 3.141592653589793, lambda x: np.cos(20 * np.sin(x)),
-          lambda x: mpmath.cos(20 * mpmath.sin(x)), lambda z, _: (20 * z.sin()).cos()),
-    _case("abs-kink", "kink", "abs(x - 0.3)", -1, 1, lambda x: np.abs(x - 0.3), lambda x: abs(x - mpmath.mpf("0.3")),
-          lambda z, an: _abs_flint(z - A("0.3"), an)),
-    _case("max-kink", "kink", "max(sin(x), cos(x))", 0, 3, lambda x: np.maximum(np.sin(x), np.cos(x)),
-          lambda x: max(mpmath.sin(x), mpmath.cos(x)), None),
-    _case("abs-sin", "kink", "abs(sin(5*x))", 0, 2, lambda x: np.abs(np.sin(5 * x)), lambda x: abs(mpmath.sin(5 * x)),
-          None),
+    _case(
+        "poly",
+        "smooth",
+        "x^7 - 3*x^3 + x",
+        -1,
+        2,
+        lambda x: x**7 - 3 * x**3 + x,
+        lambda x: x**7 - 3 * x**3 + x,
+        lambda z, _: z**7 - 3 * z**3 + z,
+    ),
+    _case(
+        "elliptic-K",
+        "smooth",
+        "1/sqrt(1 - 0.5*sin(x)^2)",
+        0,
+        Fraction(157079632679, 10**11),
+        lambda x: 1 / np.sqrt(1 - 0.5 * np.sin(x) ** 2),
+        lambda x: 1 / mpmath.sqrt(1 - mpmath.mpf(0.5) * mpmath.sin(x) ** 2),
+        lambda z, _: 1 / (1 - A(1) / 2 * z.sin() ** 2).sqrt(),
+    ),
+    _case(
+        "peak-100",
+        "peaked",
+        "1/(1 + 100*(x-0.3)^2)",
+        0,
+        1,
+        lambda x: 1 / (1 + 100 * (x - 0.3) ** 2),
+        lambda x: 1 / (1 + 100 * (x - mpmath.mpf("0.3")) ** 2),
+        lambda z, _: 1 / (1 + 100 * (z - A("0.3")) ** 2),
+    ),
+    _case(
+        "peak-1e4",
+        "peaked",
+        "1/(1e-4 + (x-0.5)^2)",
+        0,
+        1,
+        lambda x: 1 / (1e-4 + (x - 0.5) ** 2),
+        lambda x: 1 / (mpmath.mpf("1e-4") + (x - mpmath.mpf("0.5")) ** 2),
+        lambda z, _: 1 / (A("1e-4") + (z - A("0.5")) ** 2),
+    ),
+    _case(
+        "gauss-narrow",
+        "peaked",
+        "exp(-400*(x-0.7)^2)",
+        0,
+        1,
+        lambda x: np.exp(-400 * (x - 0.7) ** 2),
+        lambda x: mpmath.exp(-400 * (x - mpmath.mpf("0.7")) ** 2),
+        lambda z, _: (-400 * (z - A("0.7")) ** 2).exp(),
+    ),
+    _case(
+        "sech-benchmark",
+        "peaked",
+        "1/cosh(10*(x-0.2))^2 + 1/cosh(100*(x-0.4))^4 + 1/cosh(1000*(x-0.6))^6",
+        0,
+        1,
+        lambda x: (
+            1 / np.cosh(10 * (x - 0.2)) ** 2 + 1 / np.cosh(100 * (x - 0.4)) ** 4 + 1 / np.cosh(1000 * (x - 0.6)) ** 6
+        ),
+        lambda x: (
+            mpmath.sech(10 * (x - mpmath.mpf("0.2"))) ** 2
+            + mpmath.sech(100 * (x - mpmath.mpf("0.4"))) ** 4
+            + mpmath.sech(1000 * (x - mpmath.mpf("0.6"))) ** 6
+        ),
+        lambda z, _: (
+            _sech(10 * (z - A("0.2"))) ** 2 + _sech(100 * (z - A("0.4"))) ** 4 + _sech(1000 * (z - A("0.6"))) ** 6
+        ),
+    ),
+    _case(
+        "sin-10",
+        "oscillatory",
+        "sin(10*x)",
+        0,
+        3,
+        lambda x: np.sin(10 * x),
+        lambda x: mpmath.sin(10 * x),
+        lambda z, _: (10 * z).sin(),
+    ),
+    _case(
+        "sin-50-damped",
+        "oscillatory",
+        "sin(50*x)*exp(-x)",
+        0,
+        2,
+        lambda x: np.sin(50 * x) * np.exp(-x),
+        lambda x: mpmath.sin(50 * x) * mpmath.exp(-x),
+        lambda z, _: (50 * z).sin() * (-z).exp(),
+    ),
+    _case(
+        "cos-sq-30",
+        "oscillatory",
+        "cos(30*x)^2",
+        0,
+        1,
+        lambda x: np.cos(30 * x) ** 2,
+        lambda x: mpmath.cos(30 * x) ** 2,
+        lambda z, _: (30 * z).cos() ** 2,
+    ),
+    _case(
+        "bessel-j0",
+        "oscillatory",
+        "cos(20*sin(x))",
+        0,
+        3.141592653589793,
+        lambda x: np.cos(20 * np.sin(x)),
+        lambda x: mpmath.cos(20 * mpmath.sin(x)),
+        lambda z, _: (20 * z.sin()).cos(),
+    ),
+    _case(
+        "abs-kink",
+        "kink",
+        "abs(x - 0.3)",
+        -1,
+        1,
+        lambda x: np.abs(x - 0.3),
+        lambda x: abs(x - mpmath.mpf("0.3")),
+        lambda z, an: _abs_flint(z - A("0.3"), an),
+    ),
+    _case(
+        "max-kink",
+        "kink",
+        "max(sin(x), cos(x))",
+        0,
+        3,
+        lambda x: np.maximum(np.sin(x), np.cos(x)),
+        lambda x: max(mpmath.sin(x), mpmath.cos(x)),
+        None,
+    ),
+    _case(
+        "abs-sin",
+        "kink",
+        "abs(sin(5*x))",
+        0,
+        2,
+        lambda x: np.abs(np.sin(5 * x)),
+        lambda x: abs(mpmath.sin(5 * x)),
+        None,
+    ),
     _case("sqrt", "endpoint", "sqrt(x)", 0, 1, np.sqrt, mpmath.sqrt, _sqrt_flint),
-    _case("x^1.5", "endpoint", "x^1.5", 0, 1, lambda x: x**1.5, lambda x: x ** mpmath.mpf(1.5),
-          lambda z, an: _sqrt_flint(z, an) * z),
-    _case("half-disc", "endpoint", "sqrt(1 - x^2)", -1, 1, lambda x: np.sqrt(np.maximum(0, 1 - x * x)),
-          lambda x: mpmath.sqrt(1 - x * x), None),
-    _case("x-log-x", "endpoint", "x*log(x)", 1, 2, lambda x: x * np.log(x), lambda x: x * mpmath.log(x),
-          lambda z, _: z * z.log()),
+    _case(
+        "x^1.5",
+        "endpoint",
+        "x^1.5",
+        0,
+        1,
+        lambda x: x**1.5,
+        lambda x: x ** mpmath.mpf(1.5),
+        lambda z, an: _sqrt_flint(z, an) * z,
+    ),
+    _case(
+        "half-disc",
+        "endpoint",
+        "sqrt(1 - x^2)",
+        -1,
+        1,
+        lambda x: np.sqrt(np.maximum(0, 1 - x * x)),
+        lambda x: mpmath.sqrt(1 - x * x),
+        None,
+    ),
+    _case(
+        "x-log-x",
+        "endpoint",
+        "x*log(x)",
+        1,
+        2,
+        lambda x: x * np.log(x),
+        lambda x: x * mpmath.log(x),
+        lambda z, _: z * z.log(),
+    ),
 ]
 QUICK = ["gauss", "sech-benchmark", "sqrt"]
 
@@ -138,8 +292,11 @@ def _flint_integral(case: Case, prec: int):
     old = flint.ctx.prec
     flint.ctx.prec = prec
     try:
-        return A.integral(case.flint_f, A(flint.fmpq(case.a.numerator, case.a.denominator)),
-                          A(flint.fmpq(case.b.numerator, case.b.denominator))).real
+        return A.integral(
+            case.flint_f,
+            A(flint.fmpq(case.a.numerator, case.a.denominator)),
+            A(flint.fmpq(case.b.numerator, case.b.denominator)),
+        ).real
     finally:
         flint.ctx.prec = old
 
@@ -149,8 +306,11 @@ def exact_value(case: Case) -> mpmath.mpf:
     if ball is not None and ball.is_finite() and ball.rad() < flint.arb("1e-30"):
         return mpmath.mpf(ball.mid().str(40, radius=False))
     with mpmath.workdps(40):  # benchmark-only reference where flint has no analytic form (kinks)
-        cuts = {"max-kink": [0, mpmath.pi / 4, 3], "abs-sin": [0] + [k * mpmath.pi / 5 for k in range(1, 4)] + [2],
-                "half-disc": [-1, 0, 1]}
+        cuts = {
+            "max-kink": [0, mpmath.pi / 4, 3],
+            "abs-sin": [0] + [k * mpmath.pi / 5 for k in range(1, 4)] + [2],
+            "half-disc": [-1, 0, 1],
+        }
         return mpmath.quad(case.mp_f, cuts.get(case.name, [mpmath.mpf(case.a), mpmath.mpf(case.b)]))
 
 
@@ -168,13 +328,14 @@ def simpson_lower_bound(case: Case, tolerance: float, samples: int = 4000) -> in
             return None
         lo, hi = ar.bounds(series[4])
         total += (24 * max(abs(lo), abs(hi))) ** 0.2 * h
-    panels = total ** 1.25 / (2880 * tolerance) ** 0.25
+    panels = total**1.25 / (2880 * tolerance) ** 0.25
     return 2 * max(1, math.ceil(panels)) + 1
 
 
 def run_case(case: Case, tolerance: float, exact: mpmath.mpf) -> dict[str, Any]:
     row: dict[str, Any] = {"name": case.name, "kind": case.kind, "tolerance": tolerance}
     lower, upper = str(case.a), str(case.b)
+
     def ours_once():
         return integrate(case.formula, lower, upper, tolerance, max_nodes=2_000_001, deadline_seconds=120)
 
@@ -183,12 +344,18 @@ def run_case(case: Case, tolerance: float, exact: mpmath.mpf) -> dict[str, Any]:
     if t < 1.0:  # best of 3 like the other integrators; no result is cached between calls, the parsed and
         t = min(t, _timed(ours_once, 2)[0])  # compiled formula are (flint's integrand is built before timing)
     row["ours_first_call_seconds"] = cold
-    row.update(ours_seconds=t, ours_nodes=ours.nodes, ours_panels=ours.panels, ours_certified=ours.tolerance_met,
-               ours_contains_exact=ours.enclosure[0] <= exact <= ours.enclosure[1],
-               ours_error_bound=ours.error_bound)
+    row.update(
+        ours_seconds=t,
+        ours_nodes=ours.nodes,
+        ours_panels=ours.panels,
+        ours_certified=ours.tolerance_met,
+        ours_contains_exact=ours.enclosure[0] <= exact <= ours.enclosure[1],
+        ours_error_bound=ours.error_bound,
+    )
     a, b = float(case.a), float(case.b)
-    t, (value, claimed, info) = _timed(lambda: scipy.integrate.quad(case.numpy_f, a, b, epsabs=tolerance,
-                                                                   epsrel=0, limit=2000, full_output=1)[:3], 3)
+    t, (value, claimed, info) = _timed(
+        lambda: scipy.integrate.quad(case.numpy_f, a, b, epsabs=tolerance, epsrel=0, limit=2000, full_output=1)[:3], 3
+    )
     row.update(quad_seconds=t, quad_evals=info["neval"], quad_claimed=claimed, quad_actual=float(abs(value - exact)))
     with mpmath.workdps(max(15, int(-math.log10(tolerance)) + 5)):
         t, _ = _timed(lambda: mpmath.quad(case.mp_f, [mpmath.mpf(case.a), mpmath.mpf(case.b)]))
@@ -211,19 +378,23 @@ def markdown(rows: list[dict[str, Any]]) -> str:
             return "yes" if value else "NO"
         return format(value, fmt) if isinstance(value, float) else str(value)
 
-    lines = ["| integrand | kind | tol | ours s | nodes | panels | certified | lower-bound nodes | nodes / bound | "
-             "quad s | quad evals | quad claimed | quad actual | mpmath s | flint s | flint width | ours / flint |",
-             "| --- | --- | --- | ---: | ---: | ---: | --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | "
-             "---: | ---: |"]
+    lines = [
+        "| integrand | kind | tol | ours s | nodes | panels | certified | lower-bound nodes | nodes / bound | "
+        "quad s | quad evals | quad claimed | quad actual | mpmath s | flint s | flint width | ours / flint |",
+        "| --- | --- | --- | ---: | ---: | ---: | --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | "
+        "---: | ---: |",
+    ]
     for r in rows:
         bound = r["simpson_lower_bound_nodes"]
         ratio = r["ours_nodes"] / bound if bound else None
         speed = r["ours_seconds"] / r["flint_seconds"] if r.get("flint_seconds") else None
-        lines.append(f"| {r['name']} | {r['kind']} | {r['tolerance']:g} | {f(r['ours_seconds'])} | {r['ours_nodes']} | "
-                     f"{r['ours_panels']} | {f(r['ours_certified'] and r['ours_contains_exact'])} | {f(bound)} | "
-                     f"{f(ratio, '.2f')} | {f(r['quad_seconds'])} | {r['quad_evals']} | {f(r['quad_claimed'])} | "
-                     f"{f(r['quad_actual'])} | {f(r['mpmath_seconds'])} | {f(r['flint_seconds'])} | "
-                     f"{f(r['flint_width'])} | {f(speed, '.1f')} |")
+        lines.append(
+            f"| {r['name']} | {r['kind']} | {r['tolerance']:g} | {f(r['ours_seconds'])} | {r['ours_nodes']} | "
+            f"{r['ours_panels']} | {f(r['ours_certified'] and r['ours_contains_exact'])} | {f(bound)} | "
+            f"{f(ratio, '.2f')} | {f(r['quad_seconds'])} | {r['quad_evals']} | {f(r['quad_claimed'])} | "
+            f"{f(r['quad_actual'])} | {f(r['mpmath_seconds'])} | {f(r['flint_seconds'])} | "
+            f"{f(r['flint_width'])} | {f(speed, '.1f')} |"
+        )
     return "\n".join(lines)
 
 
@@ -234,7 +405,8 @@ def summarize(rows: list[dict[str, Any]]) -> dict[str, Any]:
         speed = [r["ours_seconds"] / r["flint_seconds"] for r in subset if r.get("flint_seconds")]
         nodes = [r["ours_nodes"] / r["simpson_lower_bound_nodes"] for r in subset if r["simpson_lower_bound_nodes"]]
         by_tol[f"{tol:g}"] = {
-            "cases": len(subset), "certified": sum(r["ours_certified"] for r in subset),
+            "cases": len(subset),
+            "certified": sum(r["ours_certified"] for r in subset),
             "false_certificates": sum(r["ours_certified"] and not r["ours_contains_exact"] for r in subset),
             "median_ours_seconds": statistics.median(r["ours_seconds"] for r in subset),
             "median_ours_over_flint": statistics.median(speed) if speed else None,
@@ -249,8 +421,12 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--tolerances", type=float, nargs="+", default=[1e-4, 1e-8, 1e-12])
     parser.add_argument("--only", nargs="*", help="integrand names")
     parser.add_argument("--quick", action="store_true")
-    parser.add_argument("--backend", choices=["flint", "mpmath"], default="flint",
-                        help="engine arithmetic: flint (what the service's workers and the CLI use) or mpmath")
+    parser.add_argument(
+        "--backend",
+        choices=["flint", "mpmath"],
+        default="flint",
+        help="engine arithmetic: flint (what the service's workers and the CLI use) or mpmath",
+    )
     parser.add_argument("--improper", action="store_true", help="the improper section instead of the main suite")
     parser.add_argument("--json", type=Path)
     parser.add_argument("--markdown", type=Path)
@@ -263,7 +439,8 @@ def main(argv: list[str] | None = None) -> int:
         from . import improper_suite
 
         rows_improper, summary_improper = improper_suite.run(
-            args.tolerances if args.tolerances != [1e-4, 1e-8, 1e-12] else [1e-6, 1e-8, 1e-10])
+            args.tolerances if args.tolerances != [1e-4, 1e-8, 1e-12] else [1e-6, 1e-8, 1e-10]
+        )
         print(improper_suite.markdown(rows_improper))
         print()
         print("summary:", json.dumps(summary_improper, indent=1))
@@ -276,8 +453,10 @@ def main(argv: list[str] | None = None) -> int:
         exact = exact_value(case)
         for tolerance in tolerances:
             rows.append(run_case(case, tolerance, exact))
-            print(f"{case.name} {tolerance:g}: {rows[-1]['ours_seconds']:.3f}s {rows[-1]['ours_nodes']} nodes",
-                  file=sys.stderr)
+            print(
+                f"{case.name} {tolerance:g}: {rows[-1]['ours_seconds']:.3f}s {rows[-1]['ours_nodes']} nodes",
+                file=sys.stderr,
+            )
     table = markdown(rows)
     summary = summarize(rows)
     print(table)

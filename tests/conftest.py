@@ -26,4 +26,4 @@ def encloses(enclosure: tuple[float, float], reference: object) -> bool:
 
 def fraction_of(value: object) -> Fraction:
     man, exp = HP.mpf(value).man_exp
-    return Fraction(man) * Fraction(2) ** exp if exp >= 0 else Fraction(man, 2 ** -exp)
+    return Fraction(man) * Fraction(2) ** exp if exp >= 0 else Fraction(man, 2**-exp)

@@ -17,8 +17,11 @@ INSTANCES = [
     errors.Unbounded("division by [0, 0]", certain=False),
     errors.MagnitudeExceeded("too large"),
     errors.NotCertifiable("cannot bound near x = 0", code="unbounded_near", location=(-1e-9, 1e-9)),
-    errors.ArithmeticFault("no bound", certain=False), errors.ServiceError("could not run"),
-    errors.Saturated("busy"), errors.DeadlineExceeded("late"), errors.WorkerLost("gone"),
+    errors.ArithmeticFault("no bound", certain=False),
+    errors.ServiceError("could not run"),
+    errors.Saturated("busy"),
+    errors.DeadlineExceeded("late"),
+    errors.WorkerLost("gone"),
     errors.ShuttingDown("draining"),
     errors.ProblemError({"status": 503, "code": "saturated", "detail": "busy", "column": None}, retry_after=2.0),
 ]

@@ -38,9 +38,21 @@ def exact(text: str) -> Fraction:
 def result_of(a: float, b: float) -> IntegralResult:
     low, high = sorted((a, b))
     value, bound = error_bound(low, high)
-    return IntegralResult(value=value, enclosure=(low, high), error_bound=bound, tolerance=1e-8,
-                          tolerance_met=True, stop_reason="tolerance_met", nodes=5, panels=2, integrand="x",
-                          lower_limit="0", upper_limit="1", precision_bits=53, compute_seconds=0.0)
+    return IntegralResult(
+        value=value,
+        enclosure=(low, high),
+        error_bound=bound,
+        tolerance=1e-8,
+        tolerance_met=True,
+        stop_reason="tolerance_met",
+        nodes=5,
+        panels=2,
+        integrand="x",
+        lower_limit="0",
+        upper_limit="1",
+        precision_bits=53,
+        compute_seconds=0.0,
+    )
 
 
 def assert_outward(low_text: str, high_text: str, bound_text: str | None, result: IntegralResult) -> None:
@@ -125,8 +137,13 @@ def test_mesh_and_plan_answers_round_outward() -> None:
     from quadcert.api._jobs import run_integral, run_plan
     from quadcert.quadrature import integrate, plan
 
-    request = {"integrand": "sin(3*x)*exp(x/3)", "lower_limit": "0.1", "upper_limit": 2, "tolerance": 1e-6,
-               "include_mesh": True}
+    request = {
+        "integrand": "sin(3*x)*exp(x/3)",
+        "lower_limit": "0.1",
+        "upper_limit": 2,
+        "tolerance": 1e-6,
+        "include_mesh": True,
+    }
     sent = json.loads(dumps(run_integral(request)), parse_float=Decimal)
     engine = integrate(**request)
     assert len(sent["mesh"]) == len(engine.mesh)

@@ -19,8 +19,13 @@ from .results import CheckResult, IntegralResult, PanelReport, Plan, RulePlan
 
 #: the engine loads on first use, so that importing the client (or this package for its types) does not
 #: import mpmath, python-flint or the compiled engine
-_LAZY = {"Formula": "formula", "parse": "formula", "check": "quadrature", "integrate": "quadrature",
-         "plan": "quadrature"}
+_LAZY = {
+    "Formula": "formula",
+    "parse": "formula",
+    "check": "quadrature",
+    "integrate": "quadrature",
+    "plan": "quadrature",
+}
 
 
 def __getattr__(name: str) -> Any:
@@ -32,6 +37,23 @@ def __getattr__(name: str) -> Any:
         return value
     raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
-__all__ = ["ENGINE_VERSION", "ArithmeticFault", "CheckResult", "Formula", "FormulaError", "IntegralResult", "InvalidInput",
-           "NotCertifiable", "PanelReport", "Plan", "QuadcertError", "RulePlan", "__version__", "check", "integrate",
-           "parse", "plan"]
+
+__all__ = [
+    "ENGINE_VERSION",
+    "ArithmeticFault",
+    "CheckResult",
+    "Formula",
+    "FormulaError",
+    "IntegralResult",
+    "InvalidInput",
+    "NotCertifiable",
+    "PanelReport",
+    "Plan",
+    "QuadcertError",
+    "RulePlan",
+    "__version__",
+    "check",
+    "integrate",
+    "parse",
+    "plan",
+]

@@ -74,8 +74,9 @@ class InvalidInput(QuadcertError, ValueError):
 
     code = "invalid_input"
 
-    def __init__(self, message: str, *, code: str = "invalid_input", field: str | None = None,
-                 column: int | None = None) -> None:
+    def __init__(
+        self, message: str, *, code: str = "invalid_input", field: str | None = None, column: int | None = None
+    ) -> None:
         super().__init__(message, code=code)
         self.field = field
         self.column = column
@@ -116,8 +117,7 @@ class NotCertifiable(QuadcertError):
 
     code = "not_certifiable"
 
-    def __init__(self, message: str, *, code: str,
-                 location: tuple[float, float] | None = None) -> None:
+    def __init__(self, message: str, *, code: str, location: tuple[float, float] | None = None) -> None:
         super().__init__(message, code=code)
         self.location = location
 
@@ -157,8 +157,6 @@ class ProblemError(QuadcertError):
         detail = str(problem.get("detail", ""))
         super().__init__(f"{detail} (HTTP {status})" if status else detail, code=str(problem.get("code", "problem")))
         self.problem = problem
-        self.status = int(status or 0)   # 0: no HTTP answer at all (the service could not be reached)
+        self.status = int(status or 0)  # 0: no HTTP answer at all (the service could not be reached)
         self.column = problem.get("column")
-        self.retry_after = retry_after   # seconds, from a 503's Retry-After
-
-
+        self.retry_after = retry_after  # seconds, from a 503's Retry-After

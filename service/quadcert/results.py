@@ -24,10 +24,10 @@ _UP = Context(prec=17, rounding=ROUND_CEILING)
 
 @dataclass(frozen=True)
 class PanelReport:
-    lower: float                      # panel start, rounded down
-    upper: float                      # panel end, rounded up
+    lower: float  # panel start, rounded down
+    upper: float  # panel end, rounded up
     contribution: tuple[float, float]  # enclosure of the integral over the panel
-    bound: str                        # which error bound certified it
+    bound: str  # which error bound certified it
 
 
 @dataclass(frozen=True)
@@ -55,16 +55,16 @@ class IntegralResult:
     mesh: tuple[PanelReport, ...] | None = field(default=None, repr=False)
     bounds_used: dict[str, int] = field(default_factory=dict)
     applied_tolerance: float | None = None  # the absolute bound the error bound was held to: the tolerance,
-                                            # or relative_tolerance × |integral| where that is larger
+    # or relative_tolerance × |integral| where that is larger
 
 
 @dataclass(frozen=True)
 class RulePlan:
-    rule: str                  # "simpson" or "trapezoid"
-    intervals: int             # panels for Simpson (each with a midpoint), intervals for trapezoid
+    rule: str  # "simpson" or "trapezoid"
+    intervals: int  # panels for Simpson (each with a midpoint), intervals for trapezoid
     nodes: int
-    spacing: float             # node spacing h, rounded down
-    derivative_order: int      # 4 or 2
+    spacing: float  # node spacing h, rounded down
+    derivative_order: int  # 4 or 2
     derivative_bound: float | None  # rigorous upper bound of max|f^(k)| on [a, b]
     error_bound: float | None  # the textbook bound achieved with this many intervals
     available: bool
@@ -91,9 +91,9 @@ class CheckResult:
     ``undecided``: the budget or deadline ran out before either could be proven."""
 
     verdict: Verdict
-    claimed_value: Any                # the caller's number, unchanged (a JSON number arrives as its exact Decimal)
-    tolerance: float                  # applied: the largest float64 not above the tolerance given
-    distance: tuple[float, float]   # certified lower and upper bounds of |claimed − exact|
+    claimed_value: Any  # the caller's number, unchanged (a JSON number arrives as its exact Decimal)
+    tolerance: float  # applied: the largest float64 not above the tolerance given
+    distance: tuple[float, float]  # certified lower and upper bounds of |claimed − exact|
     integral: IntegralResult
 
 
@@ -143,6 +143,7 @@ def bound_text(value: float, up: bool) -> str:
 
 # -- the one JSON shape of a result, shared by the HTTP service and the CLI ------------------------------
 
+
 def integral_body(result: IntegralResult | dict[str, Any], request: dict[str, Any]) -> dict[str, Any]:
     """The JSON body of an integral result: bounds as outward decimals, typed numbers echoed as sent.
 
@@ -153,22 +154,34 @@ def integral_body(result: IntegralResult | dict[str, Any], request: dict[str, An
     low, high = data["enclosure"]
     mesh = data.get("mesh")
     return {
-        "value": data["value"], "enclosure": [bound_decimal(low, up=False), bound_decimal(high, up=True)],
+        "value": data["value"],
+        "enclosure": [bound_decimal(low, up=False), bound_decimal(high, up=True)],
         "error_bound": bound_decimal(data["error_bound"], up=True),
-        "tolerance": request.get("tolerance", data["tolerance"]), "applied_tolerance": data.get("applied_tolerance"),
-        "tolerance_met": data["tolerance_met"], "stop_reason": data["stop_reason"], "nodes": data["nodes"],
-        "panels": data["panels"], "integrand": data["integrand"], "variable": request.get("variable", "x"),
-        "lower_limit": data["lower_limit"], "upper_limit": data["upper_limit"],
-        "precision_bits": data["precision_bits"], "compute_seconds": data["compute_seconds"],
-        "engine_version": ENGINE_VERSION, "bounds_used": data["bounds_used"],
+        "tolerance": request.get("tolerance", data["tolerance"]),
+        "applied_tolerance": data.get("applied_tolerance"),
+        "tolerance_met": data["tolerance_met"],
+        "stop_reason": data["stop_reason"],
+        "nodes": data["nodes"],
+        "panels": data["panels"],
+        "integrand": data["integrand"],
+        "variable": request.get("variable", "x"),
+        "lower_limit": data["lower_limit"],
+        "upper_limit": data["upper_limit"],
+        "precision_bits": data["precision_bits"],
+        "compute_seconds": data["compute_seconds"],
+        "engine_version": ENGINE_VERSION,
+        "bounds_used": data["bounds_used"],
         "mesh": [_panel(p) for p in mesh] if mesh else None,
     }
 
 
 def _panel(panel: dict[str, Any]) -> dict[str, Any]:
-    return {"lower": _outward(panel["lower"], up=False), "upper": _outward(panel["upper"], up=True),
-            "contribution": [_outward(panel["contribution"][0], up=False),
-                             _outward(panel["contribution"][1], up=True)], "bound": panel["bound"]}
+    return {
+        "lower": _outward(panel["lower"], up=False),
+        "upper": _outward(panel["upper"], up=True),
+        "contribution": [_outward(panel["contribution"][0], up=False), _outward(panel["contribution"][1], up=True)],
+        "bound": panel["bound"],
+    }
 
 
 def _outward(value: Any, up: bool) -> Any:
@@ -183,10 +196,15 @@ def check_body(result: CheckResult | dict[str, Any], request: dict[str, Any]) ->
     data = asdict(result) if isinstance(result, CheckResult) else result
     integral = integral_body(data["integral"], request)
     near, far = data["distance"]
-    return {"verdict": data["verdict"], "claimed_value": request.get("claimed_value", data["claimed_value"]),
-            "tolerance": request.get("tolerance", data["tolerance"]),
-            "distance": [_outward(near, up=False), _outward(far, up=True)], "enclosure": integral["enclosure"],
-            "integral": integral, "engine_version": ENGINE_VERSION}
+    return {
+        "verdict": data["verdict"],
+        "claimed_value": request.get("claimed_value", data["claimed_value"]),
+        "tolerance": request.get("tolerance", data["tolerance"]),
+        "distance": [_outward(near, up=False), _outward(far, up=True)],
+        "enclosure": integral["enclosure"],
+        "integral": integral,
+        "engine_version": ENGINE_VERSION,
+    }
 
 
 def plan_body(result: Plan) -> dict[str, Any]:

@@ -12,8 +12,14 @@ from quadcert.api import Settings, create_app
 
 @pytest.fixture(scope="package")
 def app_settings() -> Settings:
-    return Settings(workers=2, queue_limit=16, request_deadline_seconds=5.0, log_level="WARNING",
-                    max_body_bytes=200_000, max_batch_items=50)
+    return Settings(
+        workers=2,
+        queue_limit=16,
+        request_deadline_seconds=5.0,
+        log_level="WARNING",
+        max_body_bytes=200_000,
+        max_batch_items=50,
+    )
 
 
 @pytest.fixture(scope="package")

@@ -11,8 +11,14 @@ NOTES = Path(__file__).resolve().parents[2] / "openapi-notes" / "openapi.json"
 
 
 def _check(client: TestClient, claimed: float, tolerance: float = 1e-6, **extra):
-    body = {"integrand": "exp(x)", "lower_limit": 0, "upper_limit": 2, "claimed_value": claimed,
-            "tolerance": tolerance, **extra}
+    body = {
+        "integrand": "exp(x)",
+        "lower_limit": 0,
+        "upper_limit": 2,
+        "claimed_value": claimed,
+        "tolerance": tolerance,
+        **extra,
+    }
     return client.post("/v1/checks", json=body)
 
 
@@ -36,8 +42,9 @@ def test_check_errors(client: TestClient) -> None:
 
 
 def test_plan(client: TestClient) -> None:
-    body = client.post("/v1/plans", json={"integrand": "exp(x)", "lower_limit": 0, "upper_limit": 2,
-                                           "tolerance": 0.5e-4}).json()
+    body = client.post(
+        "/v1/plans", json={"integrand": "exp(x)", "lower_limit": 0, "upper_limit": 2, "tolerance": 0.5e-4}
+    ).json()
     assert body["simpson"]["nodes"] == 15 and body["trapezoid"]["nodes"] == 315  # hand calculation in planner tests
     bad = client.post("/v1/plans", json={"integrand": "exp(", "lower_limit": 0, "upper_limit": 2})
     assert bad.status_code == 422 and bad.json()["column"] == 5

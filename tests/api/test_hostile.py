@@ -27,10 +27,10 @@ FORMULAS = [
     ("sin(1e100000)", "literal_out_of_range"),
     ("exp(exp(exp(x + 10)))", "magnitude_exceeded"),
     ("x^1e9", "power_too_large"),
-    ("\u0445 + 1", "unexpected_character"),            # Cyrillic small ha, looks like x
-    ("s\u0456n(x)", "unexpected_character"),           # Cyrillic i inside sin
-    ("x\u200b+1", "unexpected_character"),             # zero-width space
-    ("\uff58", "unexpected_character"),                # fullwidth x
+    ("\u0445 + 1", "unexpected_character"),  # Cyrillic small ha, looks like x
+    ("s\u0456n(x)", "unexpected_character"),  # Cyrillic i inside sin
+    ("x\u200b+1", "unexpected_character"),  # zero-width space
+    ("\uff58", "unexpected_character"),  # fullwidth x
 ]
 
 
@@ -49,7 +49,7 @@ VALUES = [
     ({"upper_limit": 1e300, "integrand": "exp(x)"}, ("magnitude_exceeded", "unbounded_near")),
     ({"upper_limit": "1e1000", "integrand": "1"}, ("limit_out_of_range",)),
     ({"upper_limit": "1e300", "integrand": "1e10"}, ("result_out_of_range",)),
-    ({"upper_limit": "inf"}, ("divergent_integral",)),      # x on [0, inf)
+    ({"upper_limit": "inf"}, ("divergent_integral",)),  # x on [0, inf)
     ({"lower_limit": "-Infinity"}, ("divergent_integral",)),  # x on (-inf, 1]
     ({"tolerance": 1e-300}, ("tolerance_out_of_range",)),
     ({"tolerance": -1}, ("invalid_tolerance",)),
@@ -86,11 +86,14 @@ def test_hostile_values_get_coded_problems(client: TestClient, change: dict, cod
 
 
 def test_json_non_finite_tokens_and_bytes(client: TestClient) -> None:
-    raws = [b'{"integrand":"x","lower_limit":NaN,"upper_limit":1}',
-            b'{"integrand":"x","lower_limit":0,"upper_limit":1,"tolerance":-Infinity}',
-            b'{"integrand":"\xc3\x28","lower_limit":0,"upper_limit":1}',
-            b'\x00\x01\x02', b'{"integrand": "x", "lower_limit": 0, "upper_limit": 1',
-            b'[' * 100000 + b']' * 100000]
+    raws = [
+        b'{"integrand":"x","lower_limit":NaN,"upper_limit":1}',
+        b'{"integrand":"x","lower_limit":0,"upper_limit":1,"tolerance":-Infinity}',
+        b'{"integrand":"\xc3\x28","lower_limit":0,"upper_limit":1}',
+        b"\x00\x01\x02",
+        b'{"integrand": "x", "lower_limit": 0, "upper_limit": 1',
+        b"[" * 100000 + b"]" * 100000,
+    ]
     for raw in raws:
         response = client.post("/v1/integrals", content=raw, headers={"content-type": "application/json"})
         assert 400 <= response.status_code < 500, raw[:40]
@@ -102,15 +105,18 @@ def test_one_megabyte_formula_and_body(client: TestClient) -> None:
     formula = "x+" * 500_000 + "x"
     response = client.post("/v1/integrals", json={"integrand": formula, **BASE})
     assert response.status_code == 413 and response.json()["code"] == "body_too_large"
-    chunked = client.post("/v1/integrals", content=iter([b"{" + b" " * 100_000] * 3),
-                          headers={"content-type": "application/json"})
+    chunked = client.post(
+        "/v1/integrals", content=iter([b"{" + b" " * 100_000] * 3), headers={"content-type": "application/json"}
+    )
     assert chunked.status_code == 413
 
 
 def test_hostile_get_queries(client: TestClient) -> None:
-    for params in [{"integrand": "9^9^9^9", "lower_limit": "0", "upper_limit": "1"},
-                   {"integrand": "x", "lower_limit": "0", "upper_limit": "nan"},
-                   {"integrand": "x", "lower_limit": "0", "upper_limit": "1", "tolerance": "nan"},
-                   {"integrand": "x", "lower_limit": "0", "upper_limit": "1", "parameter": "oops"}]:
+    for params in [
+        {"integrand": "9^9^9^9", "lower_limit": "0", "upper_limit": "1"},
+        {"integrand": "x", "lower_limit": "0", "upper_limit": "nan"},
+        {"integrand": "x", "lower_limit": "0", "upper_limit": "1", "tolerance": "nan"},
+        {"integrand": "x", "lower_limit": "0", "upper_limit": "1", "parameter": "oops"},
+    ]:
         response = client.get("/v1/integral", params=params)
         assert 400 <= response.status_code < 500 and response.text.startswith("error "), params

@@ -25,8 +25,15 @@ def test_certified_integral(client: TestClient) -> None:
 
 
 def test_text_limits_and_parameters(client: TestClient) -> None:
-    body = _post(client, integrand="k*cos(t)", variable="t", lower_limit="0", upper_limit="pi/2",
-                 parameters={"k": 3}, tolerance=1e-9).json()
+    body = _post(
+        client,
+        integrand="k*cos(t)",
+        variable="t",
+        lower_limit="0",
+        upper_limit="pi/2",
+        parameters={"k": 3},
+        tolerance=1e-9,
+    ).json()
     assert encloses(body["enclosure"], 3)  # closed form 3*sin(pi/2)
     assert body["upper_limit"] == "pi/2"
 
@@ -71,12 +78,17 @@ def test_schema_errors(client: TestClient) -> None:
 
 
 def test_non_finite_json_tokens(client: TestClient) -> None:
-    for raw in ['{"integrand":"x","lower_limit":0,"upper_limit":1,"tolerance":NaN}',
-                '{"integrand":"x","lower_limit":0,"upper_limit":Infinity}',
-                '{"integrand":"x","lower_limit":-Infinity,"upper_limit":1}']:
+    for raw in [
+        '{"integrand":"x","lower_limit":0,"upper_limit":1,"tolerance":NaN}',
+        '{"integrand":"x","lower_limit":0,"upper_limit":Infinity}',
+        '{"integrand":"x","lower_limit":-Infinity,"upper_limit":1}',
+    ]:
         response = client.post("/v1/integrals", content=raw, headers={"content-type": "application/json"})
         assert response.status_code == 422 and response.json()["code"] in (
-            "invalid_tolerance", "divergent_integral", "invalid_request"), raw
+            "invalid_tolerance",
+            "divergent_integral",
+            "invalid_request",
+        ), raw
 
 
 def test_malformed_and_oversized_bodies(client: TestClient) -> None:
@@ -102,7 +114,7 @@ def test_batch_answers_every_item_in_order(client: TestClient) -> None:
     assert encloses(results[0]["enclosure"], HP.mpf(1) / 2)  # closed form 1/2
     assert results[1]["code"] == "implicit_multiplication" and results[1]["column"] == 2
     assert results[2]["code"] == "divergent_integral"
-    assert encloses(results[3]["enclosure"], HP.e ** 2 - 1)  # closed form e^2 - 1
+    assert encloses(results[3]["enclosure"], HP.e**2 - 1)  # closed form e^2 - 1
     assert results[4]["status"] == 422
     assert results[1]["instance"].endswith("#/items/1")
 

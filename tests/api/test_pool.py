@@ -27,8 +27,9 @@ async def test_deadline_kills_and_replaces_the_worker() -> None:
         with pytest.raises(DeadlineExceeded):
             await pool.run("sleep", {"seconds": 30}, deadline_seconds=0.5)
         assert pool.restarts == 1
-        answer = await pool.run("integral", {"integrand": "x", "lower_limit": 0, "upper_limit": 1,
-                                             "tolerance": 1e-6}, deadline_seconds=30)
+        answer = await pool.run(
+            "integral", {"integrand": "x", "lower_limit": 0, "upper_limit": 1, "tolerance": 1e-6}, deadline_seconds=30
+        )
         assert encloses(answer["ok"]["enclosure"], HP.mpf(1) / 2)  # closed form 1/2
     finally:
         await pool.close()
@@ -42,9 +43,12 @@ async def test_killed_worker_fails_only_its_job() -> None:
         await asyncio.sleep(0.3)
         busy = [w for w in pool._workers if w.process.is_alive()][0]  # the first worker takes the first job
         os.kill(busy.process.pid, signal.SIGKILL)
-        others = await asyncio.gather(*(pool.run("integral", {"integrand": "x^2", "lower_limit": 0,
-                                                              "upper_limit": 3, "tolerance": 1e-9}, 30)
-                                        for _ in range(4)))
+        others = await asyncio.gather(
+            *(
+                pool.run("integral", {"integrand": "x^2", "lower_limit": 0, "upper_limit": 3, "tolerance": 1e-9}, 30)
+                for _ in range(4)
+            )
+        )
         assert all(encloses(o["ok"]["enclosure"], 9) for o in others)  # closed form 3^3/3
         with pytest.raises(WorkerLost):
             await slow
@@ -75,8 +79,9 @@ async def test_engine_errors_come_back_as_answers() -> None:
     pool = WorkerPool(1, 2)
     await pool.start()
     try:
-        answer = await pool.run("integral", {"integrand": "1/x", "lower_limit": -1, "upper_limit": 1,
-                                             "tolerance": 1e-6}, 10)
+        answer = await pool.run(
+            "integral", {"integrand": "1/x", "lower_limit": -1, "upper_limit": 1, "tolerance": 1e-6}, 10
+        )
         assert answer["error"]["code"] == "divergent_integral"
     finally:
         await pool.close()

@@ -12,10 +12,24 @@ from quadcert.api._problems import PROBLEM_TYPES
 SOURCE = Path(__file__).resolve().parents[2] / "service"
 RAISED = re.compile(r"""code\s*=\s*"([a-z_]+)\"""")
 #: codes built from variables rather than written as code="...": listed here so the scan misses none
-INDIRECT = {"undefined_at_point", "tolerance_not_met", "internal_error", "not_found", "method_not_allowed",
-            "body_too_large", "batch_too_large", "malformed_body", "malformed_request", "request_timeout",
-            "too_many_connections", "service_unreachable", "timed_out", "invalid_url", "unexpected_response",
-            "invalid_request"}
+INDIRECT = {
+    "undefined_at_point",
+    "tolerance_not_met",
+    "internal_error",
+    "not_found",
+    "method_not_allowed",
+    "body_too_large",
+    "batch_too_large",
+    "malformed_body",
+    "malformed_request",
+    "request_timeout",
+    "too_many_connections",
+    "service_unreachable",
+    "timed_out",
+    "invalid_url",
+    "unexpected_response",
+    "invalid_request",
+}
 
 
 def raised_codes() -> set[str]:
@@ -40,20 +54,21 @@ def test_problem_pages(client: TestClient) -> None:
 
 def test_one_title_per_type(client: TestClient) -> None:
     first = client.post("/v1/integrals", json={"integrand": "sinn(x)", "lower_limit": 0, "upper_limit": 1}).json()
-    second = client.post("/v1/integrals", json={"integrand": "cos(x) + sinn(x)", "lower_limit": 0,
-                                                "upper_limit": 1}).json()
+    second = client.post(
+        "/v1/integrals", json={"integrand": "cos(x) + sinn(x)", "lower_limit": 0, "upper_limit": 1}
+    ).json()
     assert first["code"] == second["code"] == "unknown_function" and first["title"] == second["title"]
     assert first["title"] == PROBLEM_TYPES["unknown_function"][1]
 
 
 def test_schema_errors_read_as_plain_sentences(client: TestClient) -> None:
-    response = client.post("/v1/integrals", json={"integrand": "x", "lower_limit": 0, "upper_limit": 1,
-                                                  "tolerance": "1e-6"})
+    response = client.post(
+        "/v1/integrals", json={"integrand": "x", "lower_limit": 0, "upper_limit": 1, "tolerance": "1e-6"}
+    )
     body = response.json()
     assert response.status_code == 422 and body["field"] == "tolerance"
     assert "Value error" not in body["detail"] and ".float" not in body["detail"] and "decimal" not in body["detail"]
-    too_long = client.post("/v1/integrals", json={"integrand": "x+" * 2100 + "x", "lower_limit": 0,
-                                                  "upper_limit": 1})
+    too_long = client.post("/v1/integrals", json={"integrand": "x+" * 2100 + "x", "lower_limit": 0, "upper_limit": 1})
     assert too_long.json()["code"] == "formula_too_long"
 
 

@@ -43,9 +43,12 @@ def test_etag_revalidation(client: TestClient) -> None:
 
 
 def test_failures_are_one_line_non_2xx(client: TestClient) -> None:
-    for params in [{**BASE, "integrand": "log(x)", "lower_limit": "-1"}, {**BASE, "integrand": "sinn(x)"},
-                   {**BASE, "tolerance": "abc"},
-                   {**BASE, "integrand": "1/x", "lower_limit": "1", "upper_limit": "inf"}]:
+    for params in [
+        {**BASE, "integrand": "log(x)", "lower_limit": "-1"},
+        {**BASE, "integrand": "sinn(x)"},
+        {**BASE, "tolerance": "abc"},
+        {**BASE, "integrand": "1/x", "lower_limit": "1", "upper_limit": "inf"},
+    ]:
         response = client.get("/v1/integral", params=params)
         assert response.status_code >= 400, params
         assert "\n" not in response.text and response.text.startswith("error ")
@@ -64,31 +67,39 @@ def test_tolerance_not_met_is_never_a_number(client: TestClient) -> None:
     params = {**BASE, "integrand": "sin(40*x)^2", "upper_limit": "3", "tolerance": "1e-15"}
     response = client.get("/v1/integral", params=params)
     assert response.status_code in (422, 504)
-    assert response.text.startswith("error ") and ("tolerance_not_met" in response.text
-                                                   or "deadline" in response.text)
+    assert response.text.startswith("error ") and ("tolerance_not_met" in response.text or "deadline" in response.text)
 
 
 def test_parameters_in_the_query(client: TestClient) -> None:
-    response = client.get("/v1/integral", params={"integrand": "a*x", "lower_limit": "0", "upper_limit": "2",
-                                                  "parameter": "a:1.5"})
+    response = client.get(
+        "/v1/integral", params={"integrand": "a*x", "lower_limit": "0", "upper_limit": "2", "parameter": "a:1.5"}
+    )
     assert abs(float(response.text) - 3.0) <= 1e-8  # closed form a*2^2/2, tolerance 1e-8
 
 
 def test_typical_url_is_short() -> None:
     url = "http://127.0.0.1:8000/v1/integral?" + urlencode(
-        {"integrand": "1/sqrt(1 - 0.5*sin(x)^2)", "lower_limit": "0", "upper_limit": "pi/2", "tolerance": "1e-10",
-         "field": "value"})
+        {
+            "integrand": "1/sqrt(1 - 0.5*sin(x)^2)",
+            "lower_limit": "0",
+            "upper_limit": "pi/2",
+            "tolerance": "1e-10",
+            "field": "value",
+        }
+    )
     assert len(url) < 2048
 
 
 def test_urls_as_people_type_them_get_hints(client: TestClient) -> None:
     """A raw + is a space in a URL; comma decimals and comma-joined parameters come from spreadsheets."""
-    cases = [("integrand=x^2+1&lower_limit=0&upper_limit=1", "%2B"),
-             ("integrand=x&lower_limit=0&upper_limit=1.0E+2", "%2B"),
-             ("integrand=x&lower_limit=0&upper_limit=0,5", "dot as the decimal separator"),
-             ("integrand=x&lower_limit=0&upper_limit=1&tolerance=0,000001", "dot as the decimal separator"),
-             ("integrand=k*x&lower_limit=0&upper_limit=1&parameter=k:0,5", "dot as the decimal separator"),
-             ("integrand=k*x0&lower_limit=0&upper_limit=1&parameter=k:2,x0:5", "its own parameter=")]
+    cases = [
+        ("integrand=x^2+1&lower_limit=0&upper_limit=1", "%2B"),
+        ("integrand=x&lower_limit=0&upper_limit=1.0E+2", "%2B"),
+        ("integrand=x&lower_limit=0&upper_limit=0,5", "dot as the decimal separator"),
+        ("integrand=x&lower_limit=0&upper_limit=1&tolerance=0,000001", "dot as the decimal separator"),
+        ("integrand=k*x&lower_limit=0&upper_limit=1&parameter=k:0,5", "dot as the decimal separator"),
+        ("integrand=k*x0&lower_limit=0&upper_limit=1&parameter=k:2,x0:5", "its own parameter="),
+    ]
     for query, expected in cases:
         response = client.get("/v1/integral?" + query)
         assert response.status_code == 422 and expected in response.text, (query, response.text)

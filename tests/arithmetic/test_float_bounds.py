@@ -20,16 +20,21 @@ from mpmath import libmp
 from quadcert.arithmetic import FlintArithmetic, Interval, MpmathArithmetic, fraction_down, fraction_up
 from quadcert.arithmetic._interval import binary_directed, raw_down, raw_up
 
-TINY = Fraction(2) ** -1074                  # the smallest subnormal (IEEE 754 binary64, the standard)
+TINY = Fraction(2) ** -1074  # the smallest subnormal (IEEE 754 binary64, the standard)
 SMALLEST_NORMAL = Fraction(2) ** -1022
 LARGEST = Fraction(sys.float_info.max)
 
 #: exponents around every boundary: far below zero's neighbour, subnormal, normal, near and beyond overflow
-EXPONENTS = st.one_of(st.integers(-1300, 1100), st.sampled_from([-1180, -1128, -1127, -1126, -1075, -1074, -1073,
-                                                                  -1023, -1022, -1021, 969, 970, 971, 972, 1023,
-                                                                  1024, 1025]))
-MANTISSAS = st.one_of(st.integers(1, 2 ** 120), st.sampled_from([1, 2, 3, 2 ** 52 - 1, 2 ** 52, 2 ** 52 + 1,
-                                                                  2 ** 53 - 1, 2 ** 53, 2 ** 53 + 1, 2 ** 54 - 1]))
+EXPONENTS = st.one_of(
+    st.integers(-1300, 1100),
+    st.sampled_from(
+        [-1180, -1128, -1127, -1126, -1075, -1074, -1073, -1023, -1022, -1021, 969, 970, 971, 972, 1023, 1024, 1025]
+    ),
+)
+MANTISSAS = st.one_of(
+    st.integers(1, 2**120),
+    st.sampled_from([1, 2, 3, 2**52 - 1, 2**52, 2**52 + 1, 2**53 - 1, 2**53, 2**53 + 1, 2**54 - 1]),
+)
 
 
 def is_floor(result: float, exact: Fraction) -> bool:
@@ -76,17 +81,35 @@ def test_flint_bounds_enclose(negative: bool, mantissa: int, exponent: int) -> N
     assert is_floor(low, exact) and is_ceiling(high, exact)
 
 
-@given(st.integers(-(2 ** 200), 2 ** 200).filter(bool), st.integers(1, 2 ** 200), EXPONENTS)
+@given(st.integers(-(2**200), 2**200).filter(bool), st.integers(1, 2**200), EXPONENTS)
 def test_fraction_directed_rounding(numerator: int, denominator: int, exponent: int) -> None:
     exact = Fraction(numerator, denominator) * Fraction(2) ** exponent
     down, up = fraction_down(exact), fraction_up(exact)
     assert is_floor(down, exact) and is_ceiling(up, exact)
 
 
-@pytest.mark.parametrize("exact", [
-    Fraction(0), TINY, TINY / 2, TINY / 3, TINY * 3 / 2, SMALLEST_NORMAL, SMALLEST_NORMAL - TINY / 7,
-    SMALLEST_NORMAL + TINY / 7, LARGEST, LARGEST + 1, LARGEST * 2, Fraction(2) ** 1024, Fraction(1, 10) ** 434,
-    Fraction(5, 10 ** 311), -Fraction(5, 10 ** 311), -TINY / 2, -LARGEST - 1])
+@pytest.mark.parametrize(
+    "exact",
+    [
+        Fraction(0),
+        TINY,
+        TINY / 2,
+        TINY / 3,
+        TINY * 3 / 2,
+        SMALLEST_NORMAL,
+        SMALLEST_NORMAL - TINY / 7,
+        SMALLEST_NORMAL + TINY / 7,
+        LARGEST,
+        LARGEST + 1,
+        LARGEST * 2,
+        Fraction(2) ** 1024,
+        Fraction(1, 10) ** 434,
+        Fraction(5, 10**311),
+        -Fraction(5, 10**311),
+        -TINY / 2,
+        -LARGEST - 1,
+    ],
+)
 def test_boundaries_of_each_range(exact: Fraction) -> None:
     """Hand-picked boundaries (IEEE 754 binary64 limits), through every conversion."""
     assert is_floor(fraction_down(exact), exact) and is_ceiling(fraction_up(exact), exact)

@@ -19,16 +19,54 @@ from quadcert.errors import ArithmeticFault
 from tests.conftest import HP
 
 DOMAINS = {  # function -> (low, high) of the arguments drawn
-    "exp": (-60, 60), "log": (Fraction(1, 10**6), 1000), "log10": (Fraction(1, 1000), 1000),
-    "sqrt": (0, 10**6), "sin": (-1000, 1000), "cos": (-1000, 1000), "tan": (-1.5, 1.5),
-    "atan": (-1000, 1000), "asin": (-1, 1), "acos": (-1, 1), "sinh": (-50, 50), "cosh": (-50, 50),
-    "tanh": (-50, 50), "erf": (-8, 8), "abs": (-100, 100),
+    "exp": (-60, 60),
+    "log": (Fraction(1, 10**6), 1000),
+    "log10": (Fraction(1, 1000), 1000),
+    "sqrt": (0, 10**6),
+    "sin": (-1000, 1000),
+    "cos": (-1000, 1000),
+    "tan": (-1.5, 1.5),
+    "atan": (-1000, 1000),
+    "asin": (-1, 1),
+    "acos": (-1, 1),
+    "sinh": (-50, 50),
+    "cosh": (-50, 50),
+    "tanh": (-50, 50),
+    "erf": (-8, 8),
+    "abs": (-100, 100),
 }
-REFERENCE = {"exp": HP.exp, "log": HP.log, "log10": HP.log10, "sqrt": HP.sqrt, "sin": HP.sin, "cos": HP.cos,
-             "tan": HP.tan, "atan": HP.atan, "asin": HP.asin, "acos": HP.acos, "sinh": HP.sinh, "cosh": HP.cosh,
-             "tanh": HP.tanh, "erf": HP.erf, "abs": abs}
-FLINT = {"exp": "exp", "log": "log", "sqrt": "sqrt", "sin": "sin", "cos": "cos", "tan": "tan", "atan": "atan",
-         "asin": "asin", "acos": "acos", "sinh": "sinh", "cosh": "cosh", "tanh": "tanh", "erf": "erf"}
+REFERENCE = {
+    "exp": HP.exp,
+    "log": HP.log,
+    "log10": HP.log10,
+    "sqrt": HP.sqrt,
+    "sin": HP.sin,
+    "cos": HP.cos,
+    "tan": HP.tan,
+    "atan": HP.atan,
+    "asin": HP.asin,
+    "acos": HP.acos,
+    "sinh": HP.sinh,
+    "cosh": HP.cosh,
+    "tanh": HP.tanh,
+    "erf": HP.erf,
+    "abs": abs,
+}
+FLINT = {
+    "exp": "exp",
+    "log": "log",
+    "sqrt": "sqrt",
+    "sin": "sin",
+    "cos": "cos",
+    "tan": "tan",
+    "atan": "atan",
+    "asin": "asin",
+    "acos": "acos",
+    "sinh": "sinh",
+    "cosh": "cosh",
+    "tanh": "tanh",
+    "erf": "erf",
+}
 
 
 def hp_of(value: Fraction):
@@ -127,10 +165,19 @@ def test_sin_and_cos_ranges_include_interior_extrema() -> None:
     assert ar.bounds(ar.function("sin", huge)) == (-1.0, 1.0)
 
 
-@pytest.mark.parametrize("name, low, high, certain", [
-    ("log", -2, -1, True), ("log", -1, 1, False), ("log", 0, 0, True), ("sqrt", -3, -1, True),
-    ("sqrt", -1, 1, False), ("asin", 2, 3, True), ("acos", 0, 2, False), ("tan", 1, 2, False),
-])
+@pytest.mark.parametrize(
+    "name, low, high, certain",
+    [
+        ("log", -2, -1, True),
+        ("log", -1, 1, False),
+        ("log", 0, 0, True),
+        ("sqrt", -3, -1, True),
+        ("sqrt", -1, 1, False),
+        ("asin", 2, 3, True),
+        ("acos", 0, 2, False),
+        ("tan", 1, 2, False),
+    ],
+)
 def test_domains_are_explicit(name: str, low: int, high: int, certain: bool) -> None:
     ar = MpmathArithmetic(64)
     with pytest.raises(ArithmeticFault) as info:

@@ -26,14 +26,17 @@ def _run(*args: str) -> subprocess.CompletedProcess:
     return subprocess.run([sys.executable, "-m", "quadcert.cli", *args], capture_output=True, text=True, timeout=120)
 
 
-@pytest.mark.parametrize("args", [
-    ("check", "x", "0", "1", "--claimed", "0.5", "--tol", "1e-9", "--url", "http://127.0.0.1:9"),
-    ("check", "x", "0", "1", "--claimed", "0.5", "--tol", "1e-9", "--url", "127.0.0.1:9"),
-    ("check", "x", "0", "1", "--claimed", "0.5", "--tol", "1e-9", "--param", "w0:2"),
-    ("check", "sinn(x)", "0", "1", "--claimed", "0.5", "--tol", "1e-9"),
-    ("integrate", "x", "0", "1", "--timeout", "-1"),
-    ("checks", "/nonexistent/checks.toml"),
-])
+@pytest.mark.parametrize(
+    "args",
+    [
+        ("check", "x", "0", "1", "--claimed", "0.5", "--tol", "1e-9", "--url", "http://127.0.0.1:9"),
+        ("check", "x", "0", "1", "--claimed", "0.5", "--tol", "1e-9", "--url", "127.0.0.1:9"),
+        ("check", "x", "0", "1", "--claimed", "0.5", "--tol", "1e-9", "--param", "w0:2"),
+        ("check", "sinn(x)", "0", "1", "--claimed", "0.5", "--tol", "1e-9"),
+        ("integrate", "x", "0", "1", "--timeout", "-1"),
+        ("checks", "/nonexistent/checks.toml"),
+    ],
+)
 def test_every_error_exits_2_with_one_line(args) -> None:
     done = _run(*args)
     assert done.returncode == 2, (args, done.stdout, done.stderr)
@@ -80,16 +83,20 @@ def test_a_file_of_checks_gives_one_report_and_the_right_exit_code(tmp_path, cap
     checks.write_text(TOML.replace("claimed_value = 1\n", "claimed_value = 1.5\n"))
     assert main(["checks", str(checks), "--junit", str(report)]) == 1
     csv_file = tmp_path / "checks.csv"
-    csv_file.write_text("\ufeffname,integrand,lower_limit,upper_limit,claimed_value,tolerance,parameter.k\n"
-                        "half,k*x,0,1,0.5,1e-9,1\nbroken,2x,0,1,1,1e-9,1\n", encoding="utf-8")
+    csv_file.write_text(
+        "\ufeffname,integrand,lower_limit,upper_limit,claimed_value,tolerance,parameter.k\n"
+        "half,k*x,0,1,0.5,1e-9,1\nbroken,2x,0,1,1,1e-9,1\n",
+        encoding="utf-8",
+    )
     assert main(["checks", str(csv_file), "--junit", str(report)]) == 2  # one pass, one error
     root = ET.parse(report).getroot()
     assert root.get("tests") == "2" and root.get("errors") == "1"
 
 
 def test_timeout_stops_long_work_without_a_verdict(capsys) -> None:
-    code = main(["integrate", "sin(1000*x)", "0", "9000", "--tol", "1e-12", "--max-nodes", "2000001",
-                 "--timeout", "0.5"])
+    code = main(
+        ["integrate", "sin(1000*x)", "0", "9000", "--tol", "1e-12", "--max-nodes", "2000001", "--timeout", "0.5"]
+    )
     assert code == 2
 
 

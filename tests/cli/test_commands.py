@@ -24,7 +24,7 @@ def test_integrate_human_and_json(capsys) -> None:
     assert "enclosure" in out and "certified" in out
     assert main(["integrate", "exp(x)", "0", "2", "--tol", "1e-10", "--json"]) == 0
     body = json.loads(capsys.readouterr().out)
-    assert encloses(body["enclosure"], HP.e ** 2 - 1)  # closed form
+    assert encloses(body["enclosure"], HP.e**2 - 1)  # closed form
 
 
 def test_integrate_negative_limits_parameters_and_mesh(capsys) -> None:
@@ -36,8 +36,25 @@ def test_integrate_negative_limits_parameters_and_mesh(capsys) -> None:
 @pytest.mark.parametrize("claimed, code, verdict", [(9.0, 0, "pass"), (9.01, 1, "fail")])
 def test_check_exit_codes_and_junit(tmp_path, capsys, claimed, code, verdict) -> None:
     report = tmp_path / "r.xml"
-    assert main(["check", "x^2", "0", "3", "--claimed", str(claimed), "--tol", "1e-6", "--junit", str(report),
-                 "--name", "area under x^2"]) == code
+    assert (
+        main(
+            [
+                "check",
+                "x^2",
+                "0",
+                "3",
+                "--claimed",
+                str(claimed),
+                "--tol",
+                "1e-6",
+                "--junit",
+                str(report),
+                "--name",
+                "area under x^2",
+            ]
+        )
+        == code
+    )
     assert capsys.readouterr().out.startswith(verdict)
     suite = ET.parse(report).getroot().find("testsuite")
     case = suite.find("testcase")

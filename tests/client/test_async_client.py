@@ -31,8 +31,12 @@ async def test_async_client_calls() -> None:
             assert verdict.verdict == "fail" and verdict.distance[0] > 1e-6
             planned = await client.plan("exp(x)", 0, 2, 0.5e-4)
             assert planned.trapezoid.nodes == 315  # hand calculation, see tests/quadrature/test_planner.py
-            mixed = await client.batch([{"integrand": "x", "lower_limit": 0, "upper_limit": 2},
-                                        {"integrand": "log(x)", "lower_limit": -1, "upper_limit": 1}])
+            mixed = await client.batch(
+                [
+                    {"integrand": "x", "lower_limit": 0, "upper_limit": 2},
+                    {"integrand": "log(x)", "lower_limit": -1, "upper_limit": 1},
+                ]
+            )
             # closed form 2^2/2 for the first item
             assert encloses(mixed[0].enclosure, 2) and mixed[1].code == "undefined_at_point"
             tail = await client.integrate("exp(-x^2)", -math.inf, "inf", 1e-9, include_mesh=True)

@@ -7,11 +7,30 @@ import pytest
 
 from quadcert.client import Client, ProblemError
 
-ANSWER = {"value": 0.5, "enclosure": [0.5, 0.5], "error_bound": 0.0, "tolerance": 1e-8, "tolerance_met": True,
-          "stop_reason": "tolerance_met", "nodes": 3, "panels": 1, "integrand": "x", "lower_limit": "0",
-          "upper_limit": "1", "precision_bits": 53, "compute_seconds": 0.0, "bounds_used": {}, "mesh": None}
-BUSY = {"type": "/problems/saturated", "title": "busy", "status": 503, "detail": "all workers are busy",
-        "code": "saturated"}
+ANSWER = {
+    "value": 0.5,
+    "enclosure": [0.5, 0.5],
+    "error_bound": 0.0,
+    "tolerance": 1e-8,
+    "tolerance_met": True,
+    "stop_reason": "tolerance_met",
+    "nodes": 3,
+    "panels": 1,
+    "integrand": "x",
+    "lower_limit": "0",
+    "upper_limit": "1",
+    "precision_bits": 53,
+    "compute_seconds": 0.0,
+    "bounds_used": {},
+    "mesh": None,
+}
+BUSY = {
+    "type": "/problems/saturated",
+    "title": "busy",
+    "status": 503,
+    "detail": "all workers are busy",
+    "code": "saturated",
+}
 
 
 def test_503_is_retried_after_the_servers_delay(monkeypatch) -> None:
@@ -72,7 +91,9 @@ def test_importing_the_client_leaves_the_engine_unloaded() -> None:
     import subprocess
     import sys
 
-    code = ("import sys, quadcert.client; loaded = [m for m in sys.modules if m.split('.')[0] in "
-            "('mpmath', 'flint') or m.endswith('_native') or m.startswith('quadcert.quadrature')]; print(loaded)")
+    code = (
+        "import sys, quadcert.client; loaded = [m for m in sys.modules if m.split('.')[0] in "
+        "('mpmath', 'flint') or m.endswith('_native') or m.startswith('quadcert.quadrature')]; print(loaded)"
+    )
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
     assert done.returncode == 0 and done.stdout.strip() == "[]", done.stdout + done.stderr

@@ -25,8 +25,7 @@ from typing import Any, Iterator
 
 ROOT = Path(__file__).resolve().parents[2]
 FILES = [ROOT / "README.md", *sorted((ROOT / "openapi-notes").glob("*.md"))]
-MARKER = re.compile(r"<!-- answer: (GET|POST) (\S+)(?: (\{.*?\}))?(?:; shorten (\w+))? -->\n```(\w*)\n(.*?)```",
-                    re.S)
+MARKER = re.compile(r"<!-- answer: (GET|POST) (\S+)(?: (\{.*?\}))?(?:; shorten (\w+))? -->\n```(\w*)\n(.*?)```", re.S)
 VOLATILE = ("compute_seconds", "request_id", "cached")
 WIDTH = 112
 
@@ -63,8 +62,9 @@ def examples(text: str) -> Iterator[re.Match]:
 def regenerate(client: Any, text: str) -> str:
     def replace(match: re.Match) -> str:
         method, target, body, shorten, language, _ = match.groups()
-        head = match.group(0)[:match.start(6) - match.start(0)]
+        head = match.group(0)[: match.start(6) - match.start(0)]
         return head + answer(client, method, target, body, shorten) + "```"
+
     return MARKER.sub(replace, text)
 
 

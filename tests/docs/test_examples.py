@@ -26,4 +26,5 @@ def test_examples_match_real_answers(running, path) -> None:
     text = path.read_text()
     assert masked(regenerate(running, text)) == masked(text), (
         f"an example in {path.name} no longer matches what the service answers: run "
-        "`python -m tests.docs.examples --write` and review the change")
+        "`python -m tests.docs.examples --write` and review the change"
+    )

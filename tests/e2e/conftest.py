@@ -49,8 +49,12 @@ def free_port() -> int:
 def start_server(**env: str) -> Server:
     port = free_port()
     environment = {**os.environ, "QUADCERT_LOG_LEVEL": "WARNING", **env}
-    process = subprocess.Popen([sys.executable, "-m", "quadcert.cli", "serve", "--port", str(port), "--workers", "2"],
-                               env=environment, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
+    process = subprocess.Popen(
+        [sys.executable, "-m", "quadcert.cli", "serve", "--port", str(port), "--workers", "2"],
+        env=environment,
+        stdout=subprocess.DEVNULL,
+        stderr=subprocess.PIPE,
+    )
     url = f"http://127.0.0.1:{port}"
     deadline = time.monotonic() + 60
     while time.monotonic() < deadline:

@@ -35,8 +35,10 @@ def test_a_500_leaves_the_connection_usable() -> None:
             assert failed.status_code == 500
             assert failed.headers["content-type"].startswith("application/problem+json")
             assert failed.json()["code"] == "internal_error" and "a defect" not in failed.text
-            answers = [client.post("/v1/integrals", json={"integrand": "x", "lower_limit": 0, "upper_limit": i + 1})
-                       for i in range(20)]
+            answers = [
+                client.post("/v1/integrals", json={"integrand": "x", "lower_limit": 0, "upper_limit": i + 1})
+                for i in range(20)
+            ]
             assert [a.status_code for a in answers] == [200] * 20
     finally:
         server.should_exit = True

@@ -33,8 +33,17 @@ def test_short_soak_memory_stays_bounded() -> None:
     """
     server = start_server()
     try:
-        report = asyncio.run(drive(server.url, "simple", concurrency=8, duration=6, max_requests=100_000,
-                                   pid=server.process.pid, sample_every=1.0))
+        report = asyncio.run(
+            drive(
+                server.url,
+                "simple",
+                concurrency=8,
+                duration=6,
+                max_requests=100_000,
+                pid=server.process.pid,
+                sample_every=1.0,
+            )
+        )
         assert set(report.statuses) == {"200"}
         samples = [mb for _, mb in report.rss_mb]
         assert len(samples) >= 4 and all(mb > 0 for mb in samples)

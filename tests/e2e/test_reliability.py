@@ -30,6 +30,7 @@ def _post_in_background(url: str, path: str, body: dict, results: dict, key: Any
         except httpx.HTTPError as error:
             results[key] = ("error", "", repr(error))
         results.setdefault("order", []).append(key)
+
     thread = threading.Thread(target=post)
     thread.start()
     return thread
@@ -48,10 +49,13 @@ def _sigterm_and_wait(server: Server, limit: float = 60) -> int:
 def test_sigterm_with_work_in_flight_exits_and_answers_everything() -> None:
     running = start_server(QUADCERT_GRACE_SECONDS="1", QUADCERT_REQUEST_DEADLINE_SECONDS="30")
     results: dict = {}
-    threads = [_post_in_background(running.url, "/v1/integrals", {**SLOW, "upper_limit": 9000 + i}, results, i)
-               for i in range(4)]
-    threads.append(_post_in_background(running.url, "/v1/integrals/batch", {"items": [QUICK, SLOW, SLOW]},
-                                       results, "batch"))
+    threads = [
+        _post_in_background(running.url, "/v1/integrals", {**SLOW, "upper_limit": 9000 + i}, results, i)
+        for i in range(4)
+    ]
+    threads.append(
+        _post_in_background(running.url, "/v1/integrals/batch", {"items": [QUICK, SLOW, SLOW]}, results, "batch")
+    )
     time.sleep(1.5)
     assert _sigterm_and_wait(running) == 0
     for thread in threads:
@@ -60,8 +64,10 @@ def test_sigterm_with_work_in_flight_exits_and_answers_everything() -> None:
         status, media, body = results[key]
         assert status in (200, 503, 504), results[key]
         if status != 200:
-            assert media.startswith("application/problem+json") and body["code"] in ("shutting_down",
-                                                                                    "deadline_exceeded")
+            assert media.startswith("application/problem+json") and body["code"] in (
+                "shutting_down",
+                "deadline_exceeded",
+            )
     status, _, body = results["batch"]
     assert status == 200 and len(body["results"]) == 3  # every item answered: a result or a problem
     for item in body["results"]:
@@ -90,8 +96,10 @@ def test_queue_wait_counts_against_the_deadline_and_singles_are_not_starved() ->
         results: dict = {}
         batch = _post_in_background(running.url, "/v1/integrals/batch", {"items": [item] * 12}, results, "batch")
         time.sleep(0.5)
-        singles = [_post_in_background(running.url, "/v1/integrals", {**QUICK, "upper_limit": 3 + i}, results, i)
-                   for i in range(3)]
+        singles = [
+            _post_in_background(running.url, "/v1/integrals", {**QUICK, "upper_limit": 3 + i}, results, i)
+            for i in range(3)
+        ]
         for thread in [batch, *singles]:
             thread.join(120)
         assert all(results[i][0] == 200 for i in range(3)), [results[i] for i in range(3)]
@@ -107,9 +115,11 @@ def test_queue_wait_counts_against_the_deadline_and_singles_are_not_starved() ->
 
 def test_large_mesh_arrives_whole(server: Server) -> None:
     """A mesh of about 3,000 panels is over 400 KB: far more than a pipe buffer."""
-    response = httpx.post(f"{server.url}/v1/integrals", json={"integrand": "sin(1000*x)", "lower_limit": 0,
-                                                              "upper_limit": 1, "tolerance": 1e-6,
-                                                              "include_mesh": True}, timeout=60)
+    response = httpx.post(
+        f"{server.url}/v1/integrals",
+        json={"integrand": "sin(1000*x)", "lower_limit": 0, "upper_limit": 1, "tolerance": 1e-6, "include_mesh": True},
+        timeout=60,
+    )
     assert response.status_code == 200, response.text[:300]
     body = response.json()
     assert len(response.content) > 65536 and len(body["mesh"]) == body["panels"]
@@ -155,11 +165,16 @@ def test_serve_says_where_it_listens_and_refuses_bad_ports() -> None:
     running = start_server()
     try:
         port = running.url.rsplit(":", 1)[1]
-        taken = subprocess.run([sys.executable, "-m", "quadcert.cli", "serve", "--port", port], capture_output=True,
-                               text=True, timeout=60)
+        taken = subprocess.run(
+            [sys.executable, "-m", "quadcert.cli", "serve", "--port", port], capture_output=True, text=True, timeout=60
+        )
         assert taken.returncode == 2 and "is in use" in taken.stderr and "started" not in taken.stderr
-        wrong = subprocess.run([sys.executable, "-m", "quadcert.cli", "serve", "--port", "99999"],
-                               capture_output=True, text=True, timeout=60)
+        wrong = subprocess.run(
+            [sys.executable, "-m", "quadcert.cli", "serve", "--port", "99999"],
+            capture_output=True,
+            text=True,
+            timeout=60,
+        )
         assert wrong.returncode == 2 and "65535" in wrong.stderr
     finally:
         stop_server(running)

@@ -32,13 +32,17 @@ def test_every_operation_survives_generated_requests(server) -> None:
     assert len(operations) >= 9
     seen: dict[str, set[int]] = {}
     for operation in operations:
+
         @given(case=operation.as_strategy())
         @settings(max_examples=EXAMPLES, deadline=None, suppress_health_check=list(HealthCheck), database=None)
         def exercise(case) -> None:
             response = case.call(timeout=30)
             seen.setdefault(operation.label, set()).add(response.status_code)
             assert response.status_code < 500 or response.status_code == 503, (
-                operation.label, response.status_code, response.text[:300])
+                operation.label,
+                response.status_code,
+                response.text[:300],
+            )
             case.validate_response(response, excluded_checks=EXCLUDED)
 
         exercise()

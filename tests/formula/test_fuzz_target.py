@@ -13,15 +13,31 @@ atheris = pytest.importorskip("atheris")
 
 
 def test_seed_inputs_pass_the_target() -> None:
-    for seed in [b"x", b"-x^2", b"sin(", b"2x", b"\xff\xfe", b"((((", b"min(x,a,k)", b"1e999999", b"x**2",
-                 # found by long runs: canonical text must stay exact and within the literal limits
-                 b".133333333333333333333333333333333333333333333", b"4^4^04e404^00^04e4",
-                 b"2^-" * 30 + b"x", b"x" + b"+x" * 400]:  # the last once overflowed the stack
+    for seed in [
+        b"x",
+        b"-x^2",
+        b"sin(",
+        b"2x",
+        b"\xff\xfe",
+        b"((((",
+        b"min(x,a,k)",
+        b"1e999999",
+        b"x**2",
+        # found by long runs: canonical text must stay exact and within the literal limits
+        b".133333333333333333333333333333333333333333333",
+        b"4^4^04e404^00^04e4",
+        b"2^-" * 30 + b"x",
+        b"x" + b"+x" * 400,
+    ]:  # the last once overflowed the stack
         check_one(seed)
 
 
 def test_bounded_fuzz_run_finds_nothing(tmp_path) -> None:
-    done = subprocess.run([sys.executable, "-m", "quadcert.formula._fuzz", "-runs=5000", "-seed=1",
-                           f"-artifact_prefix={tmp_path}/"], capture_output=True, text=True, timeout=600)
+    done = subprocess.run(
+        [sys.executable, "-m", "quadcert.formula._fuzz", "-runs=5000", "-seed=1", f"-artifact_prefix={tmp_path}/"],
+        capture_output=True,
+        text=True,
+        timeout=600,
+    )
     assert done.returncode == 0, done.stderr[-3000:]
     assert "Done 5000 runs" in done.stderr

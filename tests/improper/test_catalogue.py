@@ -23,18 +23,38 @@ CASES = [
     ("x*log(x)", "0", "1", mp.mpf(-1) / 4, "closed form: [x²·log(x)/2 − x²/4] from 0 to 1"),
     ("log(x)^2", "0", "1", mp.mpf(2), "closed form: Γ(3) = 2 after x = e^(−u) (A&S 6.1.1)"),
     ("log(x)/sqrt(x)", "0", "1", mp.mpf(-4), "closed form: [2√x·(log x − 2)] from 0 to 1"),
-    ("x^(-0.3)*cos(x)", "0", "1", mp.quad(lambda x: x ** mp.mpf("-0.3") * mp.cos(x), [0, 1]),
-     "mpmath.quad at 60 digits (tanh-sinh handles the end singularity)"),
-    ("x^x", "0", "1", mp.nsum(lambda n: (-1) ** (n + 1) * n ** (-n), [1, mp.inf]),
-     "series Σ (−1)^(n+1)·n^(−n) (from memory), summed by mpmath.nsum at 60 digits"),
+    (
+        "x^(-0.3)*cos(x)",
+        "0",
+        "1",
+        mp.quad(lambda x: x ** mp.mpf("-0.3") * mp.cos(x), [0, 1]),
+        "mpmath.quad at 60 digits (tanh-sinh handles the end singularity)",
+    ),
+    (
+        "x^x",
+        "0",
+        "1",
+        mp.nsum(lambda n: (-1) ** (n + 1) * n ** (-n), [1, mp.inf]),
+        "series Σ (−1)^(n+1)·n^(−n) (from memory), summed by mpmath.nsum at 60 digits",
+    ),
     ("1/sqrt(1 - x^2)", "0", "1", mp.pi / 2, "closed form: asin(1) = π/2 (A&S 4.4.3)"),
     ("1/sqrt(x*(1 - x))", "0", "1", mp.pi, "closed form: B(1/2, 1/2) = Γ(1/2)² = π (A&S 6.2.1, 6.1.8)"),
-    ("1/sqrt((1 - x^2)*(1 - 0.5*x^2))", "0", "1", mp.ellipk(mp.mpf("0.5")),
-     "K(m = 1/2), A&S 17.3.1; Table 17.1 gives 1.85407 46773 01372; mpmath.ellipk at 60 digits"),
+    (
+        "1/sqrt((1 - x^2)*(1 - 0.5*x^2))",
+        "0",
+        "1",
+        mp.ellipk(mp.mpf("0.5")),
+        "K(m = 1/2), A&S 17.3.1; Table 17.1 gives 1.85407 46773 01372; mpmath.ellipk at 60 digits",
+    ),
     ("log(sin(x))", "0", "pi/2", -mp.pi / 2 * mp.log(2), "closed form −(π/2)·log 2 (from memory)"),
     # -- inside the interval -------------------------------------------------------------------------------
-    ("1/sqrt(abs(x - 0.3))", "0", "1", 2 * mp.sqrt(mp.mpf("0.3")) + 2 * mp.sqrt(mp.mpf("0.7")),
-     "closed form: 2√0.3 + 2√0.7"),
+    (
+        "1/sqrt(abs(x - 0.3))",
+        "0",
+        "1",
+        2 * mp.sqrt(mp.mpf("0.3")) + 2 * mp.sqrt(mp.mpf("0.7")),
+        "closed form: 2√0.3 + 2√0.7",
+    ),
     ("sin(x)/x", "-1", "1", 2 * mp.si(1), "2·Si(1), A&S 5.2.1; Table 5.1: Si(1) = 0.94608 30704"),
     # -- removable singularities -----------------------------------------------------------------------------
     ("sin(x)/x", "0", "1", mp.si(1), "Si(1), A&S 5.2.1; Table 5.1: 0.94608 30703 67183"),
@@ -44,10 +64,20 @@ CASES = [
     ("exp(-x^2)", "-inf", "inf", mp.sqrt(mp.pi), "√π, A&S 7.1.1 with erf(∞) = 1"),
     ("1/(1 + x^2)", "0", "inf", mp.pi / 2, "closed form: atan(∞) = π/2 (A&S 4.4.3)"),
     ("1/(1 + x^4)", "-inf", "inf", mp.pi / mp.sqrt(2), "closed form π/√2 (from memory)"),
-    ("x^2*exp(-x^2/4.5)/(1.5*sqrt(2*pi))", "-inf", "inf", mp.mpf("2.25"),
-     "second moment σ² of a normal density with σ = 1.5 (A&S 26.2.1)"),
-    ("exp(-x^2/2)/sqrt(2*pi)", "1.96", "inf", mp.erfc(mp.mpf("1.96") / mp.sqrt(2)) / 2,
-     "upper normal tail Q(1.96), A&S 26.2.3 and Table 26.1 (0.02499 79); mpmath.erfc at 60 digits"),
+    (
+        "x^2*exp(-x^2/4.5)/(1.5*sqrt(2*pi))",
+        "-inf",
+        "inf",
+        mp.mpf("2.25"),
+        "second moment σ² of a normal density with σ = 1.5 (A&S 26.2.1)",
+    ),
+    (
+        "exp(-x^2/2)/sqrt(2*pi)",
+        "1.96",
+        "inf",
+        mp.erfc(mp.mpf("1.96") / mp.sqrt(2)) / 2,
+        "upper normal tail Q(1.96), A&S 26.2.3 and Table 26.1 (0.02499 79); mpmath.erfc at 60 digits",
+    ),
     ("x^3*exp(-x)", "0", "inf", mp.mpf(6), "Γ(4) = 3! (A&S 6.1.1, 6.1.6)"),
     ("log(x)/x^2", "1", "inf", mp.mpf(1), "closed form: [−(log x + 1)/x] from 1 to ∞"),
     ("1/cosh(x)", "-inf", "inf", mp.pi, "closed form: [2·atan(e^x)] = π (A&S 4.5.? gd(∞) = π/2, from memory)"),
@@ -55,7 +85,7 @@ CASES = [
     # -- a singular end and a tail together ------------------------------------------------------------------
     ("x^(-0.5)*exp(-x)", "0", "inf", mp.sqrt(mp.pi), "Γ(1/2) = √π, A&S 6.1.8"),
     ("exp(-x)*log(x)", "0", "inf", -mp.euler, "−γ, A&S 6.1.3 and 6.3.2 (Γ′(1) = −γ)"),
-    ("x/(exp(x) - 1)", "0", "inf", mp.pi ** 2 / 6, "Γ(2)·ζ(2) = π²/6, A&S 23.2.7"),
+    ("x/(exp(x) - 1)", "0", "inf", mp.pi**2 / 6, "Γ(2)·ζ(2) = π²/6, A&S 23.2.7"),
     ("x^2*exp(-x^2)", "0", "inf", mp.sqrt(mp.pi) / 4, "Γ(3/2)/2 = √π/4 after x = √u (A&S 6.1.9)"),
 ]
 
@@ -98,12 +128,15 @@ def test_divergent_integrals_are_refused_with_their_own_code(integrand, a, b, wh
     assert "diverges" in info.value.message
 
 
-@pytest.mark.parametrize("integrand, a, b, code", [
-    ("sin(x)/x", "0", "inf", "tail_undecided"),      # converges only conditionally (to π/2): refused
-    ("sin(x)", "0", "inf", "tail_undecided"),        # no limit at all
-    ("sin(1/x)/x", "0", "1", "singularity_undecided"),   # |f| ≤ 1/x only: no sign to prove divergence
-    ("exp(x*sin(x))", "0", "inf", "tail_not_bounded"),
-])
+@pytest.mark.parametrize(
+    "integrand, a, b, code",
+    [
+        ("sin(x)/x", "0", "inf", "tail_undecided"),  # converges only conditionally (to π/2): refused
+        ("sin(x)", "0", "inf", "tail_undecided"),  # no limit at all
+        ("sin(1/x)/x", "0", "1", "singularity_undecided"),  # |f| ≤ 1/x only: no sign to prove divergence
+        ("exp(x*sin(x))", "0", "inf", "tail_not_bounded"),
+    ],
+)
 def test_undecided_integrals_are_refused_never_guessed(integrand, a, b, code) -> None:
     with pytest.raises(NotCertifiable) as info:
         integrate(integrand, a, b, 1e-8)

@@ -39,10 +39,27 @@ def _near_factors(a: Fraction) -> st.SearchStrategy[str]:
     rate = st.integers(-30, 30).map(lambda k: f"{k}/10")
     return st.one_of(
         exponent.map(lambda p: f"abs({u})^{p}"),
-        st.sampled_from([f"log(abs({u}))", f"log(abs({u}))^2", f"sqrt(abs({u}))", u, f"{u}^2",
-                         f"sin({u})/{u}", f"(1 - cos({u}))/{u}^2", f"(exp({u}) - 1)/{u}", "1/(1 + x^2)",
-                         f"atan(1/abs({u}))", f"exp(-1/abs({u}))", f"tanh({u})", f"erf({u})", f"cosh({u})",
-                         f"abs({u})^abs({u})", f"sinh({u})/abs({u})^(3/2)", f"log10(abs({u}))"]),
+        st.sampled_from(
+            [
+                f"log(abs({u}))",
+                f"log(abs({u}))^2",
+                f"sqrt(abs({u}))",
+                u,
+                f"{u}^2",
+                f"sin({u})/{u}",
+                f"(1 - cos({u}))/{u}^2",
+                f"(exp({u}) - 1)/{u}",
+                "1/(1 + x^2)",
+                f"atan(1/abs({u}))",
+                f"exp(-1/abs({u}))",
+                f"tanh({u})",
+                f"erf({u})",
+                f"cosh({u})",
+                f"abs({u})^abs({u})",
+                f"sinh({u})/abs({u})^(3/2)",
+                f"log10(abs({u}))",
+            ]
+        ),
         rate.map(lambda r: f"exp({r}*x)"),
         rate.map(lambda r: f"cos({r}*x)"),
     )
@@ -63,12 +80,20 @@ def near_cases(draw: st.DrawFn) -> tuple[str, Fraction, int, Fraction]:
 def _power_bound(power: Power, t: object, ctx: object, up: bool) -> object:
     k = to_fraction(power.k.hi if up else power.k.lo)
     L = -ctx.log(t)  # type: ignore[attr-defined]
-    return ctx.mpf(k.numerator) / k.denominator * t ** ctx.mpf(power.p) * L ** power.q  # type: ignore[attr-defined]
+    return ctx.mpf(k.numerator) / k.denominator * t ** ctx.mpf(power.p) * L**power.q  # type: ignore[attr-defined]
 
 
 def _samples(delta: Fraction) -> list[Fraction]:
-    return [delta, delta * Fraction(3, 4), delta / 2, delta / 2**10, delta / 2**100, Fraction(1, 2**1074),
-            Fraction(1, 2**3000), delta / 3]
+    return [
+        delta,
+        delta * Fraction(3, 4),
+        delta / 2,
+        delta / 2**10,
+        delta / 2**100,
+        Fraction(1, 2**1074),
+        Fraction(1, 2**3000),
+        delta / 3,
+    ]
 
 
 def _check_point(root: object, env: object, x: Fraction, t: Fraction, prec: int, text: str = "") -> None:
@@ -92,7 +117,12 @@ def _check_point(root: object, env: object, x: Fraction, t: Fraction, prec: int,
         if env.upper is not None and ball.is_finite():
             k = to_fraction(env.upper.k.hi)
             tb = flint.arb(t.numerator) / t.denominator
-            bound = flint.arb(k.numerator) / k.denominator * tb ** (flint.arb(env.upper.p.numerator) / env.upper.p.denominator) * (-tb.log()) ** env.upper.q
+            bound = (
+                flint.arb(k.numerator)
+                / k.denominator
+                * tb ** (flint.arb(env.upper.p.numerator) / env.upper.p.denominator)
+                * (-tb.log()) ** env.upper.q
+            )
             assert not (abs(ball) > bound), (t, ball, bound)
 
 
@@ -119,9 +149,24 @@ def _tail_factors() -> st.SearchStrategy[str]:
         rate.map(lambda r: f"exp(-{r}*abs(x))"),
         rate.map(lambda r: f"exp(-{r}*x^2)"),
         rate.map(lambda r: f"cos({r}*x)"),
-        st.sampled_from(["1/(1 + x^2)", "log(abs(x))", "log(1 + x^2)", "atan(x)", "1/cosh(x)", "tanh(x)",
-                         "sin(1/x)", "exp(-sqrt(abs(x)))", "1/(exp(abs(x)) - 1)", "x", "x^2 - 3*x",
-                         "cosh(x)", "erf(x)", "exp(1/x)"]),
+        st.sampled_from(
+            [
+                "1/(1 + x^2)",
+                "log(abs(x))",
+                "log(1 + x^2)",
+                "atan(x)",
+                "1/cosh(x)",
+                "tanh(x)",
+                "sin(1/x)",
+                "exp(-sqrt(abs(x)))",
+                "1/(exp(abs(x)) - 1)",
+                "x",
+                "x^2 - 3*x",
+                "cosh(x)",
+                "erf(x)",
+                "exp(1/x)",
+            ]
+        ),
     )
 
 
@@ -155,15 +200,28 @@ def test_envelopes_in_a_tail_bound_the_integrand(case) -> None:
             value = mp_value(formula.root, side * ym)
             slack = MP.mpf(2) ** -300
             if env.upper is not None:
-                assert abs(value) <= _growth_bound(env.upper, ym, True) * (1 + slack), (text, side, start, float(y), value)
+                assert abs(value) <= _growth_bound(env.upper, ym, True) * (1 + slack), (
+                    text,
+                    side,
+                    start,
+                    float(y),
+                    value,
+                )
             if env.lower is not None:
-                assert abs(value) >= _growth_bound(env.lower, ym, False) * (1 - slack), (text, side, start, float(y), value)
+                assert abs(value) >= _growth_bound(env.lower, ym, False) * (1 - slack), (
+                    text,
+                    side,
+                    start,
+                    float(y),
+                    value,
+                )
             if env.sign:
                 assert value * env.sign >= -slack * abs(value), (text, side, start, float(y), value)
 
 
-@pytest.mark.parametrize("text", ["exp(-x^2)*x^3", "1/(1 + x^2)", "log(x)/x^2", "x/(exp(x) - 1)",
-                                  "exp(-sqrt(x))", "1/cosh(x)*atan(x)"])
+@pytest.mark.parametrize(
+    "text", ["exp(-x^2)*x^3", "1/(1 + x^2)", "log(x)/x^2", "x/(exp(x) - 1)", "exp(-sqrt(x))", "1/cosh(x)*atan(x)"]
+)
 def test_tail_envelopes_hold_far_beyond_the_float_range(text) -> None:
     """At y = 10^1000 (float64 ends near 1.8e308), checked with mpmath at enough bits for e^(−r·y) there."""
     formula = parse(text)
@@ -177,11 +235,18 @@ def test_tail_envelopes_hold_far_beyond_the_float_range(text) -> None:
             assert abs(value) >= _growth_bound(env.lower, ym, False) * (1 - MP.mpf(2) ** -300)
 
 
-@pytest.mark.parametrize("text, a, side", [
-    ("1/sqrt(x)", Fraction(0), 1), ("log(x)*x^(-0.3)", Fraction(0), 1), ("sin(x)/x", Fraction(0), -1),
-    ("1/sqrt(abs(x - 0.3))", Fraction(3, 10), 1), ("1/sqrt(1 - x^2)", Fraction(1), -1),
-    ("x^x", Fraction(0), 1), ("(1 - cos(x))/x^2", Fraction(0), 1),
-])
+@pytest.mark.parametrize(
+    "text, a, side",
+    [
+        ("1/sqrt(x)", Fraction(0), 1),
+        ("log(x)*x^(-0.3)", Fraction(0), 1),
+        ("sin(x)/x", Fraction(0), -1),
+        ("1/sqrt(abs(x - 0.3))", Fraction(3, 10), 1),
+        ("1/sqrt(1 - x^2)", Fraction(1), -1),
+        ("x^x", Fraction(0), 1),
+        ("(1 - cos(x))/x^2", Fraction(0), 1),
+    ],
+)
 def test_the_rules_cover_the_classes_of_the_catalogue(text, a, side) -> None:
     """Not a bound check (the properties above are): the cases users bring must get an envelope at all."""
     formula = parse(text)

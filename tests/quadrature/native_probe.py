@@ -17,8 +17,9 @@ def enclose_function(name: str, low: float, high: float) -> tuple[float, float] 
     return _fast._native.enclose(_fast.FUNCTION_CODES[name], low, high)
 
 
-def operate(op: str, a: tuple[float, float], b: tuple[float, float] = (0.0, 0.0), n: int = 0
-            ) -> tuple[float, float] | None:
+def operate(
+    op: str, a: tuple[float, float], b: tuple[float, float] = (0.0, 0.0), n: int = 0
+) -> tuple[float, float] | None:
     assert _fast._native is not None
     codes = {"+": 0, "-": 1, "*": 2, "/": 3, "sqr": 4, "pow": 5}
     return _fast._native.operate(codes[op], a[0], a[1], b[0], b[1], n)

@@ -16,24 +16,41 @@ from quadcert.errors import QuadcertError
 REF = __import__("mpmath").MPContext()
 REF.dps = 60
 
-LEAVES = st.sampled_from([("x", lambda x: x), ("2", lambda x: REF.mpf(2)), ("0.5", lambda x: REF.mpf("0.5")),
-                          ("pi", lambda x: +REF.pi), ("3*x", lambda x: 3 * x)])
+LEAVES = st.sampled_from(
+    [
+        ("x", lambda x: x),
+        ("2", lambda x: REF.mpf(2)),
+        ("0.5", lambda x: REF.mpf("0.5")),
+        ("pi", lambda x: +REF.pi),
+        ("3*x", lambda x: 3 * x),
+    ]
+)
 SAFE_UNARY = [
-    ("sin({})", REF.sin), ("cos({})", REF.cos), ("exp(({})/3)", lambda v: REF.exp(v / 3)),
-    ("atan({})", REF.atan), ("tanh({})", REF.tanh), ("erf({})", REF.erf),
-    ("log(2 + ({})^2)", lambda v: REF.log(2 + v ** 2)), ("sqrt(1 + ({})^2)", lambda v: REF.sqrt(1 + v ** 2)),
-    ("1/(1 + ({})^2)", lambda v: 1 / (1 + v ** 2)), ("({})^3", lambda v: v ** 3),
+    ("sin({})", REF.sin),
+    ("cos({})", REF.cos),
+    ("exp(({})/3)", lambda v: REF.exp(v / 3)),
+    ("atan({})", REF.atan),
+    ("tanh({})", REF.tanh),
+    ("erf({})", REF.erf),
+    ("log(2 + ({})^2)", lambda v: REF.log(2 + v**2)),
+    ("sqrt(1 + ({})^2)", lambda v: REF.sqrt(1 + v**2)),
+    ("1/(1 + ({})^2)", lambda v: 1 / (1 + v**2)),
+    ("({})^3", lambda v: v**3),
 ]
 
 
 def _combine(children):
     unary = st.tuples(st.sampled_from(SAFE_UNARY), children).map(
-        lambda t: (t[0][0].format(t[1][0]), (lambda f, g: lambda x: f(g(x)))(t[0][1], t[1][1])))
+        lambda t: (t[0][0].format(t[1][0]), (lambda f, g: lambda x: f(g(x)))(t[0][1], t[1][1]))
+    )
     binary = st.tuples(st.sampled_from(["+", "-", "*"]), children, children).map(
-        lambda t: (f"({t[1][0]}) {t[0]} ({t[2][0]})",
-                   (lambda op, f, g: lambda x: op(f(x), g(x)))(
-                       {"+": lambda a, b: a + b, "-": lambda a, b: a - b, "*": lambda a, b: a * b}[t[0]],
-                       t[1][1], t[2][1])))
+        lambda t: (
+            f"({t[1][0]}) {t[0]} ({t[2][0]})",
+            (lambda op, f, g: lambda x: op(f(x), g(x)))(
+                {"+": lambda a, b: a + b, "-": lambda a, b: a - b, "*": lambda a, b: a * b}[t[0]], t[1][1], t[2][1]
+            ),
+        )
+    )
     return unary | binary
 
 

@@ -41,12 +41,12 @@ def _hp(fr: Fraction):
 @given(smooth_integrand(), st.sampled_from([1e-6, 1e-9, 1e-12]))
 def test_overlaps_flint_and_contains_reference(case, tolerance) -> None:
     text, a, b, flint_f, hp_f = case
-    ours = integrate(text, str(a.numerator) + "/" + str(a.denominator), f"{b.numerator}/{b.denominator}",
-                     tolerance)
+    ours = integrate(text, str(a.numerator) + "/" + str(a.denominator), f"{b.numerator}/{b.denominator}", tolerance)
     assert ours.tolerance_met
     flint.ctx.prec = 128  # single-threaded test; the engine itself never uses flint's context
-    ball = flint.acb.integral(flint_f, flint.acb(flint.fmpq(a.numerator, a.denominator)),
-                              flint.acb(flint.fmpq(b.numerator, b.denominator))).real
+    ball = flint.acb.integral(
+        flint_f, flint.acb(flint.fmpq(a.numerator, a.denominator)), flint.acb(flint.fmpq(b.numerator, b.denominator))
+    ).real
     lower = float(ball.lower()) if ball.is_finite() else -float("inf")
     upper = float(ball.upper()) if ball.is_finite() else float("inf")
     assert ours.enclosure[0] <= upper + 1e-15 and lower - 1e-15 <= ours.enclosure[1]

@@ -26,16 +26,40 @@ from tests.conftest import HP, encloses
 pytestmark = pytest.mark.skipif(not _fast.AVAILABLE, reason="the C engine was not built")
 
 DOMAINS = {  # float arguments drawn for each function
-    "exp": (-700.0, 700.0), "log": (1e-300, 1e300), "log10": (1e-300, 1e300), "sqrt": (0.0, 1e300),
-    "sin": (-1e6, 1e6), "cos": (-1e6, 1e6), "tan": (-1.5, 1.5), "atan": (-1e10, 1e10), "asin": (-1.0, 1.0),
-    "acos": (-1.0, 1.0), "sinh": (-700.0, 700.0), "cosh": (-700.0, 700.0), "tanh": (-30.0, 30.0),
-    "erf": (-8.0, 8.0), "abs": (-1e300, 1e300),
+    "exp": (-700.0, 700.0),
+    "log": (1e-300, 1e300),
+    "log10": (1e-300, 1e300),
+    "sqrt": (0.0, 1e300),
+    "sin": (-1e6, 1e6),
+    "cos": (-1e6, 1e6),
+    "tan": (-1.5, 1.5),
+    "atan": (-1e10, 1e10),
+    "asin": (-1.0, 1.0),
+    "acos": (-1.0, 1.0),
+    "sinh": (-700.0, 700.0),
+    "cosh": (-700.0, 700.0),
+    "tanh": (-30.0, 30.0),
+    "erf": (-8.0, 8.0),
+    "abs": (-1e300, 1e300),
 }
-HP_FUNCTIONS = {"exp": HP.exp, "log": HP.log, "log10": HP.log10, "sqrt": HP.sqrt, "sin": HP.sin, "cos": HP.cos,
-                "tan": HP.tan, "atan": HP.atan, "asin": HP.asin, "acos": HP.acos, "sinh": HP.sinh,
-                "cosh": HP.cosh, "tanh": HP.tanh, "erf": HP.erf, "abs": abs}
-FLINT_FUNCTIONS = {"exp", "log", "sqrt", "sin", "cos", "tan", "atan", "asin", "acos", "sinh", "cosh", "tanh",
-                   "erf"}
+HP_FUNCTIONS = {
+    "exp": HP.exp,
+    "log": HP.log,
+    "log10": HP.log10,
+    "sqrt": HP.sqrt,
+    "sin": HP.sin,
+    "cos": HP.cos,
+    "tan": HP.tan,
+    "atan": HP.atan,
+    "asin": HP.asin,
+    "acos": HP.acos,
+    "sinh": HP.sinh,
+    "cosh": HP.cosh,
+    "tanh": HP.tanh,
+    "erf": HP.erf,
+    "abs": abs,
+}
+FLINT_FUNCTIONS = {"exp", "log", "sqrt", "sin", "cos", "tan", "atan", "asin", "acos", "sinh", "cosh", "tanh", "erf"}
 
 
 def _arb_fraction(value) -> Fraction:
@@ -106,10 +130,20 @@ def test_guarded_functions_contain_flint_balls(name: str, data) -> None:
 # inputs where a library exp or a quarter-turn count is easiest to get wrong: the exp inputs that
 # mpmath's point exp misrounds (the report behind the project's guard), and the floats nearest to
 # multiples of pi/2, with their neighbours
-_HARD_EXP = [3893924827815215 / 1125899906842624, 1381846513289487 / 70368744177664, -1 / 2**53, -172.0,
-             690.0, -745.1, 1e-300]
-_NEAR_QUARTERS = [math.nextafter(float(k * HP.pi / 2), d) for k in (1, 2, 3, 4, 7, 1000, 123456, 10**6)
-                  for d in (-math.inf, 0.0, math.inf)]
+_HARD_EXP = [
+    3893924827815215 / 1125899906842624,
+    1381846513289487 / 70368744177664,
+    -1 / 2**53,
+    -172.0,
+    690.0,
+    -745.1,
+    1e-300,
+]
+_NEAR_QUARTERS = [
+    math.nextafter(float(k * HP.pi / 2), d)
+    for k in (1, 2, 3, 4, 7, 1000, 123456, 10**6)
+    for d in (-math.inf, 0.0, math.inf)
+]
 
 
 @pytest.mark.parametrize("x", _HARD_EXP)
@@ -146,8 +180,7 @@ FINITE = st.floats(-1e150, 1e150, allow_nan=False, allow_infinity=False) | st.fl
 
 
 @given(st.sampled_from(["+", "-", "*", "/"]), FINITE, FINITE, FINITE, FINITE)
-def test_arithmetic_contains_the_exact_rational_result(op: str, a1: float, a2: float, b1: float,
-                                                       b2: float) -> None:
+def test_arithmetic_contains_the_exact_rational_result(op: str, a1: float, a2: float, b1: float, b2: float) -> None:
     """Reference: exact rational arithmetic on the four corner values."""
     a, b = tuple(sorted((a1, a2))), tuple(sorted((b1, b2)))
     result = native_probe.operate(op, a, b)
@@ -185,10 +218,29 @@ def test_sums_that_are_exact_stay_points() -> None:
 
 
 # every instruction of the compiled language at least once
-COVERAGE = ["sqrt(1 + x^2)", "exp(-x^2/2)", "log(2 + x)", "log10(3 + x)", "sin(3*x) + cos(x/2)", "tan(x/2)",
-            "asin(x/2) - acos(x/3)", "atan(4*x)", "sinh(x) * cosh(x)", "tanh(2*x - 1)", "erf(x)",
-            "abs(x - 0.3)", "min(x, 1 - x)", "max(sin(5*x), cos(5*x))", "(1 + x)^1.5", "x^-2 + x^7",
-            "(2 + x)^(x/3)", "1/(1 + 25*x^2)", "-(x*x)", "2^x", "pi/2 + e*x"]
+COVERAGE = [
+    "sqrt(1 + x^2)",
+    "exp(-x^2/2)",
+    "log(2 + x)",
+    "log10(3 + x)",
+    "sin(3*x) + cos(x/2)",
+    "tan(x/2)",
+    "asin(x/2) - acos(x/3)",
+    "atan(4*x)",
+    "sinh(x) * cosh(x)",
+    "tanh(2*x - 1)",
+    "erf(x)",
+    "abs(x - 0.3)",
+    "min(x, 1 - x)",
+    "max(sin(5*x), cos(5*x))",
+    "(1 + x)^1.5",
+    "x^-2 + x^7",
+    "(2 + x)^(x/3)",
+    "1/(1 + 25*x^2)",
+    "-(x*x)",
+    "2^x",
+    "pi/2 + e*x",
+]
 
 
 def _program_taylor(formula: str, point: Fraction) -> list[tuple[Fraction, Fraction]]:
@@ -199,8 +251,9 @@ def _program_taylor(formula: str, point: Fraction) -> list[tuple[Fraction, Fract
 
 @pytest.mark.parametrize("formula", COVERAGE)
 @given(st.floats(0.2, 0.9), st.floats(0, 0.05), st.integers(0, 100))
-def test_taylor_enclosures_contain_the_precise_engines_point_values(formula: str, start: float, width: float,
-                                                                     where: int) -> None:
+def test_taylor_enclosures_contain_the_precise_engines_point_values(
+    formula: str, start: float, width: float, where: int
+) -> None:
     """Reference: the reference backend's 200-bit Taylor coefficients at an exact point of the interval
     (a far tighter enclosure of the same true coefficients: the two must meet)."""
     low, high = start, start + width
@@ -253,28 +306,44 @@ def test_the_float64_engine_is_the_one_that_answered() -> None:
     assert sum(Fraction(p.contribution[0]) for p in result.mesh) >= Fraction(result.enclosure[0]) - Fraction(1, 10**12)
 
 
-@pytest.mark.parametrize("formula, a, b, tolerance", [
-    ("sin(x)", "0", "pi", 1e-14),                                                # below float64's resolution
-    ("1/cosh(10*(x - 0.2))^2 + 1/cosh(1000*(x - 0.6))^6", "0", "1", 1e-6),       # beyond float64's range
-    ("exp(x)", "0", "1", 1e-15),                                                 # below float64's resolution
-])
+@pytest.mark.parametrize(
+    "formula, a, b, tolerance",
+    [
+        ("sin(x)", "0", "pi", 1e-14),  # below float64's resolution
+        ("1/cosh(10*(x - 0.2))^2 + 1/cosh(1000*(x - 0.6))^6", "0", "1", 1e-6),  # beyond float64's range
+        ("exp(x)", "0", "1", 1e-15),  # below float64's resolution
+    ],
+)
 def test_hand_over_to_the_precise_engine(formula: str, a: str, b: str, tolerance: float) -> None:
     """Where float64 cannot certify, the arbitrary-precision engine answers; references are
     mpmath at 110 digits (quadrature with its own error estimate, far below the tolerances)."""
     result = integrate(formula, a, b, tolerance)
     assert result.precision_bits > 53
     f = {"sin(x)": HP.sin, "exp(x)": HP.exp}.get(formula) or (
-        lambda x: HP.sech(10 * (x - HP.mpf("0.2"))) ** 2 + HP.sech(1000 * (x - HP.mpf("0.6"))) ** 6)
-    cuts = [HP.mpf(0), HP.mpf("0.2"), HP.mpf("0.6"), HP.mpf(1)] if "cosh" in formula else [
-        HP.mpf(a), HP.pi if b == "pi" else HP.mpf(b)]
+        lambda x: HP.sech(10 * (x - HP.mpf("0.2"))) ** 2 + HP.sech(1000 * (x - HP.mpf("0.6"))) ** 6
+    )
+    cuts = (
+        [HP.mpf(0), HP.mpf("0.2"), HP.mpf("0.6"), HP.mpf(1)]
+        if "cosh" in formula
+        else [HP.mpf(a), HP.pi if b == "pi" else HP.mpf(b)]
+    )
     exact = HP.quad(f, cuts)
     assert HP.mpf(result.enclosure[0]) <= exact <= HP.mpf(result.enclosure[1])
 
 
-@pytest.mark.parametrize("formula, a, b", [
-    ("1/x", "-1", "1"), ("log(x)", "-1", "1"), ("sqrt(x - 2)", "0", "1"), ("1/(x - 0.3)^2", "0", "1"),
-    ("1/(x - 0.5)^2", "0", "1"), ("tan(x)", "0", "2"), ("log(sin(10*x))", "0.1", "1"), ("sqrt(-x)", "0", "1"),
-])
+@pytest.mark.parametrize(
+    "formula, a, b",
+    [
+        ("1/x", "-1", "1"),
+        ("log(x)", "-1", "1"),
+        ("sqrt(x - 2)", "0", "1"),
+        ("1/(x - 0.3)^2", "0", "1"),
+        ("1/(x - 0.5)^2", "0", "1"),
+        ("tan(x)", "0", "2"),
+        ("log(sin(10*x))", "0.1", "1"),
+        ("sqrt(-x)", "0", "1"),
+    ],
+)
 def test_refusals_are_the_precise_engines_own(formula: str, a: str, b: str) -> None:
     """The float64 engine never refuses: the refusal, code and location are those of the precise engine
     run alone (the project's reference behaviour)."""
@@ -302,8 +371,20 @@ def test_malformed_programs_are_rejected_not_run() -> None:
         with pytest.raises(ValueError):
             _native.integrate(code, [], 4, 0.0, 0.0, 1.0, 1.0, 1e-8, 0.0, 0.0, 1001, False)
     with pytest.raises(ValueError):  # a constant index out of range
-        _native.integrate((1).to_bytes(4, "little") + (5).to_bytes(4, "little"), [], 4, 0.0, 0.0, 1.0, 1.0,
-                          1e-8, 0.0, 0.0, 1001, False)
+        _native.integrate(
+            (1).to_bytes(4, "little") + (5).to_bytes(4, "little"),
+            [],
+            4,
+            0.0,
+            0.0,
+            1.0,
+            1.0,
+            1e-8,
+            0.0,
+            0.0,
+            1001,
+            False,
+        )
 
 
 def test_this_machines_c_library_passes_the_self_test() -> None:
@@ -353,11 +434,14 @@ def test_long_oscillating_mesh_stays_in_float64() -> None:
     assert HP.mpf(result.enclosure[0]) <= exact <= HP.mpf(result.enclosure[1])
 
 
-@pytest.mark.parametrize("formula, a, b, exact", [
-    ("x*exp(-x^2)", -5, 5, HP.mpf(0)),                      # odd integrand: 0 (closed form)
-    ("1/(1 + exp(-x))", -20, 20, HP.mpf(20)),               # σ(x) + σ(−x) = 1: half the length (closed form)
-    ("exp(-x^2)", -5, 5, HP.sqrt(HP.pi) * HP.erf(5)),       # A&S 7.1.1, mpmath at 110 digits
-])
+@pytest.mark.parametrize(
+    "formula, a, b, exact",
+    [
+        ("x*exp(-x^2)", -5, 5, HP.mpf(0)),  # odd integrand: 0 (closed form)
+        ("1/(1 + exp(-x))", -20, 20, HP.mpf(20)),  # σ(x) + σ(−x) = 1: half the length (closed form)
+        ("exp(-x^2)", -5, 5, HP.sqrt(HP.pi) * HP.erf(5)),  # A&S 7.1.1, mpmath at 110 digits
+    ],
+)
 def test_symmetric_intervals_certify_at_1e_12_in_the_compiled_engine(formula, a, b, exact) -> None:
     """Cut points are floats inside the midpoint's enclosure and an exact 0 stays exact, so panel widths carry
     no uncertainty from their ends and float64 reaches 1e-12 here without the precise engine."""

@@ -21,8 +21,8 @@ def test_exp_on_0_2_at_half_ten_to_minus_4() -> None:
     result = plan("exp(x)", 0, 2, 0.5e-4)
     assert (result.trapezoid.intervals, result.trapezoid.nodes) == (314, 315)
     assert (result.simpson.intervals, result.simpson.nodes) == (7, 15)
-    assert math.isclose(result.simpson.derivative_bound, math.e ** 2, rel_tol=1e-6)
-    assert result.simpson.derivative_bound >= math.e ** 2
+    assert math.isclose(result.simpson.derivative_bound, math.e**2, rel_tol=1e-6)
+    assert result.simpson.derivative_bound >= math.e**2
     assert result.simpson.error_bound <= 0.5e-4 and result.trapezoid.error_bound <= 0.5e-4
 
 

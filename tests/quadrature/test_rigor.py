@@ -17,13 +17,16 @@ from quadcert.quadrature import _peano
 from tests.conftest import HP, encloses
 
 
-@pytest.mark.parametrize("integrand, a, b, exact, source", [
-    ("sqrt(x)", 0, 1, HP.mpf(2) / 3, "closed form 2/3"),
-    ("abs(x - 0.3)", -1, 1, (HP.mpf("1.3") ** 2 + HP.mpf("0.7") ** 2) / 2, "closed form (1.3^2 + 0.7^2)/2"),
-    ("x^1.5", 0, 1, HP.mpf(2) / 5, "closed form 2/5"),
-    ("max(sin(x), cos(x))", 0, "pi", 1 + HP.sqrt(2), "closed form 1 + sqrt(2)"),
-    ("sqrt(1 - x^2)", -1, 1, HP.pi / 2, "closed form pi/2 (half disc)"),
-])
+@pytest.mark.parametrize(
+    "integrand, a, b, exact, source",
+    [
+        ("sqrt(x)", 0, 1, HP.mpf(2) / 3, "closed form 2/3"),
+        ("abs(x - 0.3)", -1, 1, (HP.mpf("1.3") ** 2 + HP.mpf("0.7") ** 2) / 2, "closed form (1.3^2 + 0.7^2)/2"),
+        ("x^1.5", 0, 1, HP.mpf(2) / 5, "closed form 2/5"),
+        ("max(sin(x), cos(x))", 0, "pi", 1 + HP.sqrt(2), "closed form 1 + sqrt(2)"),
+        ("sqrt(1 - x^2)", -1, 1, HP.pi / 2, "closed form pi/2 (half disc)"),
+    ],
+)
 def test_non_c4_integrands_are_certified(integrand, a, b, exact, source) -> None:
     result = integrate(integrand, a, b, 1e-8)
     assert result.tolerance_met, (source, result.stop_reason)
@@ -69,6 +72,7 @@ def test_scipy_quad_is_confidently_wrong_where_we_are_certified() -> None:
     Exact value: the Gaussian's integral over the real line is sqrt(pi)/10 (closed form); the tails
     outside [0, 1000] are below 1e-1000, far under any tolerance here.
     """
+
     def peak(x: float) -> float:
         return math.exp(-100 * (x - 537.3) ** 2)
 
@@ -79,15 +83,18 @@ def test_scipy_quad_is_confidently_wrong_where_we_are_certified() -> None:
     assert ours.tolerance_met and encloses(ours.enclosure, exact)
 
 
-@pytest.mark.parametrize("integrand, a, b, code", [
-    ("log(x)", -1, 1, "undefined_at_point"),
-    ("1/x", -1, 1, "divergent_integral"),           # no principal values: ∫ 1/x over [−1, 1] diverges
-    ("1/(x - 0.3)", 0, 1, "divergent_integral"),
-    ("sqrt(x - 2)", 0, 1, "undefined_at_point"),
-    ("tan(x)", 0, 3, "unbounded_near"),
-    ("1/abs(x - 1/3)", 0, 1, "divergent_integral"),
-    ("log(x - 2)", 0, 1, "undefined_at_point"),
-])
+@pytest.mark.parametrize(
+    "integrand, a, b, code",
+    [
+        ("log(x)", -1, 1, "undefined_at_point"),
+        ("1/x", -1, 1, "divergent_integral"),  # no principal values: ∫ 1/x over [−1, 1] diverges
+        ("1/(x - 0.3)", 0, 1, "divergent_integral"),
+        ("sqrt(x - 2)", 0, 1, "undefined_at_point"),
+        ("tan(x)", 0, 3, "unbounded_near"),
+        ("1/abs(x - 1/3)", 0, 1, "divergent_integral"),
+        ("log(x - 2)", 0, 1, "undefined_at_point"),
+    ],
+)
 def test_refusals_are_coded_with_location(integrand, a, b, code) -> None:
     with pytest.raises(NotCertifiable) as info:
         integrate(integrand, a, b, 1e-6)
@@ -102,15 +109,18 @@ def test_refusal_of_singularity_points_at_it() -> None:
     assert low <= 0.3 <= high and high - low < 1e-9
 
 
-@pytest.mark.parametrize("kwargs, code", [
-    ({"tolerance": 0.0}, "invalid_tolerance"),
-    ({"tolerance": math.nan}, "invalid_tolerance"),
-    ({"tolerance": math.inf}, "invalid_tolerance"),
-    ({"tolerance": 1e-300}, "tolerance_out_of_range"),
-    ({"max_nodes": 10**12}, "budget_out_of_range"),
-    ({"upper_limit": "x+1"}, "unknown_name"),
-    ({"upper_limit": "2x"}, "implicit_multiplication"),
-])
+@pytest.mark.parametrize(
+    "kwargs, code",
+    [
+        ({"tolerance": 0.0}, "invalid_tolerance"),
+        ({"tolerance": math.nan}, "invalid_tolerance"),
+        ({"tolerance": math.inf}, "invalid_tolerance"),
+        ({"tolerance": 1e-300}, "tolerance_out_of_range"),
+        ({"max_nodes": 10**12}, "budget_out_of_range"),
+        ({"upper_limit": "x+1"}, "unknown_name"),
+        ({"upper_limit": "2x"}, "implicit_multiplication"),
+    ],
+)
 def test_bad_inputs_are_coded(kwargs, code) -> None:
     args = {"integrand": "x", "lower_limit": 0, "upper_limit": 1, "tolerance": 1e-6, **kwargs}
     with pytest.raises(InvalidInput) as info:
@@ -118,20 +128,28 @@ def test_bad_inputs_are_coded(kwargs, code) -> None:
     assert info.value.code == code
 
 
-@pytest.mark.parametrize("integrand", ["x" + "+x" * 198, "(" * 60 + "x" + ")" * 60 + "*x" * 130,
-                                       "1" + "+sin(x)" * 190])
+@pytest.mark.parametrize("integrand", ["x" + "+x" * 198, "(" * 60 + "x" + ")" * 60 + "*x" * 130, "1" + "+sin(x)" * 190])
 def test_deepest_accepted_formulas_evaluate_without_recursion_trouble(integrand) -> None:
     terms = integrand.count("x")
     result = integrate(integrand, 0, 1, 1e-6, max_nodes=201)
     assert result.error_bound >= 0 and terms > 100
 
 
-@pytest.mark.parametrize("integrand, a, b, exact, source", [
-    ("exp(x)*exp(-2*x)", 1000, 1010, HP.exp(-1000) - HP.exp(-1010), "closed form e^-1000 - e^-1010, about 5.08e-435"),
-    ("x*1e-700*1e390", 0, 1, HP.mpf("5e-311"), "closed form 1e-310/2, a subnormal that is not a float64"),
-    ("exp(-x)", 745, 746, HP.exp(-745) - HP.exp(-746), "closed form e^-745 - e^-746, at the subnormal edge"),
-    ("1e-320*x^2", 0, 3, HP.mpf("9e-320"), "closed form 9e-320, subnormal"),
-])
+@pytest.mark.parametrize(
+    "integrand, a, b, exact, source",
+    [
+        (
+            "exp(x)*exp(-2*x)",
+            1000,
+            1010,
+            HP.exp(-1000) - HP.exp(-1010),
+            "closed form e^-1000 - e^-1010, about 5.08e-435",
+        ),
+        ("x*1e-700*1e390", 0, 1, HP.mpf("5e-311"), "closed form 1e-310/2, a subnormal that is not a float64"),
+        ("exp(-x)", 745, 746, HP.exp(-745) - HP.exp(-746), "closed form e^-745 - e^-746, at the subnormal edge"),
+        ("1e-320*x^2", 0, 3, HP.mpf("9e-320"), "closed form 9e-320, subnormal"),
+    ],
+)
 @pytest.mark.parametrize("backend", [None, MpmathArithmetic])
 def test_results_below_the_float_range_are_enclosed(integrand, a, b, exact, source, backend) -> None:
     """Regression: the reference backend once rounded sub-float-range enclosures to nearest ([0, 0], bound 0)."""
@@ -142,15 +160,31 @@ def test_results_below_the_float_range_are_enclosed(integrand, a, b, exact, sour
     assert math.copysign(1, low) > 0 or low < 0, "a zero bound prints as 0, never -0"
 
 
-@pytest.mark.parametrize("integrand, a, b, tolerance, exact, most_nodes, source", [
-    ("min(x, x)", 0, 1, 1e-8, HP.mpf(1) / 2, 50, "closed form 1/2; min(u, u) is u, no kink"),
-    ("max(sin(x), sin(x))", 0, "pi", 1e-8, HP.mpf(2), 2_000, "closed form 2"),
-    ("(1-cos(x))/x^2", "1e-8", 1, 1e-10,
-     HP.quad(lambda t: (1 - HP.cos(t)) / t ** 2, [HP.mpf("1e-8"), 1]), 10_000,
-     "mpmath quad at 110 digits; the first panel's enclosure is about 1e10 wide"),
-    ("tan(x)", 1, "1.57079632679", 1e-8, -HP.log(HP.cos(HP.mpf("1.57079632679"))) + HP.log(HP.cos(1)), 20_000,
-     "closed form -log cos x, next to the pole at pi/2"),
-])
+@pytest.mark.parametrize(
+    "integrand, a, b, tolerance, exact, most_nodes, source",
+    [
+        ("min(x, x)", 0, 1, 1e-8, HP.mpf(1) / 2, 50, "closed form 1/2; min(u, u) is u, no kink"),
+        ("max(sin(x), sin(x))", 0, "pi", 1e-8, HP.mpf(2), 2_000, "closed form 2"),
+        (
+            "(1-cos(x))/x^2",
+            "1e-8",
+            1,
+            1e-10,
+            HP.quad(lambda t: (1 - HP.cos(t)) / t**2, [HP.mpf("1e-8"), 1]),
+            10_000,
+            "mpmath quad at 110 digits; the first panel's enclosure is about 1e10 wide",
+        ),
+        (
+            "tan(x)",
+            1,
+            "1.57079632679",
+            1e-8,
+            -HP.log(HP.cos(HP.mpf("1.57079632679"))) + HP.log(HP.cos(1)),
+            20_000,
+            "closed form -log cos x, next to the pole at pi/2",
+        ),
+    ],
+)
 def test_once_slow_paths_take_few_nodes(integrand, a, b, tolerance, exact, most_nodes, source) -> None:
     """Regression: these ran to the deadline or took tens of thousands of nodes (a running float sum kept the
     rounding error of a removed first panel; min(x, x) was a kink of zero width on every panel). Node counts,

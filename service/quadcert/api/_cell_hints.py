@@ -32,13 +32,18 @@ def hint(query_string: bytes, field: str | None) -> str:
     """A sentence to add to an error's detail when the field's raw text shows a typical mistake, else ''."""
     if field and field.startswith("parameters"):
         field = "parameter"  # the engine names the parameter; the URL key is parameter=
-    keys = [field] if field else ["integrand", "lower_limit", "upper_limit", "tolerance", "relative_tolerance",
-                                  "parameter"]
+    keys = (
+        [field]
+        if field
+        else ["integrand", "lower_limit", "upper_limit", "tolerance", "relative_tolerance", "parameter"]
+    )
     for key in keys:
         for raw in raw_values(query_string, key):
             if "+" in raw:
-                return (" In a URL a raw + means a space: write + as %2B (for example x%5E2%2B1 for x^2+1, "
-                        "1.0E%2B2 for 1.0E+2).")
+                return (
+                    " In a URL a raw + means a space: write + as %2B (for example x%5E2%2B1 for x^2+1, "
+                    "1.0E%2B2 for 1.0E+2)."
+                )
             if key == "parameter" and _TWO_PARAMETERS.match(raw):
                 return " Give each parameter its own parameter= (parameter=k:2&parameter=x0:5)."
             if _COMMA_DECIMAL.search(raw):
@@ -51,5 +56,8 @@ def refuse_unknown_keys(keys: list[str], known: tuple[str, ...]) -> None:
         if key not in known:
             close = difflib.get_close_matches(key, known, n=1, cutoff=0.5)
             suggestion = f"; did you mean {close[0]!r}?" if close else ""
-            raise InvalidInput(f"unknown query key {key!r}{suggestion} The keys are {', '.join(known)}",
-                               code="unknown_query_key", field=key)
+            raise InvalidInput(
+                f"unknown query key {key!r}{suggestion} The keys are {', '.join(known)}",
+                code="unknown_query_key",
+                field=key,
+            )

@@ -60,10 +60,18 @@ class Computation:
         formula = parse(body["integrand"], variable=body.get("variable", "x"), parameters=tuple(values))
         lower = parse_limit(body["lower_limit"], "lower_limit", tuple(values))
         upper = parse_limit(body["upper_limit"], "upper_limit", tuple(values))
-        return {"integrand": formula.text, "variable": formula.variable, "lower": lower.text, "upper": upper.text,
-                "parameters": {k: _fraction_text(v) for k, v in sorted(values.items())},
-                **{k: _exact_text(body.get(k)) for k in ("tolerance", "relative_tolerance", "max_nodes",
-                                                         "include_mesh", "claimed_value") if k in body}}
+        return {
+            "integrand": formula.text,
+            "variable": formula.variable,
+            "lower": lower.text,
+            "upper": upper.text,
+            "parameters": {k: _fraction_text(v) for k, v in sorted(values.items())},
+            **{
+                k: _exact_text(body.get(k))
+                for k in ("tolerance", "relative_tolerance", "max_nodes", "include_mesh", "claimed_value")
+                if k in body
+            },
+        }
 
     def _engine_request(self, kind: str, body: dict[str, Any], deadline: float) -> dict[str, Any]:
         request = {k: v for k, v in body.items() if v is not None}
@@ -74,8 +82,16 @@ class Computation:
                 request["max_mesh_panels"] = self.settings.max_mesh_panels
         return request
 
-    async def _run(self, kind: str, body: dict[str, Any], deadline: float, wait: float, context: dict[str, Any],
-                   group: str | None = None, compute: float | None = None) -> tuple[Answer, str | None]:
+    async def _run(
+        self,
+        kind: str,
+        body: dict[str, Any],
+        deadline: float,
+        wait: float,
+        context: dict[str, Any],
+        group: str | None = None,
+        compute: float | None = None,
+    ) -> tuple[Answer, str | None]:
         try:
             if len(body.get("integrand", "")) > _INLINE_PARSE_CHARS:  # long text: parse off the event loop
                 canonical = await asyncio.get_running_loop().run_in_executor(_PARSER, self.canonical, body)
@@ -90,8 +106,14 @@ class Computation:
             return (200, {**cached, "cached": True, "compute_seconds": 0.0}), key
         started = time.perf_counter()
         try:
-            answer = await self.pool.run(kind, self._engine_request(kind, body, compute or deadline), deadline + 1.0,
-                                         wait, group=group, compute_seconds=None if compute is None else compute + 1.0)
+            answer = await self.pool.run(
+                kind,
+                self._engine_request(kind, body, compute or deadline),
+                deadline + 1.0,
+                wait,
+                group=group,
+                compute_seconds=None if compute is None else compute + 1.0,
+            )
         except ServiceError as error:
             self.metrics.results.labels(error.code).inc()
             problem = problem_body(error.code, str(error), **context)
@@ -100,8 +122,9 @@ class Computation:
         if "error" in answer:
             self.metrics.results.labels("refused").inc()
             if answer["error"]["code"] == "internal_error":
-                log.error("engine failure", extra={"detail": answer["error"]["detail"],
-                                                   "trace": answer["error"].get("trace")})
+                log.error(
+                    "engine failure", extra={"detail": answer["error"]["detail"], "trace": answer["error"].get("trace")}
+                )
                 answer["error"].pop("trace", None)
             problem = from_engine_error(answer["error"], **context)
             return (problem["status"], problem), key
@@ -110,9 +133,15 @@ class Computation:
         return (200, result), key
 
     # -- integrals ---------------------------------------------------------------------------
-    async def integral(self, body: dict[str, Any], context: dict[str, Any], wait: float = 0.0,
-                       deadline: float | None = None, group: str | None = None,
-                       compute: float | None = None) -> tuple[Answer, str | None]:
+    async def integral(
+        self,
+        body: dict[str, Any],
+        context: dict[str, Any],
+        wait: float = 0.0,
+        deadline: float | None = None,
+        group: str | None = None,
+        compute: float | None = None,
+    ) -> tuple[Answer, str | None]:
         """One integral. ``deadline`` (seconds from now) covers queueing and computing; a batch item also
         passes ``compute`` (its own engine time), ``wait`` (patience for queue room) and its batch's ``group``."""
         deadline = deadline or self.settings.request_deadline_seconds
@@ -151,4 +180,3 @@ def _problem_args(error: dict[str, Any]) -> dict[str, Any]:
     if error.get("location"):
         args["location"] = tuple(error["location"])
     return args
-

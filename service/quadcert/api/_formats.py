@@ -8,8 +8,12 @@ from xml.sax.saxutils import escape
 from ..quadrature import bound_text
 
 FIELDS = ("value", "error_bound", "low", "high", "nodes")
-MEDIA_TYPES = {"text": "text/plain; charset=utf-8", "csv": "text/csv; charset=utf-8",
-               "xml": "application/xml; charset=utf-8", "json": "application/json"}
+MEDIA_TYPES = {
+    "text": "text/plain; charset=utf-8",
+    "csv": "text/csv; charset=utf-8",
+    "xml": "application/xml; charset=utf-8",
+    "json": "application/json",
+}
 
 
 def number_text(value: float | int) -> str:
@@ -22,9 +26,13 @@ def number_text(value: float | int) -> str:
 def field_values(result: dict[str, Any]) -> dict[str, str]:
     """Bounds printed outward (low down, high and error bound up), each still reading back as its float."""
     low, high = result["enclosure"]
-    return {"value": number_text(result["value"]), "error_bound": bound_text(float(result["error_bound"]), up=True),
-            "low": bound_text(float(low), up=False), "high": bound_text(float(high), up=True),
-            "nodes": str(result["nodes"])}
+    return {
+        "value": number_text(result["value"]),
+        "error_bound": bound_text(float(result["error_bound"]), up=True),
+        "low": bound_text(float(low), up=False),
+        "high": bound_text(float(high), up=True),
+        "nodes": str(result["nodes"]),
+    }
 
 
 def render(result: dict[str, Any], fmt: str, field: str | None) -> str:
@@ -43,6 +51,8 @@ def render(result: dict[str, Any], fmt: str, field: str | None) -> str:
 def render_problem(body: dict[str, Any], fmt: str) -> str:
     line = f"error {body['status']} {body['code']}: {body['detail']}".replace("\r", " ").replace("\n", " ")
     if fmt == "xml":
-        return (f'<?xml version="1.0" encoding="UTF-8"?><problem><status>{body["status"]}</status>'
-                f"<code>{escape(body['code'])}</code><detail>{escape(body['detail'])}</detail></problem>")
+        return (
+            f'<?xml version="1.0" encoding="UTF-8"?><problem><status>{body["status"]}</status>'
+            f"<code>{escape(body['code'])}</code><detail>{escape(body['detail'])}</detail></problem>"
+        )
     return line

@@ -39,8 +39,12 @@ def _problem_bytes(status: int, code: str, detail: str, retry_after: int | None 
     body = problem_body(code, detail)
     body["status"] = status
     payload = json.dumps(body).encode()
-    head = [b"HTTP/1.1 %d %s" % (status, _REASONS[status]), b"content-type: " + PROBLEM_MEDIA_TYPE.encode(),
-            b"content-length: %d" % len(payload), b"connection: close"]
+    head = [
+        b"HTTP/1.1 %d %s" % (status, _REASONS[status]),
+        b"content-type: " + PROBLEM_MEDIA_TYPE.encode(),
+        b"content-length: %d" % len(payload),
+        b"connection: close",
+    ]
     if retry_after is not None:
         head.append(b"retry-after: %d" % retry_after)
     return b"\r\n".join(head) + b"\r\n\r\n" + payload
@@ -58,17 +62,22 @@ def guarded_protocol(read_timeout: float, max_connections: int = 0) -> type[Http
             self._arm()
             limit = max_connections or default_max_connections()
             if len(self.connections) > limit and not self._evict_one():
-                self._refuse(503, "too_many_connections",
-                             f"the server holds {limit} connections; retry shortly", retry_after=1)
+                self._refuse(
+                    503, "too_many_connections", f"the server holds {limit} connections; retry shortly", retry_after=1
+                )
 
         def _evict_one(self) -> bool:
-            waiting = [c for c in self.connections  # still receiving a request: silent, or a slow body
-                       if c is not self and isinstance(c, GuardedProtocol) and c._read_timer is not None]
+            waiting = [
+                c
+                for c in self.connections  # still receiving a request: silent, or a slow body
+                if c is not self and isinstance(c, GuardedProtocol) and c._read_timer is not None
+            ]
             if not waiting:
                 return False
             oldest = min(waiting, key=lambda c: c._opened)
-            oldest._refuse(408, "request_timeout", "the request did not arrive in time; the connection was "
-                                                   "closed to make room")
+            oldest._refuse(
+                408, "request_timeout", "the request did not arrive in time; the connection was closed to make room"
+            )
             return True
 
         def _arm(self) -> None:
@@ -109,9 +118,13 @@ def guarded_protocol(read_timeout: float, max_connections: int = 0) -> type[Http
             super().connection_lost(exc)
 
         def send_400_response(self, msg: str) -> None:
-            self._refuse(400, "malformed_request", f"{msg.rstrip('.')}: the bytes are not an HTTP/1.1 request "
-                                                   "this server can read (a request line or headers beyond "
-                                                   "the parser's limits also end here)")
+            self._refuse(
+                400,
+                "malformed_request",
+                f"{msg.rstrip('.')}: the bytes are not an HTTP/1.1 request "
+                "this server can read (a request line or headers beyond "
+                "the parser's limits also end here)",
+            )
 
     return GuardedProtocol
 

@@ -22,8 +22,11 @@ def _error(error: Exception) -> dict[str, Any]:
             # JSON has no infinity: a tail's location is the text "inf" or "-inf"
             payload["location"] = [v if math.isfinite(v) else ("inf" if v > 0 else "-inf") for v in error.location]
         return payload
-    return {"code": "internal_error", "detail": f"{type(error).__name__}: {error}",
-            "trace": traceback.format_exc(limit=8)}
+    return {
+        "code": "internal_error",
+        "detail": f"{type(error).__name__}: {error}",
+        "trace": traceback.format_exc(limit=8),
+    }
 
 
 def run_integral(request: dict[str, Any]) -> dict[str, Any]:
@@ -31,9 +34,12 @@ def run_integral(request: dict[str, Any]) -> dict[str, Any]:
     limit = request.pop("max_mesh_panels", None)
     result = integrate(**request)
     if limit is not None and result.mesh is not None and len(result.mesh) > limit:
-        raise InvalidInput(f"the mesh has {len(result.mesh)} panels, more than the {limit} an answer may carry; "
-                           "ask without include_mesh, or with a looser tolerance", code="mesh_too_large",
-                           field="include_mesh")
+        raise InvalidInput(
+            f"the mesh has {len(result.mesh)} panels, more than the {limit} an answer may carry; "
+            "ask without include_mesh, or with a looser tolerance",
+            code="mesh_too_large",
+            field="include_mesh",
+        )
     # the answer's final shape, bounds printed outward, built here in the worker, not on the event loop
     return integral_body(result, request)
 
@@ -54,7 +60,10 @@ def run_sleep(request: dict[str, Any]) -> dict[str, Any]:  # used by fault tests
 
 
 JOBS: dict[str, Callable[[dict[str, Any]], dict[str, Any]]] = {
-    "integral": run_integral, "check": run_check, "plan": run_plan, "sleep": run_sleep,
+    "integral": run_integral,
+    "check": run_check,
+    "plan": run_plan,
+    "sleep": run_sleep,
 }
 
 

@@ -14,7 +14,9 @@ class JsonFormatter(logging.Formatter):
     def format(self, record: logging.LogRecord) -> str:
         entry: dict[str, Any] = {
             "time": time.strftime("%Y-%m-%dT%H:%M:%S", time.gmtime(record.created)) + f".{int(record.msecs):03d}Z",
-            "level": record.levelname.lower(), "logger": record.name, "message": record.getMessage(),
+            "level": record.levelname.lower(),
+            "logger": record.name,
+            "message": record.getMessage(),
         }
         entry.update({k: v for k, v in vars(record).items() if k not in _RESERVED and not k.startswith("_")})
         if record.exc_info:

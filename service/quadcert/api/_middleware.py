@@ -23,8 +23,11 @@ _ALWAYS_OPEN = ("/healthz", "/readyz", "/metrics")
 
 async def _send_problem(send: Send, body: dict[str, Any], retry_after: int | None = None) -> None:
     payload = json.dumps(body).encode()
-    headers = [(b"content-type", PROBLEM_MEDIA_TYPE.encode()), (b"content-length", str(len(payload)).encode()),
-               *((k.lower().encode(), v.encode()) for k, v in problem_headers(body, retry_after).items())]
+    headers = [
+        (b"content-type", PROBLEM_MEDIA_TYPE.encode()),
+        (b"content-length", str(len(payload)).encode()),
+        *((k.lower().encode(), v.encode()) for k, v in problem_headers(body, retry_after).items()),
+    ]
     await send({"type": "http.response.start", "status": body["status"], "headers": headers})
     await send({"type": "http.response.body", "body": payload})
 
@@ -39,8 +42,9 @@ class BodyLimit:
         if scope["type"] != "http":
             return await self.app(scope, receive, send)
         declared = dict(scope.get("headers") or []).get(b"content-length")
-        too_large = problem_body("body_too_large", f"the request body exceeds {self.limit} bytes",
-                                 instance=scope.get("path"))
+        too_large = problem_body(
+            "body_too_large", f"the request body exceeds {self.limit} bytes", instance=scope.get("path")
+        )
         if declared is not None and declared.isdigit() and int(declared) > self.limit:
             return await _send_problem(send, too_large)
         seen = 0
@@ -96,8 +100,12 @@ class RequestContext:
             await send(message)
 
         if getattr(self.state, "draining", False) and path not in _ALWAYS_OPEN:
-            body = problem_body("shutting_down", "the service is shutting down; send new work elsewhere",
-                                instance=path, request_id=request_id)
+            body = problem_body(
+                "shutting_down",
+                "the service is shutting down; send new work elsewhere",
+                instance=path,
+                request_id=request_id,
+            )
             await _send_problem(send_with_id, body, retry_after=self.state.settings.retry_after_seconds)
         else:
             try:
@@ -106,8 +114,12 @@ class RequestContext:
                 log.exception("unhandled error", extra={"request_id": request_id, "path": path})
                 if started_response["sent"]:
                     raise  # half a response is out: only closing the connection is honest
-                body = problem_body("internal_error", "an internal error occurred; it has been logged",
-                                    instance=path, request_id=request_id)
+                body = problem_body(
+                    "internal_error",
+                    "an internal error occurred; it has been logged",
+                    instance=path,
+                    request_id=request_id,
+                )
                 await _send_problem(send_with_id, body)
         elapsed = time.perf_counter() - started
         route = scope.get("route")
@@ -116,5 +128,13 @@ class RequestContext:
         if metrics is not None:
             metrics.requests.labels(route_path, str(status_holder["status"])).inc()
             metrics.latency.labels(route_path).observe(elapsed)
-        log.info("request", extra={"request_id": request_id, "method": scope.get("method"), "path": path,
-                                   "status": status_holder["status"], "seconds": round(elapsed, 6)})
+        log.info(
+            "request",
+            extra={
+                "request_id": request_id,
+                "method": scope.get("method"),
+                "path": path,
+                "status": status_holder["status"],
+                "seconds": round(elapsed, 6),
+            },
+        )

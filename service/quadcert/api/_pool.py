@@ -68,8 +68,8 @@ def _worker_main(connection: multiprocessing.connection.Connection, backend: str
 class _Job:
     kind: str
     request: dict[str, Any]
-    expires_at: float          # loop time by which the caller needs the answer (queueing included)
-    compute_limit: float       # the longest the job may run once a worker takes it
+    expires_at: float  # loop time by which the caller needs the answer (queueing included)
+    compute_limit: float  # the longest the job may run once a worker takes it
     group: str
     enqueued_at: float
     future: asyncio.Future = field(repr=False)
@@ -134,7 +134,7 @@ class WorkerPool:
         self._queued = 0
         self._running: dict[int, _Job] = {}
         self._per_group: dict[str, int] = {}
-        self._served: dict[str, int] = {}   # jobs taken per group still holding admitted jobs
+        self._served: dict[str, int] = {}  # jobs taken per group still holding admitted jobs
         self._changed: asyncio.Condition | None = None
         self._workers: list[_Worker] = []
         self._tasks: list[asyncio.Task] = []
@@ -152,7 +152,8 @@ class WorkerPool:
         self._threads = ThreadPoolExecutor(max_workers=self.size + 2, thread_name_prefix="quadcert-pool")
         loop = asyncio.get_running_loop()
         self._workers = await loop.run_in_executor(
-            self._threads, lambda: [_Worker(self._context, self.backend) for _ in range(self.size)])
+            self._threads, lambda: [_Worker(self._context, self.backend) for _ in range(self.size)]
+        )
         self._tasks = [asyncio.create_task(self._serve(i)) for i in range(self.size)]
 
     async def close(self) -> None:
@@ -208,9 +209,15 @@ class WorkerPool:
         return [w.process.pid for w in self._workers if w.process.pid is not None]
 
     # -- submitting --------------------------------------------------------------------------
-    async def run(self, kind: str, request: dict[str, Any], deadline_seconds: float,
-                  wait_for_slot: float = 0.0, group: str | None = None,
-                  compute_seconds: float | None = None) -> dict[str, Any]:
+    async def run(
+        self,
+        kind: str,
+        request: dict[str, Any],
+        deadline_seconds: float,
+        wait_for_slot: float = 0.0,
+        group: str | None = None,
+        compute_seconds: float | None = None,
+    ) -> dict[str, Any]:
         """Run one job. ``deadline_seconds`` counts from now and covers the wait in the queue;
         ``compute_seconds`` caps the run itself (default: whatever is left); ``wait_for_slot`` is how long to
         wait for room instead of answering Saturated at once (batches); jobs of one ``group`` share the
@@ -221,9 +228,15 @@ class WorkerPool:
         group = group if group is not None else f"single-{next(self._singles)}"
         await self._admit(group, wait_for_slot)
         now = loop.time()
-        job = _Job(kind, request, now + deadline_seconds,
-                   deadline_seconds if compute_seconds is None else compute_seconds, group, now,
-                   loop.create_future())
+        job = _Job(
+            kind,
+            request,
+            now + deadline_seconds,
+            deadline_seconds if compute_seconds is None else compute_seconds,
+            group,
+            now,
+            loop.create_future(),
+        )
         self._pending += 1
         self._per_group[group] = self._per_group.get(group, 0) + 1
         try:
@@ -256,8 +269,9 @@ class WorkerPool:
         assert self._changed is not None
         try:
             async with self._changed:
-                await asyncio.wait_for(self._changed.wait_for(lambda: self.closed or self._has_room(group)),
-                                       timeout=patience)
+                await asyncio.wait_for(
+                    self._changed.wait_for(lambda: self.closed or self._has_room(group)), timeout=patience
+                )
         except asyncio.TimeoutError:
             raise Saturated("all workers are busy and the queue is full") from None
         if self.closed:
@@ -290,9 +304,12 @@ class WorkerPool:
                 continue
             left = job.expires_at - loop.time()
             if left <= 0:
-                job.future.set_exception(DeadlineExceeded(
-                    f"the request waited {loop.time() - job.enqueued_at:.3g} s in the queue and passed its "
-                    "deadline before a worker was free"))
+                job.future.set_exception(
+                    DeadlineExceeded(
+                        f"the request waited {loop.time() - job.enqueued_at:.3g} s in the queue and passed its "
+                        "deadline before a worker was free"
+                    )
+                )
                 continue
             self._running[index] = job
             try:

@@ -23,20 +23,35 @@ _BUSY = "The service cannot take the work now"
 #: code base can raise is here.
 PROBLEM_TYPES: dict[str, tuple[int, str, str]] = {
     # the request itself
-    "invalid_request": (422, "The request body does not match the schema",
-                        "A field is missing, has the wrong type, or is not known; 'errors' lists each one."),
-    "malformed_body": (400, "The request body is not JSON text", "Send a JSON object; 'detail' says where the "
-                       "text stopped being JSON."),
-    "malformed_request": (400, "The request is not HTTP this server can read",
-                          "The bytes were not an HTTP/1.1 request, or its request line or headers were too long."),
-    "request_timeout": (408, "The request did not arrive in time",
-                        "Headers and body must arrive whole within the server's read timeout."),
+    "invalid_request": (
+        422,
+        "The request body does not match the schema",
+        "A field is missing, has the wrong type, or is not known; 'errors' lists each one.",
+    ),
+    "malformed_body": (
+        400,
+        "The request body is not JSON text",
+        "Send a JSON object; 'detail' says where the text stopped being JSON.",
+    ),
+    "malformed_request": (
+        400,
+        "The request is not HTTP this server can read",
+        "The bytes were not an HTTP/1.1 request, or its request line or headers were too long.",
+    ),
+    "request_timeout": (
+        408,
+        "The request did not arrive in time",
+        "Headers and body must arrive whole within the server's read timeout.",
+    ),
     "body_too_large": (413, "The request body is too large", "Send less than the server's body limit."),
     "batch_too_large": (413, "Too many items in one batch", "Split the batch."),
     "not_found": (404, "No such resource", "See /openapi.json for the resources."),
     "method_not_allowed": (405, "Method not allowed on this resource", "The Allow header lists the methods."),
-    "unknown_query_key": (422, _INPUT, "The query has a key this endpoint does not read; the nearest known key "
-                          "is suggested."),
+    "unknown_query_key": (
+        422,
+        _INPUT,
+        "The query has a key this endpoint does not read; the nearest known key is suggested.",
+    ),
     "repeated_query_key": (422, _INPUT, "A query key is given twice; only parameter= may repeat."),
     # the formula
     "empty_formula": (422, _FORMULA, "The formula is empty."),
@@ -64,8 +79,11 @@ PROBLEM_TYPES: dict[str, tuple[int, str, str]] = {
     # the other values
     "invalid_input": (422, _INPUT, "A request value is unusable; 'field' names it."),
     "invalid_limit": (422, _INPUT, "A limit is not a number or a constant expression."),
-    "infinite_limit": (422, _INPUT, "This operation (a plan of uniform node counts) needs finite limits; "
-                       "integrals take inf and -inf."),
+    "infinite_limit": (
+        422,
+        _INPUT,
+        "This operation (a plan of uniform node counts) needs finite limits; integrals take inf and -inf.",
+    ),
     "limit_out_of_range": (422, _INPUT, "A limit is beyond ±1e300."),
     "invalid_tolerance": (422, _INPUT, "A tolerance is not a finite number above zero."),
     "tolerance_out_of_range": (422, _INPUT, "A tolerance is outside [1e-60, 1e300] (a relative one: below 1)."),
@@ -79,49 +97,81 @@ PROBLEM_TYPES: dict[str, tuple[int, str, str]] = {
     "backend_unavailable": (422, _INPUT, "The arithmetic backend asked for cannot run in this thread."),
     "invalid_csv": (422, _INPUT, "A CSV file's header lacks a required column."),
     "invalid_checks_file": (422, _INPUT, "A file of checks cannot be read or lacks a required key."),
-    "mesh_too_large": (422, "The mesh is too large to send", "Ask without include_mesh, or with a looser "
-                       "tolerance."),
+    "mesh_too_large": (422, "The mesh is too large to send", "Ask without include_mesh, or with a looser tolerance."),
     # certification
     "not_certifiable": (422, _CERTIFY, "The engine cannot certify this integral; 'detail' says why."),
-    "unbounded_near": (422, "The integrand may be unbounded or undefined near a point",
-                       "'location' is the interval where it could not be bounded."),
-    "undefined_at_point": (422, "The integrand is undefined at a point of the interval",
-                           "'location' is the point; the formula as written has no value there."),
-    "undefined_on_interval": (422, "The integrand is undefined on part of the interval",
-                              "A function's argument leaves its domain inside the limits."),
-    "outside_domain": (422, "The integrand is undefined on part of the interval",
-                       "A function's argument leaves its domain."),
-    "unbounded": (422, "The integrand may be unbounded or undefined near a point", "A division by zero or a "
-                  "pole."),
-    "divergent_integral": (422, "The integral diverges", "Proved: next to 'location' (a point, or ±inf) the "
-                           "integrand keeps one sign and is at least a multiple of a power that is not integrable; "
-                           "'detail' gives that minorant."),
-    "singularity_not_bounded": (422, "The integrand cannot be bounded next to a singular point",
-                                "No envelope rule applies at 'location'; 'detail' names the subexpression. "
-                                "Rewrite the formula, or split the interval there."),
-    "singularity_undecided": (422, "Convergence next to a singular point is undecided",
-                              "The best envelope found at 'location' is not integrable, and no minorant of one "
-                              "sign proves divergence."),
-    "tail_not_bounded": (422, "The integrand cannot be bounded in a tail", "No envelope rule applies towards "
-                         "'location' (±inf), or it decays too slowly for the tolerance."),
-    "tail_undecided": (422, "Convergence of a tail is undecided", "The best envelope found is not integrable and "
-                       "no minorant of one sign proves divergence; integrals that converge only conditionally, "
-                       "such as sin(x)/x on [0, inf), are refused."),
+    "unbounded_near": (
+        422,
+        "The integrand may be unbounded or undefined near a point",
+        "'location' is the interval where it could not be bounded.",
+    ),
+    "undefined_at_point": (
+        422,
+        "The integrand is undefined at a point of the interval",
+        "'location' is the point; the formula as written has no value there.",
+    ),
+    "undefined_on_interval": (
+        422,
+        "The integrand is undefined on part of the interval",
+        "A function's argument leaves its domain inside the limits.",
+    ),
+    "outside_domain": (
+        422,
+        "The integrand is undefined on part of the interval",
+        "A function's argument leaves its domain.",
+    ),
+    "unbounded": (422, "The integrand may be unbounded or undefined near a point", "A division by zero or a pole."),
+    "divergent_integral": (
+        422,
+        "The integral diverges",
+        "Proved: next to 'location' (a point, or ±inf) the "
+        "integrand keeps one sign and is at least a multiple of a power that is not integrable; "
+        "'detail' gives that minorant.",
+    ),
+    "singularity_not_bounded": (
+        422,
+        "The integrand cannot be bounded next to a singular point",
+        "No envelope rule applies at 'location'; 'detail' names the subexpression. "
+        "Rewrite the formula, or split the interval there.",
+    ),
+    "singularity_undecided": (
+        422,
+        "Convergence next to a singular point is undecided",
+        "The best envelope found at 'location' is not integrable, and no minorant of one sign proves divergence.",
+    ),
+    "tail_not_bounded": (
+        422,
+        "The integrand cannot be bounded in a tail",
+        "No envelope rule applies towards 'location' (±inf), or it decays too slowly for the tolerance.",
+    ),
+    "tail_undecided": (
+        422,
+        "Convergence of a tail is undecided",
+        "The best envelope found is not integrable and "
+        "no minorant of one sign proves divergence; integrals that converge only conditionally, "
+        "such as sin(x)/x on [0, inf), are refused.",
+    ),
     "arithmetic_fault": (422, _CERTIFY, "Interval arithmetic could not bound a value."),
     "magnitude_exceeded": (422, "A value in the computation is too large", "A value beyond 2^65536 arose."),
     "result_out_of_range": (422, "The integral is beyond the float64 range", "Scale the formula."),
     "degenerate_interval": (422, "The limits are too close to plan a mesh", "Widen the interval."),
     "plan_too_large": (422, "The plan needs too many intervals", "A uniform mesh would exceed the limit."),
-    "tolerance_not_met": (422, "The tolerance could not be certified within the budget",
-                          "The enclosure is rigorous but wider than asked; raise max_nodes or the tolerance."),
+    "tolerance_not_met": (
+        422,
+        "The tolerance could not be certified within the budget",
+        "The enclosure is rigorous but wider than asked; raise max_nodes or the tolerance.",
+    ),
     # the service
     "saturated": (503, _BUSY, "All workers are busy and the queue is full; retry after Retry-After."),
     "shutting_down": (503, "The service is shutting down", "Send the work to another replica."),
     "worker_lost": (503, "The computation's worker stopped", "Retry after Retry-After."),
     "too_many_connections": (503, _BUSY, "The server holds as many connections as it may; retry shortly."),
     "service_error": (503, _BUSY, "The computation could not run; retry."),
-    "deadline_exceeded": (504, "The computation passed its deadline", "In the queue or computing; raise the "
-                          "tolerance or split the interval."),
+    "deadline_exceeded": (
+        504,
+        "The computation passed its deadline",
+        "In the queue or computing; raise the tolerance or split the interval.",
+    ),
     "internal_error": (500, "Internal error", "A defect in quadcert; it has been logged with the request id."),
     # raised by the client and the CLI only, never sent by the service
     "service_unreachable": (0, "The service could not be reached", "No HTTP answer came; check the URL."),
@@ -140,11 +190,17 @@ def status_and_title(code: str) -> tuple[int, str]:
     return 422, _INPUT
 
 
-def problem_body(code: str, detail: str, *, instance: str | None = None,
-                 request_id: str | None = None, **extra: Any) -> dict[str, Any]:
+def problem_body(
+    code: str, detail: str, *, instance: str | None = None, request_id: str | None = None, **extra: Any
+) -> dict[str, Any]:
     status, title = status_and_title(code)
-    body: dict[str, Any] = {"type": f"/problems/{code}", "title": title, "status": status, "detail": detail,
-                            "code": code}
+    body: dict[str, Any] = {
+        "type": f"/problems/{code}",
+        "title": title,
+        "status": status,
+        "detail": detail,
+        "code": code,
+    }
     if instance:
         body["instance"] = instance
     if request_id:
@@ -162,12 +218,18 @@ def problem_headers(body: dict[str, Any], retry_after: int | None) -> dict[str, 
 
 
 def problem_response(body: dict[str, Any], retry_after: int | None = None) -> JSONResponse:
-    return ExactJSONResponse(body, status_code=body["status"], media_type=PROBLEM_MEDIA_TYPE,
-                             headers=problem_headers(body, retry_after))
+    return ExactJSONResponse(
+        body, status_code=body["status"], media_type=PROBLEM_MEDIA_TYPE, headers=problem_headers(body, retry_after)
+    )
 
 
 def from_engine_error(error: dict[str, Any], **context: Any) -> dict[str, Any]:
     """A worker's error dict (see _jobs) as a problem body."""
-    return problem_body(error["code"], error["detail"], column=error.get("column"),
-                        field=error.get("field"),
-                        location=tuple(error["location"]) if error.get("location") else None, **context)
+    return problem_body(
+        error["code"],
+        error["detail"],
+        column=error.get("column"),
+        field=error.get("field"),
+        location=tuple(error["location"]) if error.get("location") else None,
+        **context,
+    )

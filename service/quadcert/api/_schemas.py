@@ -22,11 +22,15 @@ def _json_number(value: Any) -> Decimal | int:
 
 #: a JSON number, kept as the exact decimal it spells
 Number = Annotated[Decimal | int, PlainValidator(_json_number), WithJsonSchema({"type": "number"})]
-Limit = Annotated[Number | Annotated[StrictStr, Field(max_length=512)],
-                  Field(description="A number, or text: an exact decimal such as \"0.1\" or a constant "
-                                    "expression such as \"pi/2\". JSON numbers are read as the decimal they spell. "
-                                    "\"inf\", \"-inf\", \"+inf\" or \"infinity\" (any case) is an infinite "
-                                    "limit: the tail is enclosed by a proved envelope.")]
+Limit = Annotated[
+    Number | Annotated[StrictStr, Field(max_length=512)],
+    Field(
+        description='A number, or text: an exact decimal such as "0.1" or a constant '
+        'expression such as "pi/2". JSON numbers are read as the decimal they spell. '
+        '"inf", "-inf", "+inf" or "infinity" (any case) is an infinite '
+        "limit: the tail is enclosed by a proved envelope."
+    ),
+]
 
 
 #: a closed interval [low, high] as two numbers
@@ -40,16 +44,24 @@ class _Strict(BaseModel):
 
 
 class IntegralRequest(_Strict):
-    integrand: Annotated[StrictStr, Field(max_length=4096, description="Formula in the variable (at most 4096 "
-                                          "characters)", examples=["exp(-x^2)"])]
+    integrand: Annotated[
+        StrictStr,
+        Field(max_length=4096, description="Formula in the variable (at most 4096 characters)", examples=["exp(-x^2)"]),
+    ]
     variable: Annotated[StrictStr, Field(max_length=64)] = "x"
     lower_limit: Limit
     upper_limit: Limit
-    tolerance: Annotated[Number, Field(description="Absolute tolerance on |exact − value|, > 0; read as the exact "
-                                               "decimal it spells", json_schema_extra={"default": 1e-8})] = Decimal("1e-8")
+    tolerance: Annotated[
+        Number,
+        Field(
+            description="Absolute tolerance on |exact − value|, > 0; read as the exact decimal it spells",
+            json_schema_extra={"default": 1e-8},
+        ),
+    ] = Decimal("1e-8")
     relative_tolerance: Number | None = Field(None, description="Also accept error <= this × |integral|")
-    parameters: dict[Annotated[str, Field(max_length=64)], Number | Annotated[StrictStr, Field(max_length=80)]] = \
-        Field(default_factory=dict, max_length=32)
+    parameters: dict[Annotated[str, Field(max_length=64)], Number | Annotated[StrictStr, Field(max_length=80)]] = Field(
+        default_factory=dict, max_length=32
+    )
     max_nodes: StrictInt | None = Field(None, description="Evaluation budget; the server default applies if absent")
     include_mesh: StrictBool = False
 
@@ -64,8 +76,9 @@ class PlanRequest(_Strict):
     lower_limit: Limit
     upper_limit: Limit
     tolerance: Annotated[Number, Field(json_schema_extra={"default": 1e-8})] = Decimal("1e-8")
-    parameters: dict[Annotated[str, Field(max_length=64)], Number | Annotated[StrictStr, Field(max_length=80)]] = \
-        Field(default_factory=dict, max_length=32)
+    parameters: dict[Annotated[str, Field(max_length=64)], Number | Annotated[StrictStr, Field(max_length=80)]] = Field(
+        default_factory=dict, max_length=32
+    )
 
 
 class BatchRequest(_Strict):
@@ -84,8 +97,11 @@ class IntegralResponse(BaseModel):
     enclosure: Pair = Field(description="Guaranteed to contain the exact integral")
     error_bound: float = Field(description="Guaranteed >= |exact − value|")
     tolerance: float
-    applied_tolerance: float | None = Field(None, description="The absolute bound the error bound was held to: "
-                                            "the tolerance, or relative_tolerance × |integral| where larger")
+    applied_tolerance: float | None = Field(
+        None,
+        description="The absolute bound the error bound was held to: "
+        "the tolerance, or relative_tolerance × |integral| where larger",
+    )
     tolerance_met: bool
     stop_reason: StopReason
     nodes: int

@@ -51,8 +51,9 @@ def create_app(settings: Settings | None = None) -> FastAPI:
 
     # the reference page at /docs is our own, self-contained (routers/reference.py): the stock one loads its
     # script from a CDN and shows a blank page offline
-    app = FastAPI(title="quadcert", version=__version__, description=DESCRIPTION, lifespan=lifespan,
-                  docs_url=None, redoc_url=None)
+    app = FastAPI(
+        title="quadcert", version=__version__, description=DESCRIPTION, lifespan=lifespan, docs_url=None, redoc_url=None
+    )
     app.state.settings = settings
     app.state.pool = pool
     app.state.metrics = metrics
@@ -86,23 +87,35 @@ def _plain_message(message: str) -> str:
 def _install_error_handlers(app: FastAPI) -> None:
     @app.exception_handler(RequestValidationError)
     async def invalid(request: Request, error: RequestValidationError):  # type: ignore[no-untyped-def]
-        errors = [{"location": [str(p) for p in e.get("loc", ())], "message": e.get("msg", ""),
-                   "type": e.get("type", "")} for e in error.errors()]
+        errors = [
+            {"location": [str(p) for p in e.get("loc", ())], "message": e.get("msg", ""), "type": e.get("type", "")}
+            for e in error.errors()
+        ]
         first = errors[0] if errors else {"location": [], "message": "invalid request"}
         if first.get("type") == "json_invalid":  # not JSON text at all: 400, with where the text went wrong
             raw = next(iter(error.errors()), {})
             reason = (raw.get("ctx") or {}).get("error", "")
             at = [p for p in raw.get("loc", ()) if isinstance(p, int)]
             where = f" at character {at[0]}" if at else ""
-            return problem_response(problem_body("malformed_body", f"the body is not JSON text{where}: {reason}",
-                                                 **_context(request)))
+            return problem_response(
+                problem_body("malformed_body", f"the body is not JSON text{where}: {reason}", **_context(request))
+            )
         where = _field_path(first["location"])
         if first.get("type") == "string_too_long" and where.endswith("integrand"):
-            body = problem_body("formula_too_long", f"{where}: the formula is longer than 4096 characters",
-                                field=where, **_context(request))
+            body = problem_body(
+                "formula_too_long",
+                f"{where}: the formula is longer than 4096 characters",
+                field=where,
+                **_context(request),
+            )
         else:
-            body = problem_body("invalid_request", f"{where or 'request'}: {_plain_message(first['message'])}",
-                                field=where or None, errors=errors, **_context(request))
+            body = problem_body(
+                "invalid_request",
+                f"{where or 'request'}: {_plain_message(first['message'])}",
+                field=where or None,
+                errors=errors,
+                **_context(request),
+            )
         if request.url.path == "/v1/integral" and request.query_params.get("format", "text") != "json":
             from .routers.integrals import _plain_problem
 
@@ -111,8 +124,9 @@ def _install_error_handlers(app: FastAPI) -> None:
 
     @app.exception_handler(StarletteHTTPException)
     async def http_error(request: Request, error: StarletteHTTPException):  # type: ignore[no-untyped-def]
-        code = {400: "malformed_body", 404: "not_found", 405: "method_not_allowed", 413: "body_too_large"}.get(error.status_code,
-                                                                                        "invalid_request")
+        code = {400: "malformed_body", 404: "not_found", 405: "method_not_allowed", 413: "body_too_large"}.get(
+            error.status_code, "invalid_request"
+        )
         body = problem_body(code, str(error.detail), **_context(request))
         body["status"] = error.status_code
         response = problem_response(body)
@@ -127,6 +141,7 @@ def _openapi(app: FastAPI) -> dict[str, Any]:
         return app.openapi_schema
     schema = get_openapi(title=app.title, version=app.version, description=app.description, routes=app.routes)
     schema.setdefault("components", {}).setdefault("schemas", {})["Problem"] = Problem.model_json_schema(
-        ref_template="#/components/schemas/{model}")
+        ref_template="#/components/schemas/{model}"
+    )
     app.openapi_schema = schema
     return schema

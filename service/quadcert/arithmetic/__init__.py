@@ -8,6 +8,19 @@ from ._backend import MAX_PRECISION, MIN_PRECISION, Arithmetic, MpmathArithmetic
 from ._flint_backend import FlintArithmetic, claim_flint_context, flint_context_claimed, release_flint_context
 from ._interval import Interval, fraction_down, fraction_up, interval_text, shown, to_fraction
 
-__all__ = ["MAX_PRECISION", "MIN_PRECISION", "Arithmetic", "FlintArithmetic", "Interval", "MpmathArithmetic",
-           "claim_flint_context", "fraction_down", "fraction_up", "flint_context_claimed", "release_flint_context", "to_fraction",
-           "interval_text", "shown"]
+__all__ = [
+    "MAX_PRECISION",
+    "MIN_PRECISION",
+    "Arithmetic",
+    "FlintArithmetic",
+    "Interval",
+    "MpmathArithmetic",
+    "claim_flint_context",
+    "fraction_down",
+    "fraction_up",
+    "flint_context_claimed",
+    "release_flint_context",
+    "to_fraction",
+    "interval_text",
+    "shown",
+]

@@ -54,9 +54,21 @@ class Arithmetic(Protocol):
 
 
 _FUNCTIONS: dict[str, Callable[[Interval, int], Interval]] = {
-    "sqrt": kernels.sqrt, "exp": kernels.exp, "log": kernels.log, "log10": kernels.log10, "sin": kernels.sin, "cos": kernels.cos,
-    "tan": kernels.tan, "asin": kernels.asin, "acos": kernels.acos, "atan": kernels.atan, "sinh": kernels.sinh, "cosh": kernels.cosh,
-    "tanh": kernels.tanh, "erf": kernels.erf, "abs": lambda a, _prec: kernels.abs_(a),
+    "sqrt": kernels.sqrt,
+    "exp": kernels.exp,
+    "log": kernels.log,
+    "log10": kernels.log10,
+    "sin": kernels.sin,
+    "cos": kernels.cos,
+    "tan": kernels.tan,
+    "asin": kernels.asin,
+    "acos": kernels.acos,
+    "atan": kernels.atan,
+    "sinh": kernels.sinh,
+    "cosh": kernels.cosh,
+    "tanh": kernels.tanh,
+    "erf": kernels.erf,
+    "abs": lambda a, _prec: kernels.abs_(a),
 }
 _CONSTANTS = {"pi": kernels.pi, "e": kernels.e}
 
@@ -75,8 +87,9 @@ class MpmathArithmetic:
 
     def __init__(self, prec: int) -> None:
         if not MIN_PRECISION <= prec <= MAX_PRECISION:
-            raise InvalidInput(f"precision {prec} is outside [{MIN_PRECISION}, {MAX_PRECISION}] bits",
-                               code="invalid_precision")
+            raise InvalidInput(
+                f"precision {prec} is outside [{MIN_PRECISION}, {MAX_PRECISION}] bits", code="invalid_precision"
+            )
         self.prec = prec
         self.zero = kernels.from_int(0)
         self.one = kernels.from_int(1)

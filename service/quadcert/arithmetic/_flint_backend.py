@@ -74,20 +74,22 @@ def _log2_magnitude(x: arb) -> int:
 def _even_power(a: arb, n: int) -> arb:
     """a^n for even n from the endpoints: a ball's own power loses the fact that the result is >= 0."""
     if a.is_exact():
-        return a ** n
+        return a**n
     low, high = arb(a.lower()), arb(a.upper())
     if a.contains(0):
         return arb(0).union(abs(low).max(abs(high)) ** n)
-    return (low ** n).union(high ** n)
+    return (low**n).union(high**n)
 
 
 def _monotone(method: str, increasing: bool = True) -> Callable[[arb], arb]:
     """f(a) from f at the two endpoints: tighter than f of a wide ball, and it keeps signs (exp(a) > 0)."""
+
     def apply(a: arb) -> arb:
         if a.is_exact():
             return getattr(a, method)()
         low, high = getattr(arb(a.lower()), method)(), getattr(arb(a.upper()), method)()
         return low.union(high)
+
     return apply
 
 
@@ -122,8 +124,11 @@ class FlintArithmetic:
 
     def __init__(self, prec: int) -> None:
         if not flint_context_claimed():
-            raise InvalidInput("the flint backend needs flint's context claimed by this thread "
-                               "(claim_flint_context(), in a single-threaded process)", code="backend_unavailable")
+            raise InvalidInput(
+                "the flint backend needs flint's context claimed by this thread "
+                "(claim_flint_context(), in a single-threaded process)",
+                code="backend_unavailable",
+            )
         self.prec = prec
         flint.ctx.prec = max(prec, 53)  # the owning thread only; see module docstring
         self.zero = arb(0)
@@ -182,8 +187,9 @@ class FlintArithmetic:
             top = self.function("exp", b * _finite(arb(a.upper()).log(), "log")) if a.upper() > 0 else arb(0)
             return arb(0).union(top)
         certain = a < 0 or (a <= 0 and not a.contains(0))
-        raise DomainViolation(f"a power with a non-integer exponent needs a positive base, got {_text(a)}",
-                              certain=bool(certain))
+        raise DomainViolation(
+            f"a power with a non-integer exponent needs a positive base, got {_text(a)}", certain=bool(certain)
+        )
 
     def function(self, name: str, a: arb) -> arb:
         result = _FUNCTIONS[name](a)
@@ -230,7 +236,7 @@ class FlintArithmetic:
         return self.exact(low).union(self.exact(high))
 
     def width(self, a: arb) -> float:
-        return float(a.rad()) * 2 * (1 + 2.0 ** -40) if a.is_finite() else math.inf
+        return float(a.rad()) * 2 * (1 + 2.0**-40) if a.is_finite() else math.inf
 
 
 def _positive(name: str, a: arb, allow_zero: bool) -> None:
@@ -306,11 +312,24 @@ def _hyperbolic(method: str) -> Callable[[arb], arb]:
         if abs(a) > _EXP_LIMIT:
             raise MagnitudeExceeded(f"hyperbolic function of {_text(a)} is too large to compute with")
         return ends(a)
+
     return apply
 
 
 _FUNCTIONS: dict[str, Callable[[arb], Any]] = {
-    "sqrt": _sqrt, "exp": _exp, "log": _log, "log10": _log10, "sin": arb.sin, "cos": arb.cos, "tan": _tan,
-    "asin": _asin, "acos": _acos, "atan": _monotone("atan"), "sinh": _hyperbolic("sinh"), "cosh": _cosh,
-    "tanh": _monotone("tanh"), "erf": _monotone("erf"), "abs": _abs,
+    "sqrt": _sqrt,
+    "exp": _exp,
+    "log": _log,
+    "log10": _log10,
+    "sin": arb.sin,
+    "cos": arb.cos,
+    "tan": _tan,
+    "asin": _asin,
+    "acos": _acos,
+    "atan": _monotone("atan"),
+    "sinh": _hyperbolic("sinh"),
+    "cosh": _cosh,
+    "tanh": _monotone("tanh"),
+    "erf": _monotone("erf"),
+    "abs": _abs,
 }

@@ -50,8 +50,8 @@ class Interval(NamedTuple):
         return f"Interval[{lo}, {hi}]"
 
 
-_MIN_EXPONENT = -1074   # the weight of the last bit of the smallest subnormal float64
-_MAX_TOP = 1024          # every finite float64 is below 2**1024
+_MIN_EXPONENT = -1074  # the weight of the last bit of the smallest subnormal float64
+_MAX_TOP = 1024  # every finite float64 is below 2**1024
 
 
 def binary_directed(negative: bool, mantissa: int, exponent: int, up: bool) -> float:

@@ -28,8 +28,8 @@ from ._interval import ONE, ZERO, Interval, Raw, interval_text
 
 EXTRA_BITS = 24
 GUARD_BITS = 8
-MAX_MAGNITUDE_BITS = 1 << 16       # |values| stay below 2**65536
-EXP_ARGUMENT_LIMIT = 40000         # exp(40000) ~ 2**57708, inside the magnitude cap
+MAX_MAGNITUDE_BITS = 1 << 16  # |values| stay below 2**65536
+EXP_ARGUMENT_LIMIT = 40000  # exp(40000) ~ 2**57708, inside the magnitude cap
 FLOOR, CEILING, NEAREST = libmp.round_floor, libmp.round_ceiling, libmp.round_nearest
 
 _lt, _le, _gt, _ge = libmp.mpf_lt, libmp.mpf_le, libmp.mpf_gt, libmp.mpf_ge
@@ -76,6 +76,7 @@ def _greatest(values: list[Raw]) -> Raw:
 
 
 # -- exact conversions and basic arithmetic -----------------------------------------------------
+
 
 def from_fraction(value: Fraction, prec: int) -> Interval:
     n, d = value.numerator, value.denominator
@@ -134,8 +135,9 @@ def sqr(a: Interval, prec: int) -> Interval:
     if a.lo[0] == 0:  # lo >= 0
         return Interval(_check_magnitude(lo2), _check_magnitude(hi2))
     if _le(a.hi, ZERO):
-        return Interval(_check_magnitude(_mul(a.hi, a.hi, prec, FLOOR)),
-                        _check_magnitude(_mul(a.lo, a.lo, prec, CEILING)))
+        return Interval(
+            _check_magnitude(_mul(a.hi, a.hi, prec, FLOOR)), _check_magnitude(_mul(a.lo, a.lo, prec, CEILING))
+        )
     return Interval(ZERO, _check_magnitude(_max(_mul(a.lo, a.lo, prec, CEILING), hi2)))
 
 
@@ -195,6 +197,7 @@ def ln10(prec: int) -> Interval:
 
 
 # -- elementary functions ----------------------------------------------------------------------
+
 
 def exp(a: Interval, prec: int) -> Interval:
     if _gt(a.hi, _EXP_LIMIT):
@@ -313,10 +316,12 @@ def cosh(a: Interval, prec: int) -> Interval:
 
 def _saturating(fn: PointFunction, limit: Raw) -> PointFunction:
     """An odd function bounded by 1 in magnitude, clamped far out where 1 is within rounding."""
+
     def clamped(x: Raw, wp: int, rnd: str) -> Raw:
         if _gt(_abs(x), limit):
             x = limit if x[0] == 0 else _neg(limit)
         return fn(x, wp, rnd)
+
     return clamped
 
 
@@ -384,7 +389,9 @@ def pow_real(a: Interval, b: Interval, prec: int) -> Interval:
         top = exp(mul(b, log(Interval.point(a.hi), prec), prec), prec)
         return Interval(ZERO, top.hi)
     if _lt(a.hi, ZERO) or (a.hi == ZERO and _lt(a.lo, ZERO)):
-        raise DomainViolation(f"a power with a non-integer exponent needs a positive base, got {_text(a)}",
-                              certain=True)
-    raise DomainViolation(f"a power with a non-integer exponent needs a positive base; the base reaches "
-                          f"{_text(a)}", certain=False)
+        raise DomainViolation(
+            f"a power with a non-integer exponent needs a positive base, got {_text(a)}", certain=True
+        )
+    raise DomainViolation(
+        f"a power with a non-integer exponent needs a positive base; the base reaches {_text(a)}", certain=False
+    )

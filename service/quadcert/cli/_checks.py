@@ -31,8 +31,18 @@ from typing import Any
 
 from ..errors import InvalidInput
 
-FIELDS = ("name", "integrand", "lower_limit", "upper_limit", "claimed_value", "tolerance", "variable",
-          "relative_tolerance", "max_nodes", "parameters")
+FIELDS = (
+    "name",
+    "integrand",
+    "lower_limit",
+    "upper_limit",
+    "claimed_value",
+    "tolerance",
+    "variable",
+    "relative_tolerance",
+    "max_nodes",
+    "parameters",
+)
 REQUIRED = ("integrand", "lower_limit", "upper_limit", "claimed_value", "tolerance")
 PARAMETER_PREFIX = "parameter."
 
@@ -45,8 +55,10 @@ def read_checks(path: str) -> list[dict[str, Any]]:
     for number, item in enumerate(checks, start=1):
         unknown = set(item) - set(FIELDS)
         if unknown:
-            raise InvalidInput(f"check {number}: unknown key(s) {', '.join(sorted(unknown))}; the keys are "
-                               f"{', '.join(FIELDS)}", code="invalid_checks_file")
+            raise InvalidInput(
+                f"check {number}: unknown key(s) {', '.join(sorted(unknown))}; the keys are {', '.join(FIELDS)}",
+                code="invalid_checks_file",
+            )
         missing = [key for key in REQUIRED if item.get(key) in (None, "")]
         if missing:
             raise InvalidInput(f"check {number}: missing {', '.join(missing)}", code="invalid_checks_file")
@@ -80,7 +92,7 @@ def _read_csv(path: str) -> list[dict[str, Any]]:
             if key is None or value is None or not value.strip():
                 continue
             if key.startswith(PARAMETER_PREFIX):
-                parameters[key[len(PARAMETER_PREFIX):]] = value.strip()
+                parameters[key[len(PARAMETER_PREFIX) :]] = value.strip()
             else:
                 item[key.strip()] = value.strip()
         if parameters:

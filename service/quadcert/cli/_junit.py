@@ -20,11 +20,19 @@ def write_report(path: str, cases: list[CaseOutcome], suite: str = "quadcert") -
     failures = sum(c.verdict == "fail" for c in cases)
     errors = sum(c.verdict in ("undecided", "error") for c in cases)
     root = ET.Element("testsuites", name=suite, tests=str(len(cases)), failures=str(failures), errors=str(errors))
-    node = ET.SubElement(root, "testsuite", name=suite, tests=str(len(cases)), failures=str(failures),
-                         errors=str(errors), time=f"{sum(c.seconds for c in cases):.6f}")
+    node = ET.SubElement(
+        root,
+        "testsuite",
+        name=suite,
+        tests=str(len(cases)),
+        failures=str(failures),
+        errors=str(errors),
+        time=f"{sum(c.seconds for c in cases):.6f}",
+    )
     for case in cases:
-        element = ET.SubElement(node, "testcase", name=case.name, classname=f"{suite}.check",
-                                time=f"{case.seconds:.6f}")
+        element = ET.SubElement(
+            node, "testcase", name=case.name, classname=f"{suite}.check", time=f"{case.seconds:.6f}"
+        )
         if case.verdict == "fail":
             ET.SubElement(element, "failure", message=case.message, type="certified_fail").text = case.message
         elif case.verdict in ("undecided", "error"):

@@ -16,8 +16,7 @@ import simplejson
 
 from .. import __version__
 from ..errors import InvalidInput, ProblemError, QuadcertError
-from ..quadrature import (CheckResult, IntegralResult, Plan, bound_text, certified_digits, check,
-                          integrate, plan, shown)
+from ..quadrature import CheckResult, IntegralResult, Plan, bound_text, certified_digits, check, integrate, plan, shown
 from ..results import check_body, integral_body, plan_body
 from . import _junit, _table
 
@@ -49,19 +48,25 @@ def _common(parser: argparse.ArgumentParser, tolerance_required: bool = False) -
     parser.add_argument("formula", help="integrand, e.g. 'exp(-x^2)'")
     parser.add_argument("lower", help="lower limit: a number or a constant expression such as pi/2")
     parser.add_argument("upper", help="upper limit")
-    parser.add_argument("--tol", default=None if tolerance_required else "1e-8", required=tolerance_required,
-                        help="absolute tolerance, read as the exact decimal typed"
-                             + ("" if tolerance_required else " (default 1e-8)"))
+    parser.add_argument(
+        "--tol",
+        default=None if tolerance_required else "1e-8",
+        required=tolerance_required,
+        help="absolute tolerance, read as the exact decimal typed" + ("" if tolerance_required else " (default 1e-8)"),
+    )
     parser.add_argument("--var", default="x", help="name of the integration variable (default x)")
     parser.add_argument("--param", action="append", default=[], metavar="NAME=VALUE", help="a named parameter")
-    parser.add_argument("--url", help="use the service at this URL (http://host:port) instead of computing "
-                                      "in-process")
+    parser.add_argument("--url", help="use the service at this URL (http://host:port) instead of computing in-process")
     _timeout(parser)
 
 
 def _timeout(parser: argparse.ArgumentParser) -> None:
-    parser.add_argument("--timeout", type=float, metavar="SECONDS",
-                        help="give up after this long: the answer so far (not certified: exit 2), or an error")
+    parser.add_argument(
+        "--timeout",
+        type=float,
+        metavar="SECONDS",
+        help="give up after this long: the answer so far (not certified: exit 2), or an error",
+    )
 
 
 def _engine_options(args: argparse.Namespace) -> dict[str, Any]:
@@ -97,6 +102,7 @@ def _print_problem(error: QuadcertError) -> None:
 
 # -- commands ---------------------------------------------------------------------------------
 
+
 def _integrate(args: argparse.Namespace) -> int:
     options = _engine_options(args)
     if args.mesh:
@@ -117,33 +123,54 @@ def _integrate(args: argparse.Namespace) -> int:
 def _describe(result: IntegralResult) -> str:
     status = "certified" if result.tolerance_met else f"NOT within tolerance ({result.stop_reason})"
     digits = certified_digits(*result.enclosure)
-    value = f"{digits}  (the digits the enclosure certifies; --json has all of them)" if digits else \
-        f"{result.value!r} ± {shown(result.error_bound, 2, 'up')}  (the enclosure straddles a digit boundary)"
+    value = (
+        f"{digits}  (the digits the enclosure certifies; --json has all of them)"
+        if digits
+        else f"{result.value!r} ± {shown(result.error_bound, 2, 'up')}  (the enclosure straddles a digit boundary)"
+    )
     applied = result.applied_tolerance if result.applied_tolerance is not None else result.tolerance
-    target = shown(applied, 6, "near") + ("" if applied == result.tolerance else
-                                          f" (the relative tolerance; the absolute one is "
-                                          f"{shown(result.tolerance, 6, 'near')})")
-    lines = [f"integral of {result.integrand} from {result.lower_limit} to {result.upper_limit}",
-             f"value        {value}",
-             f"enclosure    [{bound_text(result.enclosure[0], up=False)}, {bound_text(result.enclosure[1], up=True)}]",
-             f"error bound  {shown(result.error_bound, 6, 'up')}  (tolerance {target}: {status})",
-             f"nodes        {result.nodes}  panels {result.panels}"]
+    target = shown(applied, 6, "near") + (
+        ""
+        if applied == result.tolerance
+        else f" (the relative tolerance; the absolute one is {shown(result.tolerance, 6, 'near')})"
+    )
+    lines = [
+        f"integral of {result.integrand} from {result.lower_limit} to {result.upper_limit}",
+        f"value        {value}",
+        f"enclosure    [{bound_text(result.enclosure[0], up=False)}, {bound_text(result.enclosure[1], up=True)}]",
+        f"error bound  {shown(result.error_bound, 6, 'up')}  (tolerance {target}: {status})",
+        f"nodes        {result.nodes}  panels {result.panels}",
+    ]
     if result.mesh:
         lines.append("mesh:")
-        lines.extend(f"  [{bound_text(p.lower, up=False)}, {bound_text(p.upper, up=True)}]  "
-                     f"{bound_text(p.contribution[0], up=False)} .. {bound_text(p.contribution[1], up=True)}  {p.bound}"
-                     for p in result.mesh)
+        lines.extend(
+            f"  [{bound_text(p.lower, up=False)}, {bound_text(p.upper, up=True)}]  "
+            f"{bound_text(p.contribution[0], up=False)} .. {bound_text(p.contribution[1], up=True)}  {p.bound}"
+            for p in result.mesh
+        )
     return "\n".join(lines)
 
 
 def _check(args: argparse.Namespace) -> int:
     name = args.name or f"{args.formula} on [{args.lower}, {args.upper}]"
-    item = {"integrand": args.formula, "lower_limit": args.lower, "upper_limit": args.upper,
-            "claimed_value": args.claimed, "tolerance": args.tol, **_engine_options(args)}
+    item = {
+        "integrand": args.formula,
+        "lower_limit": args.lower,
+        "upper_limit": args.upper,
+        "claimed_value": args.claimed,
+        "tolerance": args.tol,
+        **_engine_options(args),
+    }
     case, outcome = _one_check(args, name, item)
     if args.json and outcome is not None:
-        print(_json(check_body(outcome, {"variable": args.var, "tolerance": _typed(args.tol),
-                                         "claimed_value": _typed(args.claimed)})))
+        print(
+            _json(
+                check_body(
+                    outcome,
+                    {"variable": args.var, "tolerance": _typed(args.tol), "claimed_value": _typed(args.claimed)},
+                )
+            )
+        )
     elif outcome is not None:
         print(case.message)
     if args.junit:
@@ -151,8 +178,9 @@ def _check(args: argparse.Namespace) -> int:
     return _exit_for([case])
 
 
-def _one_check(args: argparse.Namespace, name: str, item: dict[str, Any]
-               ) -> tuple[_junit.CaseOutcome, CheckResult | None]:
+def _one_check(
+    args: argparse.Namespace, name: str, item: dict[str, Any]
+) -> tuple[_junit.CaseOutcome, CheckResult | None]:
     """One verdict as a JUnit case; any failure to decide is an ``error`` case, never a ``fail``."""
     started = time.perf_counter()
     item = dict(item)
@@ -211,8 +239,7 @@ def _working(what: str) -> Iterator[None]:
     from tqdm import tqdm
 
     done = threading.Event()
-    bar = tqdm(total=None, desc=what, bar_format="{desc}: {elapsed}", file=sys.stderr, leave=False,
-               delay=1.0)
+    bar = tqdm(total=None, desc=what, bar_format="{desc}: {elapsed}", file=sys.stderr, leave=False, delay=1.0)
 
     def tick() -> None:
         while not done.wait(0.5):
@@ -240,10 +267,12 @@ def _progress(items: list[Any], unit: str) -> Any:
 def _verdict_text(outcome: CheckResult) -> str:
     low, high = outcome.integral.enclosure
     near, far = outcome.distance
-    return (f"{outcome.verdict}: claimed {outcome.claimed_value}, exact integral in "
-            f"[{bound_text(low, up=False)}, {bound_text(high, up=True)}], "
-            f"|claimed - exact| in [{shown(near, 6, 'down')}, {shown(far, 6, 'up')}], "
-            f"tolerance {shown(outcome.tolerance, 6, 'near')}")
+    return (
+        f"{outcome.verdict}: claimed {outcome.claimed_value}, exact integral in "
+        f"[{bound_text(low, up=False)}, {bound_text(high, up=True)}], "
+        f"|claimed - exact| in [{shown(near, 6, 'down')}, {shown(far, 6, 'up')}], "
+        f"tolerance {shown(outcome.tolerance, 6, 'near')}"
+    )
 
 
 def _typed(text: Any) -> Any:
@@ -265,9 +294,12 @@ def _batch(args: argparse.Namespace) -> int:
     if args.url:
         with _client(args.url, args) as client:
             for start in range(0, len(requests), 200):
-                for item in client.batch(requests[start:start + 200]):
-                    outcomes.append(_table.outcome_of(problem=item.problem) if isinstance(item, ProblemError)
-                                    else _table.outcome_of(item))
+                for item in client.batch(requests[start : start + 200]):
+                    outcomes.append(
+                        _table.outcome_of(problem=item.problem)
+                        if isinstance(item, ProblemError)
+                        else _table.outcome_of(item)
+                    )
     else:
         for request in _progress(requests, "rows"):
             left = _time_left(args)
@@ -300,14 +332,18 @@ def _plan(args: argparse.Namespace) -> int:
 
 
 def _describe_plan(result: Plan) -> str:
-    lines = [f"uniform meshes for {result.integrand} on [{result.lower_limit}, {result.upper_limit}], "
-             f"tolerance {shown(result.tolerance, 6, 'near')}"]
+    lines = [
+        f"uniform meshes for {result.integrand} on [{result.lower_limit}, {result.upper_limit}], "
+        f"tolerance {shown(result.tolerance, 6, 'near')}"
+    ]
     for rule in (result.simpson, result.trapezoid):
         if rule.available:
-            lines.append(f"{rule.rule:10s} {rule.intervals} intervals, {rule.nodes} nodes, "
-                         f"h = {shown(rule.spacing, 6, 'down')}, "
-                         f"max|f^({rule.derivative_order})| <= {shown(rule.derivative_bound, 6, 'up')}, "
-                         f"bound {shown(rule.error_bound, 3, 'up')}")
+            lines.append(
+                f"{rule.rule:10s} {rule.intervals} intervals, {rule.nodes} nodes, "
+                f"h = {shown(rule.spacing, 6, 'down')}, "
+                f"max|f^({rule.derivative_order})| <= {shown(rule.derivative_bound, 6, 'up')}, "
+                f"bound {shown(rule.error_bound, 3, 'up')}"
+            )
         else:
             lines.append(f"{rule.rule:10s} not available: {rule.reason}")
     return "\n".join(lines)
@@ -317,28 +353,42 @@ def _serve(args: argparse.Namespace) -> int:
     try:
         from ._serve import serve
     except ModuleNotFoundError as error:
-        raise InvalidInput(f"the service needs the server extra ({error.name} is missing): "
-                           "pip install 'quadcert[server]'", code="invalid_input") from None
+        raise InvalidInput(
+            f"the service needs the server extra ({error.name} is missing): pip install 'quadcert[server]'",
+            code="invalid_input",
+        ) from None
 
     return serve(args.host, args.port, args.workers)
 
 
 def build_parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(prog="quadcert", description="Certified definite integrals.",
-                                     epilog=EXIT_CODES, formatter_class=argparse.RawDescriptionHelpFormatter)
+    parser = argparse.ArgumentParser(
+        prog="quadcert",
+        description="Certified definite integrals.",
+        epilog=EXIT_CODES,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
     parser.add_argument("--version", action="version", version=f"quadcert {__version__}")
     commands = parser.add_subparsers(dest="command", required=True)
 
     def command(name: str, help: str, example: str) -> argparse.ArgumentParser:
-        return commands.add_parser(name, help=help, description=help, epilog=_epilog(example),
-                                   formatter_class=argparse.RawDescriptionHelpFormatter)
+        return commands.add_parser(
+            name,
+            help=help,
+            description=help,
+            epilog=_epilog(example),
+            formatter_class=argparse.RawDescriptionHelpFormatter,
+        )
 
-    serve = commands.add_parser("serve", help="run the HTTP service (keeps running until stopped)",
-                                description="Run the HTTP service. It keeps running until SIGTERM or Ctrl-C.",
-                                epilog="exit codes:\n  0  stopped by SIGTERM or Ctrl-C after draining\n  2  could "
-                                       "not start (a port in use or out of range, a bad setting)\n\n"
-                                       "example:\n  quadcert serve --port 8000 &",
-                                formatter_class=argparse.RawDescriptionHelpFormatter)
+    serve = commands.add_parser(
+        "serve",
+        help="run the HTTP service (keeps running until stopped)",
+        description="Run the HTTP service. It keeps running until SIGTERM or Ctrl-C.",
+        epilog="exit codes:\n  0  stopped by SIGTERM or Ctrl-C after draining\n  2  could "
+        "not start (a port in use or out of range, a bad setting)\n\n"
+        "example:\n  quadcert serve --port 8000 &",
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
     serve.add_argument("--host", default=None, help="address to bind (default 127.0.0.1)")
     serve.add_argument("--port", type=int, default=None, help="port (default 8000)")
     serve.add_argument("--workers", type=int, default=None, help="engine worker processes (default: CPU count)")
@@ -346,27 +396,41 @@ def build_parser() -> argparse.ArgumentParser:
 
     one = command("integrate", "certify one integral", "quadcert integrate 'exp(-x^2)' 0 1 --tol 1e-10")
     _common(one)
-    one.add_argument("--rel-tol", dest="relative_tolerance",
-                     help="also accept an error bound <= this times |integral| (below 1)")
-    one.add_argument("--max-nodes", dest="max_nodes", type=int,
-                     help="evaluation budget (default 200001); past it the enclosure is returned, not certified")
+    one.add_argument(
+        "--rel-tol", dest="relative_tolerance", help="also accept an error bound <= this times |integral| (below 1)"
+    )
+    one.add_argument(
+        "--max-nodes",
+        dest="max_nodes",
+        type=int,
+        help="evaluation budget (default 200001); past it the enclosure is returned, not certified",
+    )
     one.add_argument("--mesh", action="store_true", help="also print every panel")
     one.add_argument("--json", action="store_true", help="print the result as JSON")
     one.set_defaults(run=_integrate)
 
-    verdict = command("check", "pass/fail verdict on one claimed value",
-                      "quadcert check 'x^2*exp(-x)' 0 5 --claimed 1.75 --tol 1e-9 --junit reports/q.xml")
+    verdict = command(
+        "check",
+        "pass/fail verdict on one claimed value",
+        "quadcert check 'x^2*exp(-x)' 0 5 --claimed 1.75 --tol 1e-9 --junit reports/q.xml",
+    )
     _common(verdict, tolerance_required=True)
-    verdict.add_argument("--claimed", required=True,
-                         help="the value under test, read as the exact decimal typed (not rounded to float64)")
+    verdict.add_argument(
+        "--claimed",
+        required=True,
+        help="the value under test, read as the exact decimal typed (not rounded to float64)",
+    )
     verdict.add_argument("--max-nodes", dest="max_nodes", type=int, help="evaluation budget (default 200001)")
     verdict.add_argument("--junit", metavar="FILE", help="write a JUnit XML report (folders are created)")
     verdict.add_argument("--name", help="test case name in the report")
     verdict.add_argument("--json", action="store_true", help="print the verdict as JSON")
     verdict.set_defaults(run=_check)
 
-    many = command("checks", "verdicts on a file of claimed values (CSV or TOML), one JUnit report",
-                   "quadcert checks ci/integrals.toml --junit reports/quadcert.xml")
+    many = command(
+        "checks",
+        "verdicts on a file of claimed values (CSV or TOML), one JUnit report",
+        "quadcert checks ci/integrals.toml --junit reports/quadcert.xml",
+    )
     many.add_argument("file", help="checks: .toml with [[check]] tables, or CSV with a header (see the README)")
     many.add_argument("--junit", metavar="FILE", help="write one JUnit XML report with a test case per check")
     many.add_argument("--url", help="use the service at this URL instead of computing in-process")
@@ -374,8 +438,7 @@ def build_parser() -> argparse.ArgumentParser:
     _timeout(many)
     many.set_defaults(run=_checks)
 
-    table = command("batch", "certify one integral per CSV row",
-                    "quadcert batch integrals.csv -o certified.csv")
+    table = command("batch", "certify one integral per CSV row", "quadcert batch integrals.csv -o certified.csv")
     table.add_argument("input", help="CSV with integrand, lower_limit, upper_limit[, tolerance, variable, ...]")
     table.add_argument("-o", "--output", help="output CSV (default: standard output)")
     table.add_argument("--tol", default="1e-8", help="tolerance for rows without one (default 1e-8)")

@@ -65,8 +65,9 @@ def _bind(host: str, port: int) -> socket.socket:
     except OSError as error:
         sock.close()
         reason = "is in use" if error.errno == errno.EADDRINUSE else f"cannot be bound ({error.strerror})"
-        raise InvalidInput(f"{host}:{port} {reason}; choose another with --port or QUADCERT_PORT",
-                           code="invalid_input", field="port") from None
+        raise InvalidInput(
+            f"{host}:{port} {reason}; choose another with --port or QUADCERT_PORT", code="invalid_input", field="port"
+        ) from None
     sock.set_inheritable(True)
     return sock
 
@@ -77,16 +78,31 @@ def serve(host: str | None, port: int | None, workers: int | None) -> int:
         settings = Settings(**overrides)
     except ValidationError as error:
         first = error.errors()[0]
-        raise InvalidInput(f"{'.'.join(str(p) for p in first['loc'])}: {first['msg']}", code="invalid_input",
-                           field=str(first["loc"][0])) from None
+        raise InvalidInput(
+            f"{'.'.join(str(p) for p in first['loc'])}: {first['msg']}",
+            code="invalid_input",
+            field=str(first["loc"][0]),
+        ) from None
     sock = _bind(settings.host, settings.port)
     app = create_app(settings)
     backstop = math.ceil(settings.grace_seconds) + BACKSTOP_SECONDS  # never None: None would wait forever
-    config = uvicorn.Config(app, host=settings.host, port=settings.port, log_config=None, access_log=False,
-                            timeout_graceful_shutdown=backstop, lifespan="on", **protocol_options(settings))
+    config = uvicorn.Config(
+        app,
+        host=settings.host,
+        port=settings.port,
+        log_config=None,
+        access_log=False,
+        timeout_graceful_shutdown=backstop,
+        lifespan="on",
+        **protocol_options(settings),
+    )
     server = _DrainingServer(config, app)
     shown_host = f"[{settings.host}]" if ":" in settings.host else settings.host
-    print(f"quadcert {__version__}: serving on http://{shown_host}:{sock.getsockname()[1]} with {settings.workers} "
-          "engine worker(s); it keeps running until SIGTERM or Ctrl-C", file=sys.stderr, flush=True)
+    print(
+        f"quadcert {__version__}: serving on http://{shown_host}:{sock.getsockname()[1]} with {settings.workers} "
+        "engine worker(s); it keeps running until SIGTERM or Ctrl-C",
+        file=sys.stderr,
+        flush=True,
+    )
     server.run(sockets=[sock])
     return 0

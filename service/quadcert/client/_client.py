@@ -20,30 +20,63 @@ DEFAULT_URL = "http://127.0.0.1:8000"
 def integral_from(body: Mapping[str, Any]) -> IntegralResult:
     mesh = body.get("mesh")
     return IntegralResult(
-        value=body["value"], enclosure=tuple(body["enclosure"]), error_bound=body["error_bound"],
-        tolerance=body["tolerance"], tolerance_met=body["tolerance_met"], stop_reason=body["stop_reason"],
-        nodes=body["nodes"], panels=body["panels"], integrand=body["integrand"], lower_limit=body["lower_limit"],
-        upper_limit=body["upper_limit"], precision_bits=body["precision_bits"],
-        compute_seconds=body["compute_seconds"], bounds_used=dict(body.get("bounds_used") or {}),
+        value=body["value"],
+        enclosure=tuple(body["enclosure"]),
+        error_bound=body["error_bound"],
+        tolerance=body["tolerance"],
+        tolerance_met=body["tolerance_met"],
+        stop_reason=body["stop_reason"],
+        nodes=body["nodes"],
+        panels=body["panels"],
+        integrand=body["integrand"],
+        lower_limit=body["lower_limit"],
+        upper_limit=body["upper_limit"],
+        precision_bits=body["precision_bits"],
+        compute_seconds=body["compute_seconds"],
+        bounds_used=dict(body.get("bounds_used") or {}),
         applied_tolerance=body.get("applied_tolerance"),
-        mesh=tuple(PanelReport(float(p["lower"]), float(p["upper"]), tuple(p["contribution"]), p["bound"])
-                   for p in mesh)  # float() reads a tail's "inf"/"-inf" back
-        if mesh else None)
+        mesh=tuple(
+            PanelReport(float(p["lower"]), float(p["upper"]), tuple(p["contribution"]), p["bound"]) for p in mesh
+        )  # float() reads a tail's "inf"/"-inf" back
+        if mesh
+        else None,
+    )
 
 
 def check_from(body: Mapping[str, Any]) -> CheckResult:
-    return CheckResult(body["verdict"], body["claimed_value"], body["tolerance"], tuple(body["distance"]),
-                       integral_from(body["integral"]))
+    return CheckResult(
+        body["verdict"],
+        body["claimed_value"],
+        body["tolerance"],
+        tuple(body["distance"]),
+        integral_from(body["integral"]),
+    )
 
 
 def plan_from(body: Mapping[str, Any]) -> Plan:
     def rule(r: Mapping[str, Any]) -> RulePlan:
-        return RulePlan(r["rule"], r["intervals"], r["nodes"], r["spacing"], r["derivative_order"],
-                        r["derivative_bound"], r["error_bound"], r["available"], r.get("reason"))
+        return RulePlan(
+            r["rule"],
+            r["intervals"],
+            r["nodes"],
+            r["spacing"],
+            r["derivative_order"],
+            r["derivative_bound"],
+            r["error_bound"],
+            r["available"],
+            r.get("reason"),
+        )
 
-    return Plan(body["integrand"], body["lower_limit"], body["upper_limit"], body["tolerance"],
-                rule(body["simpson"]), rule(body["trapezoid"]), body["subintervals_for_bounds"],
-                body["compute_seconds"])
+    return Plan(
+        body["integrand"],
+        body["lower_limit"],
+        body["upper_limit"],
+        body["tolerance"],
+        rule(body["simpson"]),
+        rule(body["trapezoid"]),
+        body["subintervals_for_bounds"],
+        body["compute_seconds"],
+    )
 
 
 _JSON = {"content-type": "application/json"}
@@ -74,10 +107,15 @@ def _limit(value: Any) -> Any:
     return value
 
 
-def _request(integrand: str, lower_limit: Any, upper_limit: Any, tolerance: Any, options: dict[str, Any]
-             ) -> dict[str, Any]:
-    body = {"integrand": integrand, "lower_limit": _limit(lower_limit), "upper_limit": _limit(upper_limit),
-            "tolerance": tolerance}
+def _request(
+    integrand: str, lower_limit: Any, upper_limit: Any, tolerance: Any, options: dict[str, Any]
+) -> dict[str, Any]:
+    body = {
+        "integrand": integrand,
+        "lower_limit": _limit(lower_limit),
+        "upper_limit": _limit(upper_limit),
+        "tolerance": tolerance,
+    }
     body.update({k: v for k, v in options.items() if v is not None})
     return _exact_numbers(body)
 
@@ -96,8 +134,9 @@ def _answer(response: httpx.Response) -> dict[str, Any]:
         retry_after = _seconds(response.headers.get("retry-after"))
         if isinstance(body, dict) and "code" in body:
             raise ProblemError(body, retry_after)
-        raise ProblemError({"status": response.status_code, "code": "unexpected_response",
-                            "detail": response.text[:200]}, retry_after)
+        raise ProblemError(
+            {"status": response.status_code, "code": "unexpected_response", "detail": response.text[:200]}, retry_after
+        )
     return body
 
 
@@ -111,8 +150,9 @@ def _seconds(header: str | None) -> float | None:
 def _unreachable(base_url: str, error: httpx.HTTPError) -> ProblemError:
     """A transport failure as an error of our own hierarchy (status 0: no HTTP answer)."""
     kind = "timed_out" if isinstance(error, httpx.TimeoutException) else "service_unreachable"
-    return ProblemError({"status": 0, "code": kind,
-                         "detail": f"no answer from {base_url}: {type(error).__name__}: {error}"})
+    return ProblemError(
+        {"status": 0, "code": kind, "detail": f"no answer from {base_url}: {type(error).__name__}: {error}"}
+    )
 
 
 #: at most this many tries for one call, and at most this long between two
@@ -136,28 +176,40 @@ def _wait(state: Any) -> float:
 
 
 def _retrying(attempts: int) -> dict[str, Any]:
-    return {"stop": stop_after_attempt(max(1, attempts)), "wait": _wait, "retry": retry_if_exception(_retryable),
-            "reraise": True}
+    return {
+        "stop": stop_after_attempt(max(1, attempts)),
+        "wait": _wait,
+        "retry": retry_if_exception(_retryable),
+        "reraise": True,
+    }
 
 
 def _checked_url(url: str) -> str:
     """A base URL with its scheme: ``localhost:8000`` alone is a mistake to name, not to guess at."""
     if not url.startswith(("http://", "https://")):
-        raise ProblemError({"status": 0, "code": "invalid_url",
-                            "detail": f"{url!r} is not an http:// or https:// URL; write http://{url}"})
+        raise ProblemError(
+            {
+                "status": 0,
+                "code": "invalid_url",
+                "detail": f"{url!r} is not an http:// or https:// URL; write http://{url}",
+            }
+        )
     return url
 
 
 def _batch(body: dict[str, Any]) -> list[IntegralResult | ProblemError]:
-    return [ProblemError(item) if "code" in item and "value" not in item else integral_from(item)
-            for item in body["results"]]
+    return [
+        ProblemError(item) if "code" in item and "value" not in item else integral_from(item)
+        for item in body["results"]
+    ]
 
 
 class Client:
     """Blocking client. Pass ``transport=httpx.ASGITransport(app)`` to talk to an app in-process."""
 
-    def __init__(self, base_url: str = DEFAULT_URL, *, timeout: float = 60.0, attempts: int = ATTEMPTS,
-                 **httpx_options: Any) -> None:
+    def __init__(
+        self, base_url: str = DEFAULT_URL, *, timeout: float = 60.0, attempts: int = ATTEMPTS, **httpx_options: Any
+    ) -> None:
         self._http = httpx.Client(base_url=_checked_url(base_url), timeout=timeout, **httpx_options)
         self._attempts = attempts
 
@@ -181,21 +233,28 @@ class Client:
     def close(self) -> None:
         self._http.close()
 
-    def integrate(self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8,
-                  **options: Any) -> IntegralResult:
+    def integrate(
+        self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8, **options: Any
+    ) -> IntegralResult:
         body = _request(integrand, lower_limit, upper_limit, tolerance, options)
         return integral_from(self._post("/v1/integrals", body))
 
     def batch(self, items: list[dict[str, Any]]) -> list[IntegralResult | ProblemError]:
         return _batch(self._post("/v1/integrals/batch", {"items": [_exact_numbers(i) for i in items]}))
 
-    def check(self, integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: float,
-              tolerance: float = 1e-8, **options: Any) -> CheckResult:
+    def check(
+        self,
+        integrand: str,
+        lower_limit: Any,
+        upper_limit: Any,
+        claimed_value: float,
+        tolerance: float = 1e-8,
+        **options: Any,
+    ) -> CheckResult:
         body = _request(integrand, lower_limit, upper_limit, tolerance, {**options, "claimed_value": claimed_value})
         return check_from(self._post("/v1/checks", body))
 
-    def plan(self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8,
-             **options: Any) -> Plan:
+    def plan(self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8, **options: Any) -> Plan:
         body = _request(integrand, lower_limit, upper_limit, tolerance, options)
         return plan_from(self._post("/v1/plans", body))
 
@@ -209,8 +268,9 @@ class Client:
 class AsyncClient:
     """The same calls as :class:`Client`, awaitable."""
 
-    def __init__(self, base_url: str = DEFAULT_URL, *, timeout: float = 60.0, attempts: int = ATTEMPTS,
-                 **httpx_options: Any) -> None:
+    def __init__(
+        self, base_url: str = DEFAULT_URL, *, timeout: float = 60.0, attempts: int = ATTEMPTS, **httpx_options: Any
+    ) -> None:
         self._http = httpx.AsyncClient(base_url=_checked_url(base_url), timeout=timeout, **httpx_options)
         self._attempts = attempts
 
@@ -233,20 +293,29 @@ class AsyncClient:
     async def aclose(self) -> None:
         await self._http.aclose()
 
-    async def integrate(self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8,
-                        **options: Any) -> IntegralResult:
+    async def integrate(
+        self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8, **options: Any
+    ) -> IntegralResult:
         body = _request(integrand, lower_limit, upper_limit, tolerance, options)
         return integral_from(await self._post("/v1/integrals", body))
 
     async def batch(self, items: list[dict[str, Any]]) -> list[IntegralResult | ProblemError]:
         return _batch(await self._post("/v1/integrals/batch", {"items": [_exact_numbers(i) for i in items]}))
 
-    async def check(self, integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: float,
-                    tolerance: float = 1e-8, **options: Any) -> CheckResult:
+    async def check(
+        self,
+        integrand: str,
+        lower_limit: Any,
+        upper_limit: Any,
+        claimed_value: float,
+        tolerance: float = 1e-8,
+        **options: Any,
+    ) -> CheckResult:
         body = _request(integrand, lower_limit, upper_limit, tolerance, {**options, "claimed_value": claimed_value})
         return check_from(await self._post("/v1/checks", body))
 
-    async def plan(self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8,
-                   **options: Any) -> Plan:
+    async def plan(
+        self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8, **options: Any
+    ) -> Plan:
         body = _request(integrand, lower_limit, upper_limit, tolerance, options)
         return plan_from(await self._post("/v1/plans", body))

@@ -17,9 +17,21 @@ from ..formula._nodes import distinct_arguments
 from . import _series as series
 
 _UNARY: dict[str, Callable[[Arithmetic, series.Series], series.Series]] = {
-    "sqrt": series.sqrt, "exp": series.exp, "log": series.log, "log10": series.log10, "sin": series.sin, "cos": series.cos,
-    "tan": series.tan, "asin": series.asin, "acos": series.acos, "atan": series.atan, "sinh": series.sinh, "cosh": series.cosh,
-    "tanh": series.tanh, "erf": series.erf, "abs": series.abs_,
+    "sqrt": series.sqrt,
+    "exp": series.exp,
+    "log": series.log,
+    "log10": series.log10,
+    "sin": series.sin,
+    "cos": series.cos,
+    "tan": series.tan,
+    "asin": series.asin,
+    "acos": series.acos,
+    "atan": series.atan,
+    "sinh": series.sinh,
+    "cosh": series.cosh,
+    "tanh": series.tanh,
+    "erf": series.erf,
+    "abs": series.abs_,
 }
 
 # A compiled node is either ("const", enclosure) or ("series", function of (x series) -> series).
@@ -43,8 +55,9 @@ class Program:
         values = dict(parameters or {})
         missing = [name for name in formula.parameters if name not in values]
         if missing:
-            raise InvalidInput(f"no value given for parameter {missing[0]!r}", code="missing_parameter",
-                               field="parameters")
+            raise InvalidInput(
+                f"no value given for parameter {missing[0]!r}", code="missing_parameter", field="parameters"
+            )
         self._parameters = {name: ar.exact(Fraction(value)) for name, value in values.items()}
         self._root = self._compile(formula.root)
 
@@ -86,8 +99,7 @@ class Program:
 
     def _call(self, node: Call) -> Compiled:
         ar = self.ar
-        args = [self._compile(a) for a in (distinct_arguments(node) if node.function in ("min", "max")
-                                           else node.args)]
+        args = [self._compile(a) for a in (distinct_arguments(node) if node.function in ("min", "max") else node.args)]
         if all(kind == "const" for kind, _ in args):
             values = [[payload] for _, payload in args]
             return ("const", self._apply(node.function, values)[0])

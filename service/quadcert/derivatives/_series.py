@@ -261,8 +261,7 @@ def extremum(ar: Arithmetic, args: list[Series], largest: bool) -> Series:
         elif gap == 0:
             length = min(len(best), len(other), 2)
             combine = ar.maximum if largest else ar.minimum
-            best = _lipschitz_cut(ar, combine(best[0], other[0]), [best[1], other[1]] if length > 1 else [],
-                                  length)
+            best = _lipschitz_cut(ar, combine(best[0], other[0]), [best[1], other[1]] if length > 1 else [], length)
     return best
 
 

@@ -4,6 +4,23 @@ from ._nodes import Binary, Call, Constant, Negate, Node, Number, Parameter, Var
 from ._parser import ALIASES, CONSTANTS, FUNCTIONS, Formula, parse
 from ._tokenizer import Kind, Token, tokenize
 
-__all__ = ["ALIASES", "CONSTANTS", "FUNCTIONS", "Binary", "Call", "Constant", "Formula", "Kind", "Negate",
-           "Node", "Number", "Parameter", "Token", "Variable", "canonical_text", "decimal_text", "parse",
-           "tokenize"]
+__all__ = [
+    "ALIASES",
+    "CONSTANTS",
+    "FUNCTIONS",
+    "Binary",
+    "Call",
+    "Constant",
+    "Formula",
+    "Kind",
+    "Negate",
+    "Node",
+    "Number",
+    "Parameter",
+    "Token",
+    "Variable",
+    "canonical_text",
+    "decimal_text",
+    "parse",
+    "tokenize",
+]

@@ -65,6 +65,7 @@ def distinct_arguments(node: Call) -> tuple[Node, ...]:
     """
     return tuple(dict.fromkeys(node.args))
 
+
 _PRECEDENCE = {"+": 1, "-": 1, "*": 2, "/": 2, "neg": 3, "^": 4}
 _ATOM = 5
 

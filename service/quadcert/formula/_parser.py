@@ -22,9 +22,26 @@ from ._tokenizer import Kind, Token, tokenize
 
 #: function name -> (minimum, maximum) number of arguments
 FUNCTIONS: dict[str, tuple[int, int]] = {
-    **{name: (1, 1) for name in (
-        "sqrt", "exp", "log", "log10", "sin", "cos", "tan", "asin", "acos", "atan",
-        "sinh", "cosh", "tanh", "abs", "erf")},
+    **{
+        name: (1, 1)
+        for name in (
+            "sqrt",
+            "exp",
+            "log",
+            "log10",
+            "sin",
+            "cos",
+            "tan",
+            "asin",
+            "acos",
+            "atan",
+            "sinh",
+            "cosh",
+            "tanh",
+            "abs",
+            "erf",
+        )
+    },
     "min": (2, _limits.MAX_ARGUMENTS),
     "max": (2, _limits.MAX_ARGUMENTS),
 }
@@ -65,11 +82,19 @@ class Formula:
 REWRITES = {
     "sign": "write x/abs(x) away from 0, or split the interval at 0",
     "sgn": "write x/abs(x) away from 0, or split the interval at 0",
-    "cot": "write 1/tan(x)", "sec": "write 1/cos(x)", "csc": "write 1/sin(x)",
-    "asinh": "write log(x + sqrt(x^2 + 1))", "acosh": "write log(x + sqrt(x^2 - 1))",
-    "atanh": "write log((1 + x)/(1 - x))/2", "cbrt": "write x^(1/3) for x > 0",
-    "log2": "write log(x)/log(2)", "erfc": "write 1 - erf(x)", "pow": "write a^b",
-    "sqr": "write x^2", "exp10": "write 10^x", "ln10": "write log(10)",
+    "cot": "write 1/tan(x)",
+    "sec": "write 1/cos(x)",
+    "csc": "write 1/sin(x)",
+    "asinh": "write log(x + sqrt(x^2 + 1))",
+    "acosh": "write log(x + sqrt(x^2 - 1))",
+    "atanh": "write log((1 + x)/(1 - x))/2",
+    "cbrt": "write x^(1/3) for x > 0",
+    "log2": "write log(x)/log(2)",
+    "erfc": "write 1 - erf(x)",
+    "pow": "write a^b",
+    "sqr": "write x^2",
+    "exp10": "write 10^x",
+    "ln10": "write log(10)",
 }
 
 
@@ -91,10 +116,11 @@ def _one_edit(a: str, b: str) -> bool:
         return False
     if len(a) == len(b):
         diffs = [i for i in range(len(a)) if a[i] != b[i]]
-        return len(diffs) == 1 or (len(diffs) == 2 and diffs[1] == diffs[0] + 1
-                                   and a[diffs[0]] == b[diffs[1]] and a[diffs[1]] == b[diffs[0]])
+        return len(diffs) == 1 or (
+            len(diffs) == 2 and diffs[1] == diffs[0] + 1 and a[diffs[0]] == b[diffs[1]] and a[diffs[1]] == b[diffs[0]]
+        )
     short, long = (a, b) if len(a) < len(b) else (b, a)
-    return any(long[:i] + long[i + 1:] == short for i in range(len(long)))
+    return any(long[:i] + long[i + 1 :] == short for i in range(len(long)))
 
 
 class _Parser:
@@ -121,14 +147,26 @@ class _Parser:
     def count(self, node: Node, column: int) -> Node:
         self.nodes += 1
         if self.nodes > _limits.MAX_NODES:
-            raise FormulaError(f"formula has more than {_limits.MAX_NODES} parts", code="formula_too_large",
-                               column=column)
-        children = (node.operand,) if isinstance(node, Negate) else (node.left, node.right) \
-            if isinstance(node, Binary) else node.args if isinstance(node, Call) else ()
+            raise FormulaError(
+                f"formula has more than {_limits.MAX_NODES} parts", code="formula_too_large", column=column
+            )
+        children = (
+            (node.operand,)
+            if isinstance(node, Negate)
+            else (node.left, node.right)
+            if isinstance(node, Binary)
+            else node.args
+            if isinstance(node, Call)
+            else ()
+        )
         height = 1 + max((self.heights.get(id(child), 1) for child in children), default=0)
         if height > _limits.MAX_HEIGHT:
-            raise FormulaError(f"formula is more than {_limits.MAX_HEIGHT} operations deep; split long sums "
-                               "or products into parenthesised groups", code="nesting_too_deep", column=column)
+            raise FormulaError(
+                f"formula is more than {_limits.MAX_HEIGHT} operations deep; split long sums "
+                "or products into parenthesised groups",
+                code="nesting_too_deep",
+                column=column,
+            )
         self.heights[id(node)] = height
         self.keep.append(node)  # heights are keyed by id: keep every node alive while parsing
         return node
@@ -136,8 +174,9 @@ class _Parser:
     def enter(self, column: int) -> None:
         self.depth += 1
         if self.depth > _limits.MAX_DEPTH:
-            raise FormulaError(f"formula nests deeper than {_limits.MAX_DEPTH} levels", code="nesting_too_deep",
-                               column=column)
+            raise FormulaError(
+                f"formula nests deeper than {_limits.MAX_DEPTH} levels", code="nesting_too_deep", column=column
+            )
 
     def peek(self, ahead: int) -> Token:
         return self.tokens[min(self.index + ahead, len(self.tokens) - 1)]
@@ -145,13 +184,14 @@ class _Parser:
     def unexpected(self, expected: str) -> FormulaError:
         token = self.current
         if token.kind is Kind.END:
-            return FormulaError(f"formula ends early; expected {expected}", code="unexpected_end",
-                                column=token.column)
+            return FormulaError(f"formula ends early; expected {expected}", code="unexpected_end", column=token.column)
         if token.kind is Kind.RPAREN:
-            return FormulaError(f"unexpected ')'; expected {expected}", code="unbalanced_parenthesis",
-                                column=token.column)
-        return FormulaError(f"unexpected {token.text!r}; expected {expected}", code="unexpected_token",
-                            column=token.column)
+            return FormulaError(
+                f"unexpected ')'; expected {expected}", code="unbalanced_parenthesis", column=token.column
+            )
+        return FormulaError(
+            f"unexpected {token.text!r}; expected {expected}", code="unexpected_token", column=token.column
+        )
 
     # -- grammar -----------------------------------------------------------------------------
     def parse(self) -> Node:
@@ -164,11 +204,17 @@ class _Parser:
         if token.kind in (Kind.NUMBER, Kind.NAME, Kind.LPAREN):
             previous = self.tokens[self.index - 1].text
             if token.kind is Kind.NUMBER and token.text.startswith(".") and "." in previous:
-                raise FormulaError(f"a number has one decimal point: {previous}{token.text} is not a number",
-                                   code="unexpected_token", column=token.column)
-            raise FormulaError(f"missing operator between {previous!r} and {token.text!r}; implicit "
-                               f"multiplication is not read, write {previous}*{token.text}",
-                               code="implicit_multiplication", column=token.column)
+                raise FormulaError(
+                    f"a number has one decimal point: {previous}{token.text} is not a number",
+                    code="unexpected_token",
+                    column=token.column,
+                )
+            raise FormulaError(
+                f"missing operator between {previous!r} and {token.text!r}; implicit "
+                f"multiplication is not read, write {previous}*{token.text}",
+                code="implicit_multiplication",
+                column=token.column,
+            )
         if token.kind is Kind.RPAREN:
             raise FormulaError("')' has no matching '('", code="unbalanced_parenthesis", column=token.column)
         raise self.unexpected("an operator")
@@ -202,8 +248,11 @@ class _Parser:
     def power(self) -> Node:
         if self.current.kind is Kind.NAME and self.peek(1).text == "^" and self.current.text in FUNCTIONS:
             name = self.current
-            raise FormulaError(f"write a power of {name.text} after its argument: {name.text}(x)^2, not "
-                               f"{name.text}^2(x)", code="unexpected_token", column=name.column)
+            raise FormulaError(
+                f"write a power of {name.text} after its argument: {name.text}(x)^2, not {name.text}^2(x)",
+                code="unexpected_token",
+                column=name.column,
+            )
         base = self.primary()
         if self.current.kind is Kind.OPERATOR and self.current.text == "^":
             token = self.advance()
@@ -213,8 +262,11 @@ class _Parser:
             self.depth -= 1
             literal = exponent.operand if isinstance(exponent, Negate) else exponent
             if isinstance(literal, Number) and abs(literal.value) > _limits.MAX_CONSTANT_POWER:
-                raise FormulaError(f"exponent {literal.text} is larger than {_limits.MAX_CONSTANT_POWER}",
-                                   code="power_too_large", column=exponent_column)
+                raise FormulaError(
+                    f"exponent {literal.text} is larger than {_limits.MAX_CONSTANT_POWER}",
+                    code="power_too_large",
+                    column=exponent_column,
+                )
             return self.count(Binary("^", base, exponent), token.column)
         return base
 
@@ -263,8 +315,11 @@ class _Parser:
         low, high = FUNCTIONS[function]
         if not low <= len(args) <= high:
             wanted = str(low) if low == high else f"{low} to {high}"
-            raise FormulaError(f"{function} takes {wanted} argument{'s' if high > 1 else ''}, got {len(args)}",
-                               code="wrong_argument_count", column=name.column)
+            raise FormulaError(
+                f"{function} takes {wanted} argument{'s' if high > 1 else ''}, got {len(args)}",
+                code="wrong_argument_count",
+                column=name.column,
+            )
         return self.count(Call(function, tuple(args)), name.column)
 
     def name(self, token: Token) -> Node:
@@ -276,27 +331,38 @@ class _Parser:
         if text in CONSTANTS:
             return Constant(text)
         if text in FUNCTIONS or text in ALIASES:
-            raise FormulaError(f"{text!r} is a function; write {text}(...)", code="missing_arguments",
-                               column=token.column)
+            raise FormulaError(
+                f"{text!r} is a function; write {text}(...)", code="missing_arguments", column=token.column
+            )
         if text.lower() in CONSTANTS and text not in (self.variable, *self.parameters):
-            raise FormulaError(f"unknown name {text!r}; the constants are written in lower case: {text.lower()}",
-                               code="unknown_name", column=token.column)
+            raise FormulaError(
+                f"unknown name {text!r}; the constants are written in lower case: {text.lower()}",
+                code="unknown_name",
+                column=token.column,
+            )
         hint = _suggest(text, [self.variable, *self.parameters, *CONSTANTS])
         if not hint and len(text) > 1 and all(c == self.variable or c in CONSTANTS for c in text):
             hint = f"; implicit multiplication is not read, write {'*'.join(text)}"
-        raise FormulaError(f"unknown name {text!r}{hint}; the variable is {self.variable!r}",
-                           code="unknown_name", column=token.column)
+        raise FormulaError(
+            f"unknown name {text!r}{hint}; the variable is {self.variable!r}", code="unknown_name", column=token.column
+        )
 
 
 def _read_number(token: Token) -> Fraction:
     mantissa, _, exponent = token.text.lower().partition("e")
     digits = mantissa.replace(".", "").lstrip("0")
     if len(digits) > _limits.MAX_LITERAL_DIGITS:
-        raise FormulaError(f"number has {len(digits)} significant digits; the limit is "
-                           f"{_limits.MAX_LITERAL_DIGITS}", code="literal_too_long", column=token.column)
+        raise FormulaError(
+            f"number has {len(digits)} significant digits; the limit is {_limits.MAX_LITERAL_DIGITS}",
+            code="literal_too_long",
+            column=token.column,
+        )
     if exponent and (len(exponent) > 8 or abs(int(exponent)) > _limits.MAX_LITERAL_EXPONENT):
-        raise FormulaError(f"exponent of {token.text[:20]!r} is beyond ±{_limits.MAX_LITERAL_EXPONENT}",
-                           code="literal_out_of_range", column=token.column)
+        raise FormulaError(
+            f"exponent of {token.text[:20]!r} is beyond ±{_limits.MAX_LITERAL_EXPONENT}",
+            code="literal_out_of_range",
+            column=token.column,
+        )
     return Fraction(token.text)
 
 

@@ -30,10 +30,28 @@ class Token:
 
 _NUMBER = re.compile(r"(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?")
 _NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_]*")
-_SINGLE = {"+": Kind.OPERATOR, "-": Kind.OPERATOR, "*": Kind.OPERATOR, "/": Kind.OPERATOR,
-           "^": Kind.OPERATOR, "(": Kind.LPAREN, ")": Kind.RPAREN, ",": Kind.COMMA}
-_LOOKALIKES = {"×": "*", "·": "*", "−": "-", "–": "-", "÷": "/", "π": "pi", "|": "abs(...)", "²": "^2",
-               "³": "^3", "√": "sqrt(...)"}
+_SINGLE = {
+    "+": Kind.OPERATOR,
+    "-": Kind.OPERATOR,
+    "*": Kind.OPERATOR,
+    "/": Kind.OPERATOR,
+    "^": Kind.OPERATOR,
+    "(": Kind.LPAREN,
+    ")": Kind.RPAREN,
+    ",": Kind.COMMA,
+}
+_LOOKALIKES = {
+    "×": "*",
+    "·": "*",
+    "−": "-",
+    "–": "-",
+    "÷": "/",
+    "π": "pi",
+    "|": "abs(...)",
+    "²": "^2",
+    "³": "^3",
+    "√": "sqrt(...)",
+}
 
 
 def _describe_character(char: str) -> str:
@@ -53,8 +71,11 @@ def tokenize(text: str) -> list[Token]:
     ['2', '*', 'x', '^', '2', '']
     """
     if len(text) > _limits.MAX_LENGTH:
-        raise FormulaError(f"formula is {len(text)} characters long; the limit is {_limits.MAX_LENGTH}",
-                           code="formula_too_long", column=_limits.MAX_LENGTH + 1)
+        raise FormulaError(
+            f"formula is {len(text)} characters long; the limit is {_limits.MAX_LENGTH}",
+            code="formula_too_long",
+            column=_limits.MAX_LENGTH + 1,
+        )
     tokens: list[Token] = []
     position = 0
     while position < len(text):
@@ -66,8 +87,11 @@ def tokenize(text: str) -> list[Token]:
         if char.isascii() and (char.isdigit() or char == "."):
             match = _NUMBER.match(text, position)
             if match is None:
-                raise FormulaError("a '.' must be part of a number such as 0.5; attribute access is not part of "
-                                   "the formula language", code="unexpected_character", column=column)
+                raise FormulaError(
+                    "a '.' must be part of a number such as 0.5; attribute access is not part of the formula language",
+                    code="unexpected_character",
+                    column=column,
+                )
             tokens.append(Token(Kind.NUMBER, match.group(), column))
             position = match.end()
             continue
@@ -78,8 +102,11 @@ def tokenize(text: str) -> list[Token]:
             position = match.end()
             continue
         if char == "*" and text.startswith("**", position):
-            raise FormulaError("'**' is not an operator here; write powers with '^', as in x^2",
-                               code="unsupported_operator", column=column)
+            raise FormulaError(
+                "'**' is not an operator here; write powers with '^', as in x^2",
+                code="unsupported_operator",
+                column=column,
+            )
         if char in _SINGLE:
             tokens.append(Token(_SINGLE[char], char, column))
             position += 1

@@ -12,5 +12,16 @@ from ._pieces import Piece, end_piece, tail_piece
 from ._scalars import Unsupported
 from ._shift import shifted
 
-__all__ = ["Envelope", "Growth", "InTail", "NearPoint", "Piece", "Power", "TailEnvelope", "Unsupported", "end_piece", "shifted",
-           "tail_piece"]
+__all__ = [
+    "Envelope",
+    "Growth",
+    "InTail",
+    "NearPoint",
+    "Piece",
+    "Power",
+    "TailEnvelope",
+    "Unsupported",
+    "end_piece",
+    "shifted",
+    "tail_piece",
+]

@@ -183,8 +183,11 @@ class Rules(Generic[Form]):
 
     def log10_of(self, envelope: Envelope[Form]) -> Envelope[Form]:
         inverse = self.s.ar.div(self.s.ar.one, self.s.log(self.s.num(10)))
-        return Envelope(self.scaled(envelope.upper, inverse),  # type: ignore[arg-type]
-                        self.scaled(envelope.lower, inverse) if envelope.lower is not None else None, envelope.sign)
+        return Envelope(
+            self.scaled(envelope.upper, inverse),  # type: ignore[arg-type]
+            self.scaled(envelope.lower, inverse) if envelope.lower is not None else None,
+            envelope.sign,
+        )
 
 
 def _cap(ar: Any, name: str) -> Interval:

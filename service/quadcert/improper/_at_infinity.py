@@ -105,7 +105,9 @@ class InTail(Rules[Growth]):
     def _constant(self, node: Node) -> TailEnvelope:
         ar, s = self.s.ar, self.s
         try:
-            value = Program(Formula(node, self.formula.variable, self.formula.parameters), ar, self.values).value(ar.zero)
+            value = Program(Formula(node, self.formula.variable, self.formula.parameters), ar, self.values).value(
+                ar.zero
+            )
         except ArithmeticFault:
             raise Unsupported("a constant subexpression cannot be evaluated") from None
         size = s.magnitude(value)

@@ -12,6 +12,7 @@ from ._scalars import Unsupported
 if TYPE_CHECKING:
     from ._near_point import Envelope, NearPoint
 
+
 # -- next to a point -------------------------------------------------------------------------------------
 def near_call(near: "NearPoint", node: Call) -> "Envelope":
     from ._near_point import Envelope, Power

@@ -51,8 +51,15 @@ class NearPoint(Rules[Power]):
     (Fraction(-1, 2), 0, 1)
     """
 
-    def __init__(self, formula: Formula, values: Mapping[str, Fraction], point: Fraction, side: int,
-                 delta: Fraction, at_point: dict[Node, object] | None = None) -> None:
+    def __init__(
+        self,
+        formula: Formula,
+        values: Mapping[str, Fraction],
+        point: Fraction,
+        side: int,
+        delta: Fraction,
+        at_point: dict[Node, object] | None = None,
+    ) -> None:
         if not 0 < delta <= Fraction(1, 16):
             raise ValueError("the piece must be at most 1/16 long, so that log(1/t) ≥ e on it")
         self.formula, self.values, self.point, self.side, self.delta = formula, dict(values), point, side, delta
@@ -197,8 +204,9 @@ class NearPoint(Rules[Power]):
             self._at_point[key] = exact  # type: ignore[index]
         return len(exact) > j and exact[j] == 0
 
-    def _from_taylor(self, coefficients: list[Interval], remainder: Interval, m: int,
-                     node: Node | None = None) -> Envelope:
+    def _from_taylor(
+        self, coefficients: list[Interval], remainder: Interval, m: int, node: Node | None = None
+    ) -> Envelope:
         """g(a + s·t) = Σ_{j<m} g_j·(s·t)^j + R·(s·t)^m with R over the piece."""
         s, ar = self.s, self.s.ar
         lead = 0

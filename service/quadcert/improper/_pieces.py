@@ -38,11 +38,11 @@ _MOVES_PER_ENVELOPE = 4
 class Piece:
     """One piece of the integral enclosed by an envelope rather than by panels."""
 
-    kind: str                      # "singular-envelope" or "tail-envelope"
-    near: Fraction | None          # the end the piece touches (None: infinity)
-    cut: Fraction                  # where the panels take over
+    kind: str  # "singular-envelope" or "tail-envelope"
+    near: Fraction | None  # the end the piece touches (None: infinity)
+    cut: Fraction  # where the panels take over
     enclosure: tuple[Fraction, Fraction]
-    envelope: str                  # the bound used, for people
+    envelope: str  # the bound used, for people
 
 
 def _distance(variable: str, point: Fraction) -> str:
@@ -91,14 +91,17 @@ def _near_integral(near: NearPoint, power: Power, delta: Fraction) -> object:
     p1 = power.p + 1
     total = ar.zero
     for j in range(power.q + 1):
-        term = ar.div(ar.mul(s.num(Fraction(factorial(power.q), factorial(j))), s.power(log_delta, Fraction(j))),
-                      s.power(s.num(p1), Fraction(power.q + 1 - j)))
+        term = ar.div(
+            ar.mul(s.num(Fraction(factorial(power.q), factorial(j))), s.power(log_delta, Fraction(j))),
+            s.power(s.num(p1), Fraction(power.q + 1 - j)),
+        )
         total = ar.add(total, term)
     return ar.mul(ar.mul(power.k, s.power(delta_iv, p1)), total)
 
 
-def end_piece(formula: Formula, values: Mapping[str, Fraction], point: Fraction, side: int, budget: Fraction,
-              room: Fraction) -> Piece:
+def end_piece(
+    formula: Formula, values: Mapping[str, Fraction], point: Fraction, side: int, budget: Fraction, room: Fraction
+) -> Piece:
     """The piece (point, point + side·δ] with an enclosure no wider than budget, or a refusal.
 
     Raises NotCertifiable with code ``divergent_integral`` (a proved minorant that is not integrable),
@@ -113,46 +116,68 @@ def end_piece(formula: Formula, values: Mapping[str, Fraction], point: Fraction,
         near = NearPoint(formula, values, point, side, delta)
         env = near.envelope(formula.root)
     except (Unsupported, ArithmeticFault, ZeroDivisionError, OverflowError) as why:
-        raise NotCertifiable(f"the integrand is undefined at {formula.variable} = {_point_text(point)} and cannot be "
-                             f"bounded next to it: {why}", code="singularity_not_bounded", location=location) from None
+        raise NotCertifiable(
+            f"the integrand is undefined at {formula.variable} = {_point_text(point)} and cannot be "
+            f"bounded next to it: {why}",
+            code="singularity_not_bounded",
+            location=location,
+        ) from None
     _refuse_divergent_near(near, env, point, location, formula.variable)
     assert env.upper is not None
     if env.upper.p <= -1:
-        raise NotCertifiable(f"cannot decide whether the integral converges next to {formula.variable} = "
-                             f"{_point_text(point)}: the best bound found, "
-                             f"{_power_text(env.upper, formula.variable, point)}, is not integrable and no "
-                             "minorant of fixed sign proves divergence", code="singularity_undecided",
-                             location=location)
+        raise NotCertifiable(
+            f"cannot decide whether the integral converges next to {formula.variable} = "
+            f"{_point_text(point)}: the best bound found, "
+            f"{_power_text(env.upper, formula.variable, point)}, is not integrable and no "
+            "minorant of fixed sign proves divergence",
+            code="singularity_undecided",
+            location=location,
+        )
     for _ in range(_MAX_ROUNDS):
         try:
             size = near.s.high(_near_integral(near, env.upper, delta))
         except ArithmeticFault as why:
-            raise NotCertifiable(f"the envelope next to {formula.variable} = {_point_text(point)} cannot be "
-                                 f"integrated: {why}", code="singularity_not_bounded", location=location) from None
+            raise NotCertifiable(
+                f"the envelope next to {formula.variable} = {_point_text(point)} cannot be integrated: {why}",
+                code="singularity_not_bounded",
+                location=location,
+            ) from None
         width = size if env.sign else 2 * size
         if width <= budget:
             low, high = _signed(size, env.sign)
-            return Piece("singular-envelope", point, point + side * delta, (low, high),
-                         _power_text(env.upper, formula.variable, point))
+            return Piece(
+                "singular-envelope",
+                point,
+                point + side * delta,
+                (low, high),
+                _power_text(env.upper, formula.variable, point),
+            )
         shrink = (budget / width) ** (1 / float(env.upper.p + 1)) / 2 if width else 0.5
         target = delta * Fraction(max(min(shrink, 0.5), 2.0**-900))
         while delta > target and delta > _SMALLEST_PIECE:
             delta /= 2
         if delta <= _SMALLEST_PIECE:
             break
-    raise NotCertifiable(f"the piece next to {formula.variable} = {_point_text(point)} cannot be made small enough "
-                         "for the tolerance", code="singularity_not_bounded", location=location)
+    raise NotCertifiable(
+        f"the piece next to {formula.variable} = {_point_text(point)} cannot be made small enough for the tolerance",
+        code="singularity_not_bounded",
+        location=location,
+    )
 
 
-def _refuse_divergent_near(near: NearPoint, env: Envelope, point: Fraction, location: tuple[float, float],
-                           variable: str) -> None:
+def _refuse_divergent_near(
+    near: NearPoint, env: Envelope, point: Fraction, location: tuple[float, float], variable: str
+) -> None:
     if env.sign and env.lower is not None:
         low = near.lower_fold(env.lower)
         if low.p <= -1:
             raise NotCertifiable(
                 f"the integral diverges at {variable} = {_point_text(point)}: next to it the integrand keeps the "
                 f"sign {'+' if env.sign > 0 else '−'} and {_power_text(low, variable, point, '≥')}, which is not "
-                "integrable", code="divergent_integral", location=location)
+                "integrable",
+                code="divergent_integral",
+                location=location,
+            )
 
 
 def _tail_integral(tail: InTail, growth: Growth, T: Fraction) -> object | None:
@@ -170,8 +195,7 @@ def _tail_integral(tail: InTail, growth: Growth, T: Fraction) -> object | None:
     return None
 
 
-def tail_piece(formula: Formula, values: Mapping[str, Fraction], side: int, start: Fraction,
-               budget: Fraction) -> Piece:
+def tail_piece(formula: Formula, values: Mapping[str, Fraction], side: int, start: Fraction, budget: Fraction) -> Piece:
     """The tail beyond side·T (T ≥ start) with an enclosure no wider than budget, or a refusal."""
     T = Fraction(1)
     while T < start:
@@ -185,8 +209,11 @@ def tail_piece(formula: Formula, values: Mapping[str, Fraction], side: int, star
             if T < _RETRY_TAIL_UNTIL:  # dominance rules may hold only further out (x + 2 ≥ x/2 needs x ≥ 4)
                 T *= 4
                 continue
-            raise NotCertifiable(f"the tail towards {'+' if side > 0 else '−'}∞ cannot be bounded: {why}",
-                                 code="tail_not_bounded", location=location) from None
+            raise NotCertifiable(
+                f"the tail towards {'+' if side > 0 else '−'}∞ cannot be bounded: {why}",
+                code="tail_not_bounded",
+                location=location,
+            ) from None
         _refuse_divergent_tail(env, side, location, formula.variable)
         # the envelope holds on [T, ∞), so on every tail further out: move T out with the closed form alone,
         # and derive a new envelope only when an exponential rate would improve with T (e^(−c·y²) → rate c·T)
@@ -194,15 +221,19 @@ def tail_piece(formula: Formula, values: Mapping[str, Fraction], side: int, star
             try:
                 size = _tail_integral(tail, env.upper, T) if env.upper is not None else None
             except ArithmeticFault as why:
-                raise NotCertifiable(f"the envelope of the tail cannot be integrated: {why}", code="tail_not_bounded",
-                                     location=location) from None
+                raise NotCertifiable(
+                    f"the envelope of the tail cannot be integrated: {why}", code="tail_not_bounded", location=location
+                ) from None
             if size is None:
                 if env.upper is None or (env.upper.r == 0 and env.upper.p >= -1):
                     raise NotCertifiable(
                         f"cannot decide whether the integral converges towards {'+' if side > 0 else '−'}∞: the "
                         f"best bound found{', ' + _growth_text(env.upper, formula.variable) if env.upper else ''}, is "
                         "not integrable, and no minorant of fixed sign proves divergence (an integral that converges "
-                        "only conditionally, such as sin(x)/x, is refused)", code="tail_undecided", location=location)
+                        "only conditionally, such as sin(x)/x, is refused)",
+                        code="tail_undecided",
+                        location=location,
+                    )
                 T *= 2
                 continue
             high = tail.s.high(size)
@@ -221,8 +252,11 @@ def tail_piece(formula: Formula, values: Mapping[str, Fraction], side: int, star
                 break
         if T > _FARTHEST_TAIL:
             break
-    raise NotCertifiable(f"the tail towards {'+' if side > 0 else '−'}∞ decays too slowly for the tolerance",
-                         code="tail_not_bounded", location=location)
+    raise NotCertifiable(
+        f"the tail towards {'+' if side > 0 else '−'}∞ decays too slowly for the tolerance",
+        code="tail_not_bounded",
+        location=location,
+    )
 
 
 def _refuse_divergent_tail(env: TailEnvelope, side: int, location: tuple[float, float], variable: str) -> None:
@@ -231,4 +265,6 @@ def _refuse_divergent_tail(env: TailEnvelope, side: int, location: tuple[float, 
         raise NotCertifiable(
             f"the integral diverges towards {'+' if side > 0 else '−'}∞: there the integrand keeps the sign "
             f"{'+' if env.sign > 0 else '−'} and {_growth_text(low, variable, '≥')}, which is not integrable",
-            code="divergent_integral", location=location)
+            code="divergent_integral",
+            location=location,
+        )

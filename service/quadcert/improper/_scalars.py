@@ -68,9 +68,18 @@ class Scalars:
 
 #: the values of functions that are exact rationals at rational points (the points where they are rational at all)
 _SPECIAL_VALUES = {
-    ("exp", 0): Fraction(1), ("log", 1): Fraction(0), ("sin", 0): Fraction(0), ("cos", 0): Fraction(1),
-    ("tan", 0): Fraction(0), ("sinh", 0): Fraction(0), ("cosh", 0): Fraction(1), ("tanh", 0): Fraction(0),
-    ("atan", 0): Fraction(0), ("asin", 0): Fraction(0), ("acos", 1): Fraction(0), ("erf", 0): Fraction(0),
+    ("exp", 0): Fraction(1),
+    ("log", 1): Fraction(0),
+    ("sin", 0): Fraction(0),
+    ("cos", 0): Fraction(1),
+    ("tan", 0): Fraction(0),
+    ("sinh", 0): Fraction(0),
+    ("cosh", 0): Fraction(1),
+    ("tanh", 0): Fraction(0),
+    ("atan", 0): Fraction(0),
+    ("asin", 0): Fraction(0),
+    ("acos", 1): Fraction(0),
+    ("erf", 0): Fraction(0),
     ("log10", 1): Fraction(0),
 }
 

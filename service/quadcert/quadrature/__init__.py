@@ -6,5 +6,17 @@ from ._integrate import integrate
 from ._planner import plan
 from ._result import IntegralResult, PanelReport, Plan, RulePlan
 
-__all__ = ["CheckResult", "IntegralResult", "PanelReport", "Plan", "RulePlan", "bound_decimal", "bound_text", "certified_digits", "check",
-           "integrate", "plan", "shown"]
+__all__ = [
+    "CheckResult",
+    "IntegralResult",
+    "PanelReport",
+    "Plan",
+    "RulePlan",
+    "bound_decimal",
+    "bound_text",
+    "certified_digits",
+    "check",
+    "integrate",
+    "plan",
+    "shown",
+]

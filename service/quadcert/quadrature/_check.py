@@ -19,9 +19,16 @@ def distance_bounds(claimed: Fraction, low: float, high: float) -> tuple[float, 
     return max(fraction_down(near), 0.0), fraction_up(far)
 
 
-def check(integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: _inputs.NumberLike,
-          tolerance: _inputs.NumberLike, *,
-          deadline_seconds: float | None = None, **options: Any) -> CheckResult:
+def check(
+    integrand: str,
+    lower_limit: Any,
+    upper_limit: Any,
+    claimed_value: _inputs.NumberLike,
+    tolerance: _inputs.NumberLike,
+    *,
+    deadline_seconds: float | None = None,
+    **options: Any,
+) -> CheckResult:
     """Decide a claim, refining the enclosure only as far as the decision needs.
 
     >>> check("x^2", 0, 3, claimed_value=9.0000001, tolerance=1e-6).verdict
@@ -37,8 +44,7 @@ def check(integrand: str, lower_limit: Any, upper_limit: Any, claimed_value: _in
     engine_tolerance = max(tolerance / 4, _inputs.MIN_TOLERANCE)
     while True:
         remaining = None if deadline_seconds is None else max(1e-3, deadline_seconds - (time.monotonic() - started))
-        result = integrate(integrand, lower_limit, upper_limit, engine_tolerance, deadline_seconds=remaining,
-                           **options)
+        result = integrate(integrand, lower_limit, upper_limit, engine_tolerance, deadline_seconds=remaining, **options)
         near, far = distance_bounds(claimed, *result.enclosure)
         if far <= tolerance:
             return CheckResult("pass", claimed_value, tolerance, (near, far), result)

@@ -23,8 +23,8 @@ from ._result import PanelReport
 
 INTERIOR_CODES = frozenset({"undefined_at_point", "unbounded_near"})
 MAX_BREAKPOINTS = 8
-_PIECE_SHARE = Fraction(1, 4)      # of the tolerance, for all envelope pieces together (widths)
-_PANEL_SHARE = Fraction(95, 100)   # of what is left, for the panel stretches (bounds); the rest absorbs rounding
+_PIECE_SHARE = Fraction(1, 4)  # of the tolerance, for all envelope pieces together (widths)
+_PANEL_SHARE = Fraction(95, 100)  # of what is left, for the panel stretches (bounds); the rest absorbs rounding
 
 _GROWTH = Fraction(2**10)
 
@@ -74,6 +74,7 @@ class _Ends:
             return end, end
         if end not in self._numeric:
             from ._endpoints import enclose_limit
+
             self._numeric[end] = self.ar.bounds_exact(enclose_limit(end, self.ar, dict(self.values), "limit"))
         return self._numeric[end]
 
@@ -95,9 +96,16 @@ class _Ends:
         return False
 
 
-def integrate_pieces(formula: Formula, values: Mapping[str, Fraction], lower: Formula, upper: Formula,
-                     tolerance: float, settings: Any, segment: Callable[..., Any],
-                     refusal: NotCertifiable | None = None) -> Any:
+def integrate_pieces(
+    formula: Formula,
+    values: Mapping[str, Fraction],
+    lower: Formula,
+    upper: Formula,
+    tolerance: float,
+    settings: Any,
+    segment: Callable[..., Any],
+    refusal: NotCertifiable | None = None,
+) -> Any:
     """The composite integral as one Segment (see ``_integrate.segment``), in the caller's orientation."""
     ends = _Ends(formula, values)
     a: End = infinite_side(lower) or lower
@@ -106,15 +114,17 @@ def integrate_pieces(formula: Formula, values: Mapping[str, Fraction], lower: Fo
     if _after(ends, a, b):
         a, b, sign = b, a, -1
     points: list[Fraction] = []
-    if refusal is not None and not _add_point(ends, a, b, points, refusal) and not (
-            ends.singular(a) or ends.singular(b)):
+    if (
+        refusal is not None
+        and not _add_point(ends, a, b, points, refusal)
+        and not (ends.singular(a) or ends.singular(b))
+    ):
         raise refusal
     while True:
         try:
             result = _assemble(formula, values, ends, [a, *points, b], tolerance, settings, segment)
         except NotCertifiable as again:
-            if again.code in INTERIOR_CODES and len(points) < MAX_BREAKPOINTS and _add_point(ends, a, b, points,
-                                                                                               again):
+            if again.code in INTERIOR_CODES and len(points) < MAX_BREAKPOINTS and _add_point(ends, a, b, points, again):
                 continue
             if refusal is not None and again.code == "singularity_not_bounded":
                 # not an isolated singularity the rules can bound (log(x) on [−1, 1] is undefined on a whole
@@ -151,8 +161,15 @@ def _add_point(ends: _Ends, a: End, b: End, points: list[Fraction], refusal: Not
     return True
 
 
-def _assemble(formula: Formula, values: Mapping[str, Fraction], ends: _Ends, chain: list[End], tolerance: float,
-              settings: Any, segment: Callable[..., Any]) -> Any:
+def _assemble(
+    formula: Formula,
+    values: Mapping[str, Fraction],
+    ends: _Ends,
+    chain: list[End],
+    tolerance: float,
+    settings: Any,
+    segment: Callable[..., Any],
+) -> Any:
     stretches = list(zip(chain, chain[1:]))
     plans = []
     for u, v in stretches:
@@ -187,12 +204,27 @@ def _assemble(formula: Formula, values: Mapping[str, Fraction], ends: _Ends, cha
     precision = 53
     for (start, stop), share, origin in zip(cuts, shares, origins):
         if origin is None:
-            part = segment(formula, dict(values), start, stop, lambda _lo, _hi, share=share: share, share, settings,
-                           precision_floor=_bits_to_resolve(ends, start, stop))
+            part = segment(
+                formula,
+                dict(values),
+                start,
+                stop,
+                lambda _lo, _hi, share=share: share,
+                share,
+                settings,
+                precision_floor=_bits_to_resolve(ends, start, stop),
+            )
         else:  # next to a singular point c: ∫ f(c + t) dt over [start − c, stop − c]
-            part = segment(shifted(formula, origin), dict(values), start - origin, stop - origin,
-                           lambda _lo, _hi, share=share: share, share, settings,
-                           precision_floor=_bits_to_resolve(ends, start - origin, stop - origin))
+            part = segment(
+                shifted(formula, origin),
+                dict(values),
+                start - origin,
+                stop - origin,
+                lambda _lo, _hi, share=share: share,
+                share,
+                settings,
+                precision_floor=_bits_to_resolve(ends, start - origin, stop - origin),
+            )
             part = _moved(part, origin)
         low += Fraction(part.low)
         high += Fraction(part.high)
@@ -210,8 +242,17 @@ def _assemble(formula: Formula, values: Mapping[str, Fraction], ends: _Ends, cha
     stop = next((s for s in stops if s != "tolerance_met"), "tolerance_met")
     mesh.sort(key=lambda r: (r.lower, r.upper))
     from ._integrate import Segment
-    return Segment(fraction_down(low), fraction_up(high), stop, nodes, panels + len(pieces),
-                   tuple(mesh) if settings.include_mesh else (), bounds_used, precision)
+
+    return Segment(
+        fraction_down(low),
+        fraction_up(high),
+        stop,
+        nodes,
+        panels + len(pieces),
+        tuple(mesh) if settings.include_mesh else (),
+        bounds_used,
+        precision,
+    )
 
 
 def _origin(ends: _Ends, part: tuple[Any, Any], left: End | None, right: End | None) -> Fraction | None:
@@ -229,8 +270,12 @@ def _origin(ends: _Ends, part: tuple[Any, Any], left: End | None, right: End | N
 
 def _moved(part: Any, origin: Fraction) -> Any:
     """A part integrated in t = x − c, with its mesh moved back to x (ends rounded outward)."""
-    mesh = tuple(PanelReport(fraction_down(Fraction(r.lower) + origin), fraction_up(Fraction(r.upper) + origin),
-                             r.contribution, r.bound) for r in part.mesh)
+    mesh = tuple(
+        PanelReport(
+            fraction_down(Fraction(r.lower) + origin), fraction_up(Fraction(r.upper) + origin), r.contribution, r.bound
+        )
+        for r in part.mesh
+    )
     return replace(part, mesh=mesh)
 
 
@@ -263,12 +308,15 @@ def _shares(ends: _Ends, cuts: list[tuple[Any, Any]], total: Fraction) -> list[f
         sizes.append(size if math.isfinite(size) else 0.0)
     whole = sum(sizes)
     n = len(cuts)
-    return [fraction_down(total * (Fraction(1, 2 * n) + (Fraction(size) / Fraction(whole) / 2 if whole else
-                                                         Fraction(1, 2 * n)))) for size in sizes]
+    return [
+        fraction_down(
+            total * (Fraction(1, 2 * n) + (Fraction(size) / Fraction(whole) / 2 if whole else Fraction(1, 2 * n)))
+        )
+        for size in sizes
+    ]
 
 
-def _graded(ends: _Ends, start: Any, stop: Any, u: End, v: End, left: bool, right: bool
-            ) -> list[tuple[Any, Any]]:
+def _graded(ends: _Ends, start: Any, stop: Any, u: End, v: End, left: bool, right: bool) -> list[tuple[Any, Any]]:
     """The stretch between two envelope pieces, cut into parts over which the panels can start coarse.
 
     Next to a singular point the panels must shrink to the piece's size δ, and in front of a tail they must
@@ -312,8 +360,9 @@ def _graded(ends: _Ends, start: Any, stop: Any, u: End, v: End, left: bool, righ
     return list(zip(points, points[1:]))
 
 
-def _piece(formula: Formula, values: Mapping[str, Fraction], ends: _Ends, end: End, other: End, side: int,
-           budget: Fraction) -> Piece:
+def _piece(
+    formula: Formula, values: Mapping[str, Fraction], ends: _Ends, end: End, other: End, side: int, budget: Fraction
+) -> Piece:
     if isinstance(end, int):  # a tail: it must start beyond the other end of its stretch
         other_bounds = ends.numeric(other) if not isinstance(other, int) else (Fraction(0), Fraction(0))
         reach = max(abs(other_bounds[0]), abs(other_bounds[1])) + 1  # type: ignore[index]
@@ -333,8 +382,7 @@ def _report(piece: Piece) -> PanelReport:
         lower, upper = (float(piece.cut), math.inf) if piece.cut > 0 else (-math.inf, float(piece.cut))
     else:
         lower, upper = sorted((float(piece.near), float(piece.cut)))
-    return PanelReport(lower, upper, (fraction_down(piece.enclosure[0]), fraction_up(piece.enclosure[1])),
-                       piece.kind)
+    return PanelReport(lower, upper, (fraction_down(piece.enclosure[0]), fraction_up(piece.enclosure[1])), piece.kind)
 
 
 def _oriented(result: Any, sign: int) -> Any:

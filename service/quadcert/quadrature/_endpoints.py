@@ -81,8 +81,7 @@ def _parse_limit_text(text: str, field: str, parameters: tuple[str, ...]) -> For
     try:
         formula = parse(text, variable="_", parameters=parameters)
     except FormulaError as error:
-        raise InvalidInput(f"{field}: {error.message}", code=error.code, field=field,
-                           column=error.column) from None
+        raise InvalidInput(f"{field}: {error.message}", code=error.code, field=field, column=error.column) from None
     return formula
 
 
@@ -98,8 +97,9 @@ def exact_limit(formula: Formula) -> Fraction | None:
 
 def enclose_limit(formula: Formula, ar: Arithmetic, parameters: dict[str, Fraction], field: str) -> Any:
     if infinite_side(formula):
-        raise InvalidInput(f"{field} is infinite; this operation needs finite limits", code="infinite_limit",
-                           field=field)
+        raise InvalidInput(
+            f"{field} is infinite; this operation needs finite limits", code="infinite_limit", field=field
+        )
     try:
         program = Program(formula, ar, parameters)
         if not program.is_constant:
@@ -108,11 +108,10 @@ def enclose_limit(formula: Formula, ar: Arithmetic, parameters: dict[str, Fracti
     except QuadcertError as error:
         if isinstance(error, InvalidInput):
             raise
-        raise InvalidInput(f"{field} cannot be evaluated: {error.message}", code="invalid_limit",
-                           field=field) from None
+        raise InvalidInput(f"{field} cannot be evaluated: {error.message}", code="invalid_limit", field=field) from None
     low, high = ar.bounds(value)
     if not (math.isfinite(low) and math.isfinite(high)) or max(abs(low), abs(high)) > 1e300:
-        raise InvalidInput(f"{field} is beyond ±1e300; such limits are not supported", code="limit_out_of_range",
-                           field=field)
+        raise InvalidInput(
+            f"{field} is beyond ±1e300; such limits are not supported", code="limit_out_of_range", field=field
+        )
     return value
-

@@ -34,16 +34,42 @@ except ImportError:  # built without a C compiler: the arbitrary-precision engin
 
 AVAILABLE = _native is not None
 
-_OPS = {"x": 0, "const": 1, "neg": 2, "+": 3, "-": 4, "*": 5, "/": 6, "sqr": 7, "powi": 8, "^": 9,
-        "min": 10, "max": 11}
-FUNCTION_CODES = {name: 20 + i for i, name in enumerate(
-    ["sqrt", "exp", "log", "log10", "sin", "cos", "tan", "asin", "acos", "atan", "sinh", "cosh", "tanh", "erf",
-     "abs"])}
+_OPS = {"x": 0, "const": 1, "neg": 2, "+": 3, "-": 4, "*": 5, "/": 6, "sqr": 7, "powi": 8, "^": 9, "min": 10, "max": 11}
+FUNCTION_CODES = {
+    name: 20 + i
+    for i, name in enumerate(
+        [
+            "sqrt",
+            "exp",
+            "log",
+            "log10",
+            "sin",
+            "cos",
+            "tan",
+            "asin",
+            "acos",
+            "atan",
+            "sinh",
+            "cosh",
+            "tanh",
+            "erf",
+            "abs",
+        ]
+    )
+}
 MAX_POWER = 1024
 _FOLD_PRECISION = 128
 _STOPS = {0: "tolerance_met", 1: "node_budget", 2: "deadline"}
-DECLINED = {-1: "value", -2: "depth", -3: "resolution", -4: "unresolved", -5: "memory", -6: "rounding_mode",
-            -7: "float_range", -8: "stalled"}  # why the C engine handed a request over
+DECLINED = {
+    -1: "value",
+    -2: "depth",
+    -3: "resolution",
+    -4: "unresolved",
+    -5: "memory",
+    -6: "rounding_mode",
+    -7: "float_range",
+    -8: "stalled",
+}  # why the C engine handed a request over
 
 
 @dataclass(frozen=True)
@@ -168,22 +194,35 @@ def _compile_cached(formula: Formula, items: tuple[tuple[str, Fraction], ...]) -
         compiler.node(formula.root)
     except ArithmeticFault:
         return None
-    if any(not (math.isfinite(lo) and math.isfinite(hi) and abs(lo) < 1e300 and abs(hi) < 1e300)
-           for lo, hi in compiler.constants):
+    if any(
+        not (math.isfinite(lo) and math.isfinite(hi) and abs(lo) < 1e300 and abs(hi) < 1e300)
+        for lo, hi in compiler.constants
+    ):
         return None
     return Compiled(array("i", compiler.code).tobytes(), tuple(compiler.constants), max(1, compiler.most))
 
 
 # (function, argument) pairs the C library must get right for the compiled engine to be trusted on this
 # machine: ordinary arguments, arguments next to zeros, poles and extrema, and large ones
-_SELF_TEST = [(name, x) for name, points in {
-    "exp": (-700.5, -1.0, -1e-9, 0.5, 1.0, 3.7, 88.7, 690.25), "log": (1e-300, 0.1, 1.0000001, 2.0, 1e300),
-    "log10": (1e-300, 0.3, 1.0000001, 1000.0, 1e300), "sin": (1e-8, 1.0, 3.141592653589793, 22.0, 1e5, 1e9),
-    "cos": (1e-8, 1.5707963267948966, 3.0, 355.0, 1e5, 1e9), "tan": (0.5, 1.5707963267948, -1.4, 11.0),
-    "asin": (-0.99999, 0.001, 0.5, 1.0), "acos": (-1.0, 0.001, 0.7, 0.99999999),
-    "atan": (-1e10, -1.0, 1e-9, 2.5, 1e300), "sinh": (-690.0, -1e-9, 0.7, 30.0),
-    "cosh": (-690.0, 1e-9, 0.7, 30.0), "tanh": (-20.0, -1e-9, 0.3, 5.0), "erf": (-6.0, -1e-9, 0.4, 1.5, 5.0),
-}.items() for x in points]
+_SELF_TEST = [
+    (name, x)
+    for name, points in {
+        "exp": (-700.5, -1.0, -1e-9, 0.5, 1.0, 3.7, 88.7, 690.25),
+        "log": (1e-300, 0.1, 1.0000001, 2.0, 1e300),
+        "log10": (1e-300, 0.3, 1.0000001, 1000.0, 1e300),
+        "sin": (1e-8, 1.0, 3.141592653589793, 22.0, 1e5, 1e9),
+        "cos": (1e-8, 1.5707963267948966, 3.0, 355.0, 1e5, 1e9),
+        "tan": (0.5, 1.5707963267948, -1.4, 11.0),
+        "asin": (-0.99999, 0.001, 0.5, 1.0),
+        "acos": (-1.0, 0.001, 0.7, 0.99999999),
+        "atan": (-1e10, -1.0, 1e-9, 2.5, 1e300),
+        "sinh": (-690.0, -1e-9, 0.7, 30.0),
+        "cosh": (-690.0, 1e-9, 0.7, 30.0),
+        "tanh": (-20.0, -1e-9, 0.3, 5.0),
+        "erf": (-6.0, -1e-9, 0.4, 1.5, 5.0),
+    }.items()
+    for x in points
+]
 
 
 @lru_cache(maxsize=None)
@@ -207,9 +246,16 @@ def trusted() -> bool:
     return True
 
 
-def run(compiled: Compiled, a: tuple[Fraction, Fraction], b: tuple[Fraction, Fraction], tolerance: float,
-        relative: float | None, max_nodes: int, deadline: float | None, want_mesh: bool
-        ) -> FastOutcome | str:
+def run(
+    compiled: Compiled,
+    a: tuple[Fraction, Fraction],
+    b: tuple[Fraction, Fraction],
+    tolerance: float,
+    relative: float | None,
+    max_nodes: int,
+    deadline: float | None,
+    want_mesh: bool,
+) -> FastOutcome | str:
     """Refine on [a, b] (exact enclosures of the limits, a < b); a FastOutcome, or why it declined."""
     if not trusted():
         return "unavailable"
@@ -222,15 +268,20 @@ def run(compiled: Compiled, a: tuple[Fraction, Fraction], b: tuple[Fraction, Fra
     if not all(math.isfinite(v) for v in bounds):
         return "limits"
     status, low, high, nodes, panels, counts, mesh = _native.integrate(
-        compiled.code, compiled.constants, compiled.stack, *bounds, tolerance, relative or 0.0, seconds,
-        max_nodes, want_mesh)
+        compiled.code,
+        compiled.constants,
+        compiled.stack,
+        *bounds,
+        tolerance,
+        relative or 0.0,
+        seconds,
+        max_nodes,
+        want_mesh,
+    )
     if status < 0:
         return DECLINED.get(status, "unknown")
     used = {BOUND_NAMES[order]: count for order, count in enumerate(counts) if count}
     reports: tuple[PanelReport, ...] = ()
     if mesh is not None:
-        reports = tuple(PanelReport(p, q, (lo, hi), BOUND_NAMES[order])
-                        for p, q, lo, hi, order in sorted(mesh))
+        reports = tuple(PanelReport(p, q, (lo, hi), BOUND_NAMES[order]) for p, q, lo, hi, order in sorted(mesh))
     return FastOutcome((low, high), _STOPS[status], nodes, panels, used, reports)
-
-

@@ -17,7 +17,7 @@ MAX_TOLERANCE = 1e300
 DEFAULT_MAX_NODES = 200_001
 MAX_NODES_LIMIT = 2_000_001
 MAX_PARAMETERS = 32
-_MIN_TOLERANCE_EXACT = Fraction(1, 10 ** 60)
+_MIN_TOLERANCE_EXACT = Fraction(1, 10**60)
 _MAX_TOLERANCE_EXACT = Fraction(10) ** 300
 _MAGNITUDE_LIMIT = Fraction(10) ** MAX_LITERAL_EXPONENT
 _DECIMAL = re.compile(r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?")
@@ -28,8 +28,7 @@ _RATIO = re.compile(r"([+-]?\d{1,80})\s*/\s*(\d{1,80})")
 NumberLike = int | float | Decimal | Fraction | str
 
 
-def exact_number(value: object, field: str, code: str = "invalid_parameter", range_code: str | None = None
-                 ) -> Fraction:
+def exact_number(value: object, field: str, code: str = "invalid_parameter", range_code: str | None = None) -> Fraction:
     """The exact rational a caller's number spells, with the formula language's literal limits.
 
     Magnitudes are checked on the decimal's digits and exponent before any big number is built, so text such
@@ -57,26 +56,32 @@ def exact_number(value: object, field: str, code: str = "invalid_parameter", ran
         if len(text) <= 80 and ratio and int(ratio.group(2)) != 0:
             return _in_range(Fraction(int(ratio.group(1)), int(ratio.group(2))), field, range_code)
         if len(text) > 80 or not _DECIMAL.fullmatch(text):
-            raise InvalidInput(f"{field} must be a finite number such as 0.5 or 1e-3, got {text[:40]!r}",
-                               code=code, field=field)
+            raise InvalidInput(
+                f"{field} must be a finite number such as 0.5 or 1e-3, got {text[:40]!r}", code=code, field=field
+            )
         value = Decimal(text)  # cheap whatever the exponent: Decimal keeps it as an integer
     if not isinstance(value, Decimal) or not value.is_finite():
         raise InvalidInput(f"{field} must be a finite number", code=code, field=field)
     sign, digits, exponent = value.as_tuple()
     significant = len(digits) - next((i for i, d in enumerate(digits) if d), len(digits))
     if significant > MAX_LITERAL_DIGITS:
-        raise InvalidInput(f"{field} has more than {MAX_LITERAL_DIGITS} significant digits", code=code,
-                           field=field)
+        raise InvalidInput(f"{field} has more than {MAX_LITERAL_DIGITS} significant digits", code=code, field=field)
     if significant and abs(value.adjusted()) > MAX_LITERAL_EXPONENT:
-        raise InvalidInput(f"{field} is beyond the range 1e-{MAX_LITERAL_EXPONENT} to 1e+{MAX_LITERAL_EXPONENT}",
-                           code=range_code, field=field)
+        raise InvalidInput(
+            f"{field} is beyond the range 1e-{MAX_LITERAL_EXPONENT} to 1e+{MAX_LITERAL_EXPONENT}",
+            code=range_code,
+            field=field,
+        )
     return Fraction(value)
 
 
 def _in_range(value: Fraction, field: str, code: str) -> Fraction:
     if abs(value) > _MAGNITUDE_LIMIT:
-        raise InvalidInput(f"{field} is beyond the range 1e-{MAX_LITERAL_EXPONENT} to 1e+{MAX_LITERAL_EXPONENT}",
-                           code=code, field=field)
+        raise InvalidInput(
+            f"{field} is beyond the range 1e-{MAX_LITERAL_EXPONENT} to 1e+{MAX_LITERAL_EXPONENT}",
+            code=code,
+            field=field,
+        )
     return value
 
 
@@ -89,15 +94,18 @@ def check_tolerance(value: NumberLike | None, field: str = "tolerance", optional
         raise InvalidInput(f"{field} must be a number", code="invalid_tolerance", field=field)
     exact = exact_number(value, field, code="invalid_tolerance", range_code="tolerance_out_of_range")
     if exact <= 0:
-        raise InvalidInput(f"{field} must be a number > 0, got {_shown(value)}", code="invalid_tolerance",
-                           field=field)
+        raise InvalidInput(f"{field} must be a number > 0, got {_shown(value)}", code="invalid_tolerance", field=field)
     if optional:
         if exact >= 1:
-            raise InvalidInput(f"{field} must be below 1, got {_shown(value)}", code="tolerance_out_of_range",
-                               field=field)
+            raise InvalidInput(
+                f"{field} must be below 1, got {_shown(value)}", code="tolerance_out_of_range", field=field
+            )
     elif not _MIN_TOLERANCE_EXACT <= exact <= _MAX_TOLERANCE_EXACT:
-        raise InvalidInput(f"{field} {_shown(value)} is outside [{MIN_TOLERANCE:g}, {MAX_TOLERANCE:g}]",
-                           code="tolerance_out_of_range", field=field)
+        raise InvalidInput(
+            f"{field} {_shown(value)} is outside [{MIN_TOLERANCE:g}, {MAX_TOLERANCE:g}]",
+            code="tolerance_out_of_range",
+            field=field,
+        )
     return fraction_down(exact)
 
 
@@ -109,8 +117,11 @@ def check_max_nodes(value: int) -> int:
     if isinstance(value, bool) or not isinstance(value, int):
         raise InvalidInput("max_nodes must be a whole number", code="invalid_budget", field="max_nodes")
     if not 3 <= value <= MAX_NODES_LIMIT:
-        raise InvalidInput(f"max_nodes must be between 3 and {MAX_NODES_LIMIT}, got {value}",
-                           code="budget_out_of_range", field="max_nodes")
+        raise InvalidInput(
+            f"max_nodes must be between 3 and {MAX_NODES_LIMIT}, got {value}",
+            code="budget_out_of_range",
+            field="max_nodes",
+        )
     return value
 
 

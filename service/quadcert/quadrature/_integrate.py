@@ -34,8 +34,9 @@ def choose_precision(tolerance: float) -> int:
     return max(DEFAULT_PRECISION, min(4096, int(-math.log2(tolerance)) + 48))
 
 
-def prepare(integrand: str | Formula, variable: str, parameters: Mapping[str, object] | None
-            ) -> tuple[Formula, dict[str, Fraction]]:
+def prepare(
+    integrand: str | Formula, variable: str, parameters: Mapping[str, object] | None
+) -> tuple[Formula, dict[str, Fraction]]:
     values = _inputs.check_parameters(parameters)
     if isinstance(integrand, Formula):
         formula = integrand
@@ -44,12 +45,21 @@ def prepare(integrand: str | Formula, variable: str, parameters: Mapping[str, ob
     return formula, values
 
 
-def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: LimitValue,
-              tolerance: float = 1e-8, *, variable: str = "x", parameters: Mapping[str, object] | None = None,
-              relative_tolerance: float | None = None, max_nodes: int = _inputs.DEFAULT_MAX_NODES,
-              deadline_seconds: float | None = None, include_mesh: bool = False,
-              precision_bits: int | None = None, arithmetic: ArithmeticFactory | None = None
-              ) -> IntegralResult:
+def integrate(
+    integrand: str | Formula,
+    lower_limit: LimitValue,
+    upper_limit: LimitValue,
+    tolerance: float = 1e-8,
+    *,
+    variable: str = "x",
+    parameters: Mapping[str, object] | None = None,
+    relative_tolerance: float | None = None,
+    max_nodes: int = _inputs.DEFAULT_MAX_NODES,
+    deadline_seconds: float | None = None,
+    include_mesh: bool = False,
+    precision_bits: int | None = None,
+    arithmetic: ArithmeticFactory | None = None,
+) -> IntegralResult:
     """Certified ∫ integrand d(variable) from lower_limit to upper_limit.
 
     Parameters:
@@ -78,8 +88,9 @@ def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: Li
     relative = _inputs.check_tolerance(relative_tolerance, "relative_tolerance", optional=True)  # type: ignore[arg-type]
     max_nodes = _inputs.check_max_nodes(max_nodes)
     if deadline_seconds is not None and not (math.isfinite(deadline_seconds) and deadline_seconds > 0):
-        raise InvalidInput("deadline_seconds must be a positive number", code="invalid_deadline",
-                           field="deadline_seconds")
+        raise InvalidInput(
+            "deadline_seconds must be a positive number", code="invalid_deadline", field="deadline_seconds"
+        )
     formula, values = prepare(integrand, variable, parameters)
     lower_formula = parse_limit(lower_limit, "lower_limit", tuple(values))
     upper_formula = parse_limit(upper_limit, "upper_limit", tuple(values))
@@ -101,25 +112,38 @@ def integrate(integrand: str | Formula, lower_limit: LimitValue, upper_limit: Li
         met = bound <= target(low, high)
         stop = "resolution_limit" if segment.stop == FLOAT_FLOOR else segment.stop
         return IntegralResult(
-            value=value, enclosure=(low, high), error_bound=bound, tolerance=tolerance, tolerance_met=met,
+            value=value,
+            enclosure=(low, high),
+            error_bound=bound,
+            tolerance=tolerance,
+            tolerance_met=met,
             applied_tolerance=target(low, high),
             stop_reason="tolerance_met" if met else (stop if stop != "tolerance_met" else "resolution_limit"),
-            nodes=segment.nodes, panels=segment.panels, integrand=formula.text, lower_limit=lower_formula.text,
-            upper_limit=upper_formula.text, precision_bits=segment.precision_bits,
-            compute_seconds=time.perf_counter() - started, mesh=segment.mesh if include_mesh else None,
-            bounds_used=segment.bounds_used)
+            nodes=segment.nodes,
+            panels=segment.panels,
+            integrand=formula.text,
+            lower_limit=lower_formula.text,
+            upper_limit=upper_formula.text,
+            precision_bits=segment.precision_bits,
+            compute_seconds=time.perf_counter() - started,
+            mesh=segment.mesh if include_mesh else None,
+            bounds_used=segment.bounds_used,
+        )
 
-    if lower_formula.text != upper_formula.text and _composite.needs_pieces(lower_formula,
-                                                                             upper_formula):
-        return finish(_composite.integrate_pieces(formula, values, lower_formula, upper_formula, tolerance,
-                                                  settings, segment))
+    if lower_formula.text != upper_formula.text and _composite.needs_pieces(lower_formula, upper_formula):
+        return finish(
+            _composite.integrate_pieces(formula, values, lower_formula, upper_formula, tolerance, settings, segment)
+        )
     try:
         return finish(segment(formula, values, lower_formula, upper_formula, target, tolerance, settings, relative))
     except NotCertifiable as refusal:
         if refusal.code not in _composite.INTERIOR_CODES or refusal.location is None:
             raise
-        return finish(_composite.integrate_pieces(formula, values, lower_formula, upper_formula, tolerance,
-                                                  settings, segment, refusal=refusal))
+        return finish(
+            _composite.integrate_pieces(
+                formula, values, lower_formula, upper_formula, tolerance, settings, segment, refusal=refusal
+            )
+        )
 
 
 @dataclass(frozen=True)
@@ -147,9 +171,17 @@ class Segment:
     precision_bits: int
 
 
-def segment(formula: Formula, values: dict[str, Fraction], lower: Limit, upper: Limit,
-            target: Callable[[float, float], float], tolerance: float, settings: Settings,
-            relative: float | None = None, precision_floor: int = 0) -> Segment:
+def segment(
+    formula: Formula,
+    values: dict[str, Fraction],
+    lower: Limit,
+    upper: Limit,
+    target: Callable[[float, float], float],
+    tolerance: float,
+    settings: Settings,
+    relative: float | None = None,
+    precision_floor: int = 0,
+) -> Segment:
     """Panels over [lower, upper] (either order), compiled engine first; limits are formulas or exact rationals.
 
     ``precision_floor``: the fewest bits the precise engine may use (a stretch 1e-40 wide next to 1/3 needs
@@ -158,12 +190,30 @@ def segment(formula: Formula, values: dict[str, Fraction], lower: Limit, upper: 
         return Segment(0.0, 0.0, "tolerance_met", 0, 0, (), {}, settings.precision_bits or 53)
     native = settings.arithmetic is None and settings.precision_bits is None and _fast.AVAILABLE
     if native:
-        fast = _try_fast(formula, values, lower, upper, tolerance, relative, target, settings.max_nodes,
-                         settings.deadline, settings.include_mesh)
+        fast = _try_fast(
+            formula,
+            values,
+            lower,
+            upper,
+            tolerance,
+            relative,
+            target,
+            settings.max_nodes,
+            settings.deadline,
+            settings.include_mesh,
+        )
         if fast is not None:
             outcome, low, high = fast
-            return Segment(low, high, outcome.stop_reason, outcome.nodes, outcome.panels,
-                           outcome.mesh if settings.include_mesh else (), outcome.bounds_used, 53)
+            return Segment(
+                low,
+                high,
+                outcome.stop_reason,
+                outcome.nodes,
+                outcome.panels,
+                outcome.mesh if settings.include_mesh else (),
+                outcome.bounds_used,
+                53,
+            )
     prec = settings.precision_bits or min(max(choose_precision(tolerance), precision_floor), 4096)
     arithmetic = settings.arithmetic or default_arithmetic()
     attempts = 0
@@ -172,8 +222,19 @@ def segment(formula: Formula, values: dict[str, Fraction], lower: Limit, upper: 
         program = Program(formula, ar, values)
         a = _enclosure(lower, ar, values, "lower_limit")
         b = _enclosure(upper, ar, values, "upper_limit")
-        outcome = _run(program, ar, a, b, _same(lower, upper), settings.max_nodes, settings.deadline,
-                       target, arithmetic, values, formula)
+        outcome = _run(
+            program,
+            ar,
+            a,
+            b,
+            _same(lower, upper),
+            settings.max_nodes,
+            settings.deadline,
+            target,
+            arithmetic,
+            values,
+            formula,
+        )
         attempts += 1
         if outcome[1] != "resolution_limit" or attempts >= 3 or prec * 2 > 4096:
             break
@@ -195,9 +256,18 @@ def _enclosure(limit: Limit, ar: Arithmetic, values: dict[str, Fraction], field:
     return enclose_limit(limit, ar, values, field)
 
 
-def _try_fast(formula: Formula, values: dict[str, Fraction], lower: Limit, upper: Limit, tolerance: float,
-              relative: float | None, target: Callable[[float, float], float], max_nodes: int,
-              deadline: float | None, include_mesh: bool) -> tuple[_fast.FastOutcome, float, float] | None:
+def _try_fast(
+    formula: Formula,
+    values: dict[str, Fraction],
+    lower: Limit,
+    upper: Limit,
+    tolerance: float,
+    relative: float | None,
+    target: Callable[[float, float], float],
+    max_nodes: int,
+    deadline: float | None,
+    include_mesh: bool,
+) -> tuple[_fast.FastOutcome, float, float] | None:
     """The compiled float64 engine's answer when it is a usable one; None hands over to the precise engine."""
     if _same(lower, upper):
         return None
@@ -215,15 +285,18 @@ def _try_fast(formula: Formula, values: dict[str, Fraction], lower: Limit, upper
     if isinstance(outcome, str):
         return None
     if sign < 0:
-        mesh = tuple(PanelReport(r.lower, r.upper, (-r.contribution[1], -r.contribution[0]), r.bound)
-                     for r in outcome.mesh)
+        mesh = tuple(
+            PanelReport(r.lower, r.upper, (-r.contribution[1], -r.contribution[0]), r.bound) for r in outcome.mesh
+        )
         low, high = outcome.enclosure
-        outcome = _fast.FastOutcome((-high, -low), outcome.stop_reason, outcome.nodes, outcome.panels,
-                                    outcome.bounds_used, mesh)
+        outcome = _fast.FastOutcome(
+            (-high, -low), outcome.stop_reason, outcome.nodes, outcome.panels, outcome.bounds_used, mesh
+        )
     low, high = outcome.enclosure
     value, bound = error_bound(low, high)
-    if not math.isfinite(bound) or (bound > target(low, high) and outcome.stop_reason not in ("deadline",
-                                                                                               "node_budget")):
+    if not math.isfinite(bound) or (
+        bound > target(low, high) and outcome.stop_reason not in ("deadline", "node_budget")
+    ):
         return None  # float64's resolution stopped it: the precise engine may get there, with more bits
     # past the deadline or the node budget, starting over on the slower engine with the same budget could
     # not do better and would run on past what the caller allowed: the compiled answer stands
@@ -240,10 +313,19 @@ def _exact_bounds(limit: Limit, values: dict[str, Fraction], field: str) -> tupl
     return ref.bounds_exact(enclose_limit(limit, ref, values, field))
 
 
-def _run(program: Program, ar: Arithmetic, a: object, b: object, same_text: bool, max_nodes: int,
-         deadline: float | None, target: Callable[[float, float], float], arithmetic: ArithmeticFactory,
-         values: dict[str, Fraction], formula: Formula
-         ) -> tuple[object, str, int, int, tuple[PanelReport, ...], dict[str, int]]:
+def _run(
+    program: Program,
+    ar: Arithmetic,
+    a: object,
+    b: object,
+    same_text: bool,
+    max_nodes: int,
+    deadline: float | None,
+    target: Callable[[float, float], float],
+    arithmetic: ArithmeticFactory,
+    values: dict[str, Fraction],
+    formula: Formula,
+) -> tuple[object, str, int, int, tuple[PanelReport, ...], dict[str, int]]:
     if same_text:
         return ar.zero, "tolerance_met", 0, 0, (), {}
     a_lo, a_hi = ar.bounds_exact(a)
@@ -257,13 +339,28 @@ def _run(program: Program, ar: Arithmetic, a: object, b: object, same_text: bool
         try:
             values_on = program.value(region)
         except ArithmeticFault as fault:
-            raise NotCertifiable(f"the integrand cannot be bounded between the limits: {fault.message}",
-                                 code="unbounded_near", location=ar.bounds(region)) from None
+            raise NotCertifiable(
+                f"the integrand cannot be bounded between the limits: {fault.message}",
+                code="unbounded_near",
+                location=ar.bounds(region),
+            ) from None
         return ar.mul(ar.sub(b, a), values_on), "tolerance_met", 0, 1, (), {"range": 1}
     fallback = None if isinstance(ar, MpmathArithmetic) else Program(formula, MpmathArithmetic(ar.prec), values)
-    refiner = Refiner(program, ar, max_nodes=max_nodes, deadline=deadline,
-                      retry=lambda p: Program(formula, arithmetic(p), values), fallback=fallback)
+    refiner = Refiner(
+        program,
+        ar,
+        max_nodes=max_nodes,
+        deadline=deadline,
+        retry=lambda p: Program(formula, arithmetic(p), values),
+        fallback=fallback,
+    )
     outcome = refiner.run(a, b, target)
     enclosure = outcome.enclosure if sign > 0 else ar.neg(outcome.enclosure)
-    return (enclosure, outcome.stop_reason, outcome.nodes, len(outcome.panels),
-            refiner.mesh(outcome.panels, sign), refiner.bounds_used)
+    return (
+        enclosure,
+        outcome.stop_reason,
+        outcome.nodes,
+        len(outcome.panels),
+        refiner.mesh(outcome.panels, sign),
+        refiner.bounds_used,
+    )

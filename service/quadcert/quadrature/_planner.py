@@ -28,8 +28,9 @@ MAX_PIECES = 4096
 MAX_PLANNED_INTERVALS = 10**12
 
 
-def _derivative_bound(program: Program, ar: Arithmetic, a: Any, b: Any, order: int
-                      ) -> tuple[Fraction | None, int, str | None]:
+def _derivative_bound(
+    program: Program, ar: Arithmetic, a: Any, b: Any, order: int
+) -> tuple[Fraction | None, int, str | None]:
     """Upper bound of max|f^(order)| on [a, b], refining the subdivision until it settles."""
     previous: Fraction | None = None
     pieces = 1
@@ -71,13 +72,15 @@ def _count(ar: Arithmetic, span: Any, bound: Fraction, tolerance: float, constan
     root = ar.pow_real(ratio, ar.exact(Fraction(1, power)))
     needed = ar.bounds_exact(ar.mul(span, root))[1]
     if needed > MAX_PLANNED_INTERVALS:
-        raise InvalidInput("the plan needs more than 10^12 intervals; loosen the tolerance",
-                           code="plan_too_large", field="tolerance")
+        raise InvalidInput(
+            "the plan needs more than 10^12 intervals; loosen the tolerance", code="plan_too_large", field="tolerance"
+        )
     return max(1, math.ceil(needed))
 
 
-def _rule(ar: Arithmetic, span: Any, bound: Fraction | None, reason: str | None, tolerance: float,
-          rule: str, order: int) -> RulePlan:
+def _rule(
+    ar: Arithmetic, span: Any, bound: Fraction | None, reason: str | None, tolerance: float, rule: str, order: int
+) -> RulePlan:
     if bound is None:
         return RulePlan(rule, 0, 0, 0.0, order, None, None, False, reason)
     if rule == "simpson":  # H = 2h per panel: span·H⁴·M/2880 = span·h⁴·M/180
@@ -91,9 +94,17 @@ def _rule(ar: Arithmetic, span: Any, bound: Fraction | None, reason: str | None,
     return RulePlan(rule, n, nodes, ar.bounds(h)[0], order, float(bound), ar.bounds(achieved)[1], True)
 
 
-def plan(integrand: str | Formula, lower_limit: LimitValue, upper_limit: LimitValue, tolerance: float, *,
-         variable: str = "x", parameters: Mapping[str, object] | None = None,
-         arithmetic: ArithmeticFactory = MpmathArithmetic, precision_bits: int = 96) -> Plan:
+def plan(
+    integrand: str | Formula,
+    lower_limit: LimitValue,
+    upper_limit: LimitValue,
+    tolerance: float,
+    *,
+    variable: str = "x",
+    parameters: Mapping[str, object] | None = None,
+    arithmetic: ArithmeticFactory = MpmathArithmetic,
+    precision_bits: int = 96,
+) -> Plan:
     """Uniform Simpson and trapezoid node counts that the global bounds guarantee.
 
     >>> p = plan("exp(x)", 0, 2, 0.5e-4)
@@ -103,8 +114,10 @@ def plan(integrand: str | Formula, lower_limit: LimitValue, upper_limit: LimitVa
     started = time.perf_counter()
     tolerance = _inputs.check_tolerance(tolerance)  # type: ignore[assignment]
     formula, values = prepare(integrand, variable, parameters)
-    lower, upper = parse_limit(lower_limit, "lower_limit", tuple(values)), parse_limit(upper_limit, "upper_limit",
-                                                                                      tuple(values))
+    lower, upper = (
+        parse_limit(lower_limit, "lower_limit", tuple(values)),
+        parse_limit(upper_limit, "upper_limit", tuple(values)),
+    )
     ar = arithmetic(precision_bits)
     program = Program(formula, ar, values)
     a = enclose_limit(lower, ar, values, "lower_limit")
@@ -116,7 +129,13 @@ def plan(integrand: str | Formula, lower_limit: LimitValue, upper_limit: LimitVa
     span = ar.sub(b, a)
     m4, pieces4, why4 = _derivative_bound(program, ar, a, b, 4)
     m2, pieces2, why2 = _derivative_bound(program, ar, a, b, 2)
-    return Plan(formula.text, lower.text, upper.text, tolerance,
-                _rule(ar, span, m4, why4, tolerance, "simpson", 4),
-                _rule(ar, span, m2, why2, tolerance, "trapezoid", 2),
-                max(pieces4, pieces2), time.perf_counter() - started)
+    return Plan(
+        formula.text,
+        lower.text,
+        upper.text,
+        tolerance,
+        _rule(ar, span, m4, why4, tolerance, "simpson", 4),
+        _rule(ar, span, m2, why2, tolerance, "trapezoid", 2),
+        max(pieces4, pieces2),
+        time.perf_counter() - started,
+    )

@@ -41,10 +41,10 @@ class _Panel:
     fm: Any
     fq: Any
     depth: int
-    enclosure: Any = None      # None: not bounded yet on this panel
-    order: int = -1            # the bound that gave the narrowest enclosure
+    enclosure: Any = None  # None: not bounded yet on this panel
+    order: int = -1  # the bound that gave the narrowest enclosure
     width: float = math.inf
-    centre: float = 0.0        # float midpoint of the enclosure, for the running estimate only
+    centre: float = 0.0  # float midpoint of the enclosure, for the running estimate only
     fault: str = ""
 
 
@@ -129,8 +129,16 @@ class ExactSum:
 class Refiner:
     """One adaptive run over [a, b] with a < b; not shared between threads."""
 
-    def __init__(self, program: Program, ar: Arithmetic, *, max_nodes: int, deadline: float | None,
-                 retry: Callable[[int], Program] | None = None, fallback: Program | None = None) -> None:
+    def __init__(
+        self,
+        program: Program,
+        ar: Arithmetic,
+        *,
+        max_nodes: int,
+        deadline: float | None,
+        retry: Callable[[int], Program] | None = None,
+        fallback: Program | None = None,
+    ) -> None:
         self.program = program
         self.variable = program.formula.variable
         self.ar = ar
@@ -164,8 +172,11 @@ class Refiner:
                     if again.certain:
                         break
         code = "magnitude_exceeded" if isinstance(fault, MagnitudeExceeded) else "undefined_at_point"
-        raise NotCertifiable(f"the integrand cannot be evaluated at {self.variable} = {where}: {fault.message}", code=code,
-                             location=self.ar.bounds(node)) from None
+        raise NotCertifiable(
+            f"the integrand cannot be evaluated at {self.variable} = {where}: {fault.message}",
+            code=code,
+            location=self.ar.bounds(node),
+        ) from None
 
     def _where(self, node: Any) -> str:
         lo, hi = self.ar.bounds(node)
@@ -194,8 +205,11 @@ class Refiner:
         except ArithmeticFault as fault:
             if fault.certain:
                 lo, hi = ar.bounds(ar.hull(panel.p, panel.q))
-                raise NotCertifiable(f"the integrand is undefined on {interval_text(lo, hi)}: {fault.message}",
-                                     code="undefined_on_interval", location=(lo, hi)) from None
+                raise NotCertifiable(
+                    f"the integrand is undefined on {interval_text(lo, hi)}: {fault.message}",
+                    code="undefined_on_interval",
+                    location=(lo, hi),
+                ) from None
             panel.fault = fault.message
             return
         panel.enclosure, panel.order, panel.width = enclosure, order, ar.width(enclosure)
@@ -204,14 +218,18 @@ class Refiner:
         """The same panel on the reference backend (exact endpoints), converted back exactly."""
         assert self.fallback is not None
         ar, ref = self.ar, self.fallback.ar
-        moved = _Panel(*(ref.from_bounds(*ar.bounds_exact(v)) for v in
-                         (panel.p, panel.m, panel.q, panel.fp, panel.fm, panel.fq)), panel.depth)
+        moved = _Panel(
+            *(ref.from_bounds(*ar.bounds_exact(v)) for v in (panel.p, panel.m, panel.q, panel.fp, panel.fm, panel.fq)),
+            panel.depth,
+        )
         enclosure, order = _enclose(self.fallback, ref, moved)
         return ar.from_bounds(*ref.bounds_exact(enclosure)), order
 
     def split(self, panel: _Panel) -> tuple[_Panel, _Panel]:
-        return (self.panel(panel.p, panel.m, panel.fp, panel.fm, panel.depth + 1),
-                self.panel(panel.m, panel.q, panel.fm, panel.fq, panel.depth + 1))
+        return (
+            self.panel(panel.p, panel.m, panel.fp, panel.fm, panel.depth + 1),
+            self.panel(panel.m, panel.q, panel.fm, panel.fq, panel.depth + 1),
+        )
 
     # -- the loop ----------------------------------------------------------------------------
     def run(self, a: Any, b: Any, target: Callable[[float, float], float]) -> Outcome:
@@ -292,10 +310,13 @@ class Refiner:
     def _unbounded(self, panel: _Panel, budget: bool = False) -> NotCertifiable:
         lo, hi = self.ar.bounds(self.ar.hull(panel.p, panel.q))
         when = " before the budget ran out" if budget else ""
-        return NotCertifiable(f"cannot bound the integrand near {self.variable} = {shown((lo + hi) / 2, 6, 'near')}"
-                              f"{when}; it may be "
-                              f"unbounded or undefined there ({panel.fault})", code="unbounded_near",
-                              location=(lo, hi))
+        return NotCertifiable(
+            f"cannot bound the integrand near {self.variable} = {shown((lo + hi) / 2, 6, 'near')}"
+            f"{when}; it may be "
+            f"unbounded or undefined there ({panel.fault})",
+            code="unbounded_near",
+            location=(lo, hi),
+        )
 
     def total(self, panels: Any) -> Any:
         ar = self.ar
@@ -310,6 +331,7 @@ class Refiner:
         reports = []
         for panel in ordered:
             low, high = ar.bounds(panel.enclosure if sign > 0 else ar.neg(panel.enclosure))
-            reports.append(PanelReport(ar.bounds(panel.p)[0], ar.bounds(panel.q)[1], (low, high),
-                                       _peano.BOUND_NAMES[panel.order]))
+            reports.append(
+                PanelReport(ar.bounds(panel.p)[0], ar.bounds(panel.q)[1], (low, high), _peano.BOUND_NAMES[panel.order])
+            )
         return tuple(reports)

@@ -13,12 +13,17 @@ from .._computation import Computation
 from .._problems import problem_response
 
 PROBLEM_RESPONSES: dict[int | str, dict[str, Any]] = {
-    status: {"description": description, "content": {"application/problem+json": {
-        "schema": {"$ref": "#/components/schemas/Problem"}}}}
-    for status, description in [(400, "Body is not JSON text (malformed_body)"), (413, "Body too large"),
-                                (422, "Bad formula or value, or not certifiable"),
-                                (503, "At capacity or shutting down (see Retry-After)"),
-                                (504, "Deadline passed")]
+    status: {
+        "description": description,
+        "content": {"application/problem+json": {"schema": {"$ref": "#/components/schemas/Problem"}}},
+    }
+    for status, description in [
+        (400, "Body is not JSON text (malformed_body)"),
+        (413, "Body too large"),
+        (422, "Bad formula or value, or not certifiable"),
+        (503, "At capacity or shutting down (see Retry-After)"),
+        (504, "Deadline passed"),
+    ]
 }
 
 

@@ -12,8 +12,13 @@ from ._common import PROBLEM_RESPONSES, computation, context, respond
 router = APIRouter(tags=["checks"], route_class=ExactRoute)
 
 
-@router.post("/v1/checks", operation_id="createCheck", response_model=CheckResponse, responses=PROBLEM_RESPONSES,
-             summary="Verdict on a claimed value: pass, fail or undecided")
+@router.post(
+    "/v1/checks",
+    operation_id="createCheck",
+    response_model=CheckResponse,
+    responses=PROBLEM_RESPONSES,
+    summary="Verdict on a claimed value: pass, fail or undecided",
+)
 async def create_check(body: CheckRequest, request: Request) -> JSONResponse:
     status, answer = await computation(request).check(body.model_dump(), context(request))
     return respond(request, status, answer)

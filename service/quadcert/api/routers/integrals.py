@@ -29,29 +29,53 @@ router = APIRouter(tags=["integrals"], route_class=ExactRoute)
 
 #: GET failures come in the requested format: one line of text (text, csv), XML, or problem JSON (json)
 PLAIN_PROBLEM_RESPONSES = {
-    status: {"description": f"{meaning}; a one-line reason in the requested format",
-             "content": {"text/plain": {"schema": {"type": "string"}},
-                         "application/xml": {"schema": {"type": "string"}},
-                         "application/problem+json": {"schema": {"$ref": "#/components/schemas/Problem"}}}}
-    for status, meaning in [(422, "Bad formula or value, not certifiable, or tolerance not met"),
-                            (503, "At capacity or shutting down (see Retry-After)"), (504, "Deadline passed")]
+    status: {
+        "description": f"{meaning}; a one-line reason in the requested format",
+        "content": {
+            "text/plain": {"schema": {"type": "string"}},
+            "application/xml": {"schema": {"type": "string"}},
+            "application/problem+json": {"schema": {"$ref": "#/components/schemas/Problem"}},
+        },
+    }
+    for status, meaning in [
+        (422, "Bad formula or value, not certifiable, or tolerance not met"),
+        (503, "At capacity or shutting down (see Retry-After)"),
+        (504, "Deadline passed"),
+    ]
 }
 
 
-@router.post("/v1/integrals", operation_id="createIntegral", response_model=IntegralResponse, responses=PROBLEM_RESPONSES,
-             summary="Certify one definite integral")
+@router.post(
+    "/v1/integrals",
+    operation_id="createIntegral",
+    response_model=IntegralResponse,
+    responses=PROBLEM_RESPONSES,
+    summary="Certify one definite integral",
+)
 async def create_integral(body: IntegralRequest, request: Request) -> JSONResponse:
     (status, answer), _ = await computation(request).integral(body.model_dump(), context(request))
     return respond(request, status, answer)
 
 
-@router.post("/v1/integrals/batch", operation_id="createIntegralBatch", response_model=BatchResponse, responses=PROBLEM_RESPONSES,
-             summary="Certify many integrals; one result or one problem per item, in order")
+@router.post(
+    "/v1/integrals/batch",
+    operation_id="createIntegralBatch",
+    response_model=BatchResponse,
+    responses=PROBLEM_RESPONSES,
+    summary="Certify many integrals; one result or one problem per item, in order",
+)
 async def create_batch(body: BatchRequest, request: Request) -> JSONResponse:
     settings = request.app.state.settings
     if len(body.items) > settings.max_batch_items:
-        return respond(request, 413, problem_body("batch_too_large", f"{len(body.items)} items; the limit is "
-                                                  f"{settings.max_batch_items}", **context(request)))
+        return respond(
+            request,
+            413,
+            problem_body(
+                "batch_too_large",
+                f"{len(body.items)} items; the limit is {settings.max_batch_items}",
+                **context(request),
+            ),
+        )
     engine = computation(request)
     base = context(request)
     group = f"batch-{base['request_id'] or id(body)}"  # the batch shares the pool as one party
@@ -61,41 +85,69 @@ async def create_batch(body: BatchRequest, request: Request) -> JSONResponse:
     async def one(index: int, item: IntegralRequest) -> dict:
         item_context = {**base, "instance": f"{base['instance']}#/items/{index}"}
         left = max(until - loop.time(), 1e-3)
-        (_, answer), _ = await engine.integral(item.model_dump(), item_context, wait=left, deadline=left,
-                                               group=group, compute=settings.request_deadline_seconds)
+        (_, answer), _ = await engine.integral(
+            item.model_dump(),
+            item_context,
+            wait=left,
+            deadline=left,
+            group=group,
+            compute=settings.request_deadline_seconds,
+        )
         return answer
 
     results = await asyncio.gather(*(one(i, item) for i, item in enumerate(body.items)))
     return ExactJSONResponse({"results": list(results)})
 
 
-@router.get("/v1/integral", operation_id="readIntegralValue", summary="One number for a spreadsheet cell",
-            responses={200: {"content": {"text/plain": {"schema": {"type": "string"}},
-                                         "text/csv": {"schema": {"type": "string"}},
-                                         "application/xml": {"schema": {"type": "string"}}}},
-                       304: {"description": "Not modified (ETag matched)"}, **PLAIN_PROBLEM_RESPONSES})
+@router.get(
+    "/v1/integral",
+    operation_id="readIntegralValue",
+    summary="One number for a spreadsheet cell",
+    responses={
+        200: {
+            "content": {
+                "text/plain": {"schema": {"type": "string"}},
+                "text/csv": {"schema": {"type": "string"}},
+                "application/xml": {"schema": {"type": "string"}},
+            }
+        },
+        304: {"description": "Not modified (ETag matched)"},
+        **PLAIN_PROBLEM_RESPONSES,
+    },
+)
 async def read_integral(
     request: Request,
-    integrand: Annotated[str, Query(max_length=4096, description="the formula, e.g. exp(-x^2); in a URL write "
-                                    "+ as %2B")],
-    lower_limit: Annotated[str, Query(max_length=512, description="a number, a constant expression (e.g. pi/2), or inf/-inf")],
+    integrand: Annotated[
+        str, Query(max_length=4096, description="the formula, e.g. exp(-x^2); in a URL write + as %2B")
+    ],
+    lower_limit: Annotated[
+        str, Query(max_length=512, description="a number, a constant expression (e.g. pi/2), or inf/-inf")
+    ],
     upper_limit: Annotated[str, Query(max_length=512, description="a number, a constant expression, or inf/-inf")],
-    tolerance: Annotated[str, Query(max_length=80, description="Absolute tolerance, read as the exact decimal "
-                                    "it spells")] = "1e-8",
+    tolerance: Annotated[
+        str, Query(max_length=80, description="Absolute tolerance, read as the exact decimal it spells")
+    ] = "1e-8",
     variable: Annotated[str, Query(max_length=64, description="the integration variable (default x)")] = "x",
-    relative_tolerance: Annotated[str | None, Query(max_length=80, description="also accept an error bound <= "
-                                                    "this times |integral| (below 1)")] = None,
+    relative_tolerance: Annotated[
+        str | None, Query(max_length=80, description="also accept an error bound <= this times |integral| (below 1)")
+    ] = None,
     parameter: Annotated[list[str] | None, Query(description="name:value, one parameter= per parameter")] = None,
     format: Annotated[Literal["text", "csv", "xml", "json"], Query(description="the answer's shape")] = "text",
-    field: Annotated[Literal["value", "error_bound", "low", "high", "nodes"] | None,
-                     Query(description="the one number to answer (text, csv, xml); default value")] = None,
-    max_nodes: Annotated[int | None, Query(ge=3, description="evaluation budget; the server default if absent")]
-    = None,
+    field: Annotated[
+        Literal["value", "error_bound", "low", "high", "nodes"] | None,
+        Query(description="the one number to answer (text, csv, xml); default value"),
+    ] = None,
+    max_nodes: Annotated[int | None, Query(ge=3, description="evaluation budget; the server default if absent")] = None,
 ) -> Response:
-    body = {"integrand": integrand, "lower_limit": lower_limit, "upper_limit": upper_limit,
-            "tolerance": _query_number(tolerance), "variable": variable,
-            "relative_tolerance": None if relative_tolerance is None else _query_number(relative_tolerance),
-            "max_nodes": max_nodes}
+    body = {
+        "integrand": integrand,
+        "lower_limit": lower_limit,
+        "upper_limit": upper_limit,
+        "tolerance": _query_number(tolerance),
+        "variable": variable,
+        "relative_tolerance": None if relative_tolerance is None else _query_number(relative_tolerance),
+        "max_nodes": max_nodes,
+    }
     engine = computation(request)
     try:
         refuse_unknown_keys(list(request.query_params.keys()), GET_KEYS)
@@ -103,8 +155,7 @@ async def read_integral(
         body["parameters"] = _parameters(parameter or [])
         tag = _etag(engine.canonical(body), format, field)
     except QuadcertError as error:
-        return _plain_problem(_with_hint(problem_body(**_args(error), **context(request)), request), format,
-                              request)
+        return _plain_problem(_with_hint(problem_body(**_args(error), **context(request)), request), format, request)
     headers = {"ETag": tag, "Cache-Control": "public, max-age=86400"}
     if _matches(request.headers.get("if-none-match"), tag):
         return Response(status_code=304, headers=headers)
@@ -114,17 +165,29 @@ async def read_integral(
     if not answer["tolerance_met"]:
         code = "deadline_exceeded" if answer["stop_reason"] == "deadline" else "tolerance_not_met"
         low, high = answer["enclosure"]
-        detail = (f"certified only to ±{shown(float(answer['error_bound']), 3, 'up')} (enclosure "
-                  f"[{bound_text(float(low), up=False)}, {bound_text(float(high), up=True)}], "
-                  f"{answer['stop_reason']}), not the tolerance {tolerance.strip()}")
+        detail = (
+            f"certified only to ±{shown(float(answer['error_bound']), 3, 'up')} (enclosure "
+            f"[{bound_text(float(low), up=False)}, {bound_text(float(high), up=True)}], "
+            f"{answer['stop_reason']}), not the tolerance {tolerance.strip()}"
+        )
         return _plain_problem(problem_body(code, detail, **context(request)), format, request)
     if format == "json":
         return ExactJSONResponse(answer, headers=headers)
     return Response(render(answer, format, field), media_type=MEDIA_TYPES[format], headers=headers)
 
 
-GET_KEYS = ("integrand", "lower_limit", "upper_limit", "tolerance", "variable", "relative_tolerance", "parameter",
-            "format", "field", "max_nodes")
+GET_KEYS = (
+    "integrand",
+    "lower_limit",
+    "upper_limit",
+    "tolerance",
+    "variable",
+    "relative_tolerance",
+    "parameter",
+    "format",
+    "field",
+    "max_nodes",
+)
 
 
 def _query_number(text: str) -> Decimal | str:
@@ -138,8 +201,9 @@ def _parameters(pairs: list[str]) -> dict[str, str]:
     for pair in pairs:
         name, sep, value = pair.partition(":")
         if not sep or not name:
-            raise InvalidInput(f"parameter {pair[:40]!r} must be written name:value", code="invalid_parameter",
-                               field="parameter")
+            raise InvalidInput(
+                f"parameter {pair[:40]!r} must be written name:value", code="invalid_parameter", field="parameter"
+            )
         values[name.strip()] = value.strip()
     return values
 
@@ -155,8 +219,11 @@ def _refuse_repeated_keys(request: Request) -> None:
     seen: set[str] = set()
     for key, _ in request.query_params.multi_items():
         if key in seen and key != "parameter":
-            raise InvalidInput(f"query key {key!r} is given more than once; give it once (only parameter= "
-                               "repeats)", code="repeated_query_key", field=key)
+            raise InvalidInput(
+                f"query key {key!r} is given more than once; give it once (only parameter= repeats)",
+                code="repeated_query_key",
+                field=key,
+            )
         seen.add(key)
 
 

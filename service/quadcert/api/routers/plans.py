@@ -12,8 +12,13 @@ from ._common import PROBLEM_RESPONSES, computation, context, respond
 router = APIRouter(tags=["plans"], route_class=ExactRoute)
 
 
-@router.post("/v1/plans", operation_id="createPlan", response_model=PlanResponse, responses=PROBLEM_RESPONSES,
-             summary="Uniform Simpson and trapezoid node counts guaranteed by global bounds")
+@router.post(
+    "/v1/plans",
+    operation_id="createPlan",
+    response_model=PlanResponse,
+    responses=PROBLEM_RESPONSES,
+    summary="Uniform Simpson and trapezoid node counts guaranteed by global bounds",
+)
 async def create_plan(body: PlanRequest, request: Request) -> JSONResponse:
     status, answer = await computation(request).plan(body.model_dump(), context(request))
     return respond(request, status, answer)

@@ -30,10 +30,12 @@ async def reference(request: Request) -> HTMLResponse:
 
 def render(document: dict[str, Any]) -> str:
     info = document.get("info", {})
-    parts = [f"<!doctype html><html lang=en><meta charset=utf-8><title>{escape(info.get('title', ''))} API"
-             f"</title><style>{_STYLE}</style><h1>{escape(info.get('title', ''))} {escape(info.get('version', ''))}"
-             f"</h1><p>{escape(info.get('description', ''))}</p><p>Machine-readable: <a href=\"/openapi.json\">"
-             "/openapi.json</a>. Worked examples: the openapi-notes folder of the source.</p>"]
+    parts = [
+        f"<!doctype html><html lang=en><meta charset=utf-8><title>{escape(info.get('title', ''))} API"
+        f"</title><style>{_STYLE}</style><h1>{escape(info.get('title', ''))} {escape(info.get('version', ''))}"
+        f'</h1><p>{escape(info.get("description", ""))}</p><p>Machine-readable: <a href="/openapi.json">'
+        "/openapi.json</a>. Worked examples: the openapi-notes folder of the source.</p>"
+    ]
     for path, operations in document.get("paths", {}).items():
         for method, operation in operations.items():
             parts.append(_operation(method, path, operation))
@@ -41,19 +43,24 @@ def render(document: dict[str, Any]) -> str:
 
 
 def _operation(method: str, path: str, operation: dict[str, Any]) -> str:
-    html = [f"<h2 id=\"{escape(operation.get('operationId', ''))}\"><span class=m>{method.upper()}</span> "
-            f"<code>{escape(path)}</code></h2><p>{escape(operation.get('summary', ''))}</p>"]
+    html = [
+        f'<h2 id="{escape(operation.get("operationId", ""))}"><span class=m>{method.upper()}</span> '
+        f"<code>{escape(path)}</code></h2><p>{escape(operation.get('summary', ''))}</p>"
+    ]
     parameters = operation.get("parameters", [])
     if parameters:
         html.append("<table><tr><th>parameter</th><th>in</th><th>meaning</th></tr>")
         for parameter in parameters:
-            html.append(f"<tr><td><code>{escape(parameter['name'])}</code></td><td>{escape(parameter['in'])}</td>"
-                        f"<td>{escape(parameter.get('description', ''))}</td></tr>")
+            html.append(
+                f"<tr><td><code>{escape(parameter['name'])}</code></td><td>{escape(parameter['in'])}</td>"
+                f"<td>{escape(parameter.get('description', ''))}</td></tr>"
+            )
         html.append("</table>")
     body = operation.get("requestBody", {}).get("content", {}).get("application/json", {}).get("schema", {})
     if "$ref" in body:
         html.append(f"<p>Body: <code>{escape(body['$ref'].rsplit('/', 1)[-1])}</code> (JSON).</p>")
-    responses = ", ".join(f"{escape(code)} {escape(r.get('description', ''))}"
-                          for code, r in operation.get("responses", {}).items())
+    responses = ", ".join(
+        f"{escape(code)} {escape(r.get('description', ''))}" for code, r in operation.get("responses", {}).items()
+    )
     html.append(f"<p>Answers: {responses}</p>")
     return "".join(html)
