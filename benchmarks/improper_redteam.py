@@ -15,12 +15,14 @@ false certificate; the run exits 1 on any miss or crash.
 from __future__ import annotations
 
 import argparse
+import itertools
 import math
 import random
 import sys
 import time
+from collections.abc import Callable
 from dataclasses import dataclass, field
-from typing import Any, Callable
+from typing import Any
 
 import mpmath
 
@@ -149,12 +151,12 @@ def _pieces(case: Case, spacing: Any) -> Any:
         k = max(1, math.ceil(3 / (case.power + 1)))
         points = case.splits
         total = MP.mpf(0)
-        for a, b in zip(points, points[1:]):
+        for a, b in itertools.pairwise(points):
             singular_at_a = case.kind == "lower end" or (case.kind == "inside" and a != 0)
             if singular_at_a:
-                total += MP.quad(lambda s: k * s ** (k - 1) * f(a + s**k), [0, (b - a) ** (MP.mpf(1) / k)])
+                total += MP.quad(lambda s, a=a: k * s ** (k - 1) * f(a + s**k), [0, (b - a) ** (MP.mpf(1) / k)])
             else:
-                total += MP.quad(lambda s: k * s ** (k - 1) * f(b - s**k), [0, (b - a) ** (MP.mpf(1) / k)])
+                total += MP.quad(lambda s, b=b: k * s ** (k - 1) * f(b - s**k), [0, (b - a) ** (MP.mpf(1) / k)])
         return total
     finite = [p for p in case.splits if MP.isfinite(p)]
     start = finite[0] if case.kind == "tail" else finite[0] - 40

@@ -14,7 +14,9 @@ from __future__ import annotations
 import math
 import statistics
 import time
-from typing import Any, Callable
+from collections.abc import Callable
+from functools import partial
+from typing import Any
 
 import flint
 import mpmath
@@ -202,20 +204,22 @@ def _ratio(text: str) -> tuple[int, int]:
     return value.numerator, value.denominator
 
 
+def _quad_pair(f: Any, a: float, b: float, tolerance: float) -> tuple[float, float]:
+    """scipy's value and its own error estimate."""
+    value, claimed = scipy.integrate.quad(f, a, b, epsabs=tolerance, epsrel=0, limit=2000)[:2]
+    return value, claimed
+
+
 def run(tolerances: list[float]) -> tuple[list[dict[str, Any]], dict[str, Any]]:
     rows = []
     for name, formula, a, b, numpy_f, mp_f, exact in CASES:
         for tolerance in tolerances:
-            seconds, ours = _best(lambda: integrate(formula, a, b, tolerance, deadline_seconds=60))
+            seconds, ours = _best(partial(integrate, formula, a, b, tolerance, deadline_seconds=60))
             contains = MP.mpf(ours.enclosure[0]) <= exact <= MP.mpf(ours.enclosure[1])
             with np.errstate(all="ignore"):
-                quad_seconds, (value, claimed) = _best(
-                    lambda: scipy.integrate.quad(numpy_f, _limit(a), _limit(b), epsabs=tolerance, epsrel=0, limit=2000)[
-                        :2
-                    ]
-                )
+                quad_seconds, (value, claimed) = _best(partial(_quad_pair, numpy_f, _limit(a), _limit(b), tolerance))
             with MP.workdps(max(15, int(-math.log10(tolerance)) + 5)):
-                mp_seconds, _ = _best(lambda: MP.quad(mp_f, [MP.mpf(_limit(a)), MP.mpf(_limit(b))]))
+                mp_seconds, _ = _best(partial(MP.quad, mp_f, [MP.mpf(_limit(a)), MP.mpf(_limit(b))]))
             flint_answer = _flint(formula, a, b, tolerance)
             rows.append(
                 {

@@ -12,8 +12,9 @@ e^-1000 scales) and near overflow (1e300, exp(x) up to 709) included, on random 
 * ``service``: POST /v1/integrals on an in-process app with two worker processes (exact JSON intake).
 
 The reference is python-flint's ``acb.integral`` at 200 bits, a rigorous ball. A **miss** is a returned
-enclosure disjoint from that ball: a false certificate. A ball too wide to decide is counted as unchecked, and an exception other than a coded refusal as a
-crash. The run prints a table of counts per path and exits 1 on any miss or crash.
+enclosure disjoint from that ball: a false certificate. A ball too wide to decide is counted as unchecked, and an
+exception other than a coded refusal as a crash. The run prints a table of counts per path and exits 1 on any miss
+or crash.
 """
 
 from __future__ import annotations
@@ -24,9 +25,10 @@ import math
 import random
 import sys
 import time
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from fractions import Fraction
-from typing import Any, Callable
+from typing import Any
 
 import flint
 

@@ -186,7 +186,7 @@ def parsing(items: int = 240, chars: int = 4000) -> None:
             probes.append(time.monotonic() - started)
             time.sleep(0.05)
         batch.join(600)
-        status, answer, seconds = results["batch"]
+        status, _answer, seconds = results["batch"]
         size = len(httpx.Request("POST", "http://x", json=body).content)
         print(
             f"batch of {items} distinct {chars}-character formulas ({size / 1024:.0f} KiB): {status} after "

@@ -21,10 +21,11 @@ import math
 import statistics
 import sys
 import time
-from dataclasses import asdict, dataclass
+from collections.abc import Callable
+from dataclasses import dataclass
 from fractions import Fraction
 from pathlib import Path
-from typing import Any, Callable
+from typing import Any
 
 import flint
 import mpmath
@@ -379,10 +380,14 @@ def markdown(rows: list[dict[str, Any]]) -> str:
         return format(value, fmt) if isinstance(value, float) else str(value)
 
     lines = [
-        "| integrand | kind | tol | ours s | nodes | panels | certified | lower-bound nodes | nodes / bound | "
-        "quad s | quad evals | quad claimed | quad actual | mpmath s | flint s | flint width | ours / flint |",
-        "| --- | --- | --- | ---: | ---: | ---: | --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | "
-        "---: | ---: |",
+        (
+            "| integrand | kind | tol | ours s | nodes | panels | certified | lower-bound nodes | nodes / bound | "
+            "quad s | quad evals | quad claimed | quad actual | mpmath s | flint s | flint width | ours / flint |"
+        ),
+        (
+            "| --- | --- | --- | ---: | ---: | ---: | --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | "
+            "---: | ---: |"
+        ),
     ]
     for r in rows:
         bound = r["simpson_lower_bound_nodes"]

@@ -18,7 +18,8 @@ import xml.etree.ElementTree as ET
 from decimal import Decimal
 from fractions import Fraction
 
-from hypothesis import example, given, strategies as st
+from hypothesis import example, given
+from hypothesis import strategies as st
 
 from quadcert.api._exact_json import dumps
 from quadcert.api._formats import FIELDS, render

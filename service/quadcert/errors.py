@@ -23,7 +23,7 @@ ad-hoc strings.
 from __future__ import annotations
 
 
-def _rebuild(cls: type, args: tuple, state: dict) -> "QuadcertError":
+def _rebuild(cls: type, args: tuple, state: dict) -> QuadcertError:
     """Unpickle an error with every field it had (code, column, field, location, ...)."""
     error = cls.__new__(cls)
     Exception.__init__(error, *args)

@@ -39,7 +39,7 @@ def test_parameter_text_is_checked_before_any_number_is_built(client: TestClient
     ],
 )
 def test_huge_json_integers_are_refused_with_their_field(client: TestClient, path: str, field: str, code: str) -> None:
-    body = '{"integrand": "x", "lower_limit": 0, "upper_limit": 1, "%s": %s%s}' % (
+    body = '{{"integrand": "x", "lower_limit": 0, "upper_limit": 1, "{}": {}{}}}'.format(
         field,
         "9" * 1400,
         ', "claimed_value": 0.5' if path == "/v1/checks" and field != "claimed_value" else "",

@@ -8,9 +8,9 @@ import signal
 
 import pytest
 
-from tests.conftest import HP, encloses
 from quadcert.api._pool import WorkerPool
 from quadcert.errors import DeadlineExceeded, Saturated, ShuttingDown, WorkerLost
+from tests.conftest import HP, encloses
 
 pytestmark = pytest.mark.anyio
 
@@ -41,7 +41,7 @@ async def test_killed_worker_fails_only_its_job() -> None:
     try:
         slow = asyncio.create_task(pool.run("sleep", {"seconds": 5}, deadline_seconds=30))
         await asyncio.sleep(0.3)
-        busy = [w for w in pool._workers if w.process.is_alive()][0]  # the first worker takes the first job
+        busy = next(w for w in pool._workers if w.process.is_alive())  # the first worker takes the first job
         os.kill(busy.process.pid, signal.SIGKILL)
         others = await asyncio.gather(
             *(

@@ -6,7 +6,8 @@ import threading
 from fractions import Fraction
 
 import pytest
-from hypothesis import assume, given, strategies as st
+from hypothesis import assume, given
+from hypothesis import strategies as st
 
 from quadcert import integrate
 from quadcert.arithmetic import FlintArithmetic, MpmathArithmetic, claim_flint_context, release_flint_context

@@ -14,7 +14,8 @@ from fractions import Fraction
 
 import flint
 import pytest
-from hypothesis import given, strategies as st
+from hypothesis import given
+from hypothesis import strategies as st
 from mpmath import libmp
 
 from quadcert.arithmetic import FlintArithmetic, Interval, MpmathArithmetic, fraction_down, fraction_up

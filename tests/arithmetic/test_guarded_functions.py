@@ -10,9 +10,10 @@ from __future__ import annotations
 from fractions import Fraction
 
 import flint
-import pytest
-from hypothesis import assume, given, strategies as st
 import mpmath
+import pytest
+from hypothesis import assume, given
+from hypothesis import strategies as st
 
 from quadcert.arithmetic import Interval, MpmathArithmetic
 from quadcert.errors import ArithmeticFault

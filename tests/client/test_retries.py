@@ -51,10 +51,12 @@ def test_503_is_retried_after_the_servers_delay(monkeypatch) -> None:
 
 def test_retries_end_and_the_problem_is_raised(monkeypatch) -> None:
     monkeypatch.setattr("tenacity.nap.time.sleep", lambda seconds: None)
-    handler = lambda request: httpx.Response(503, json=BUSY, headers={"retry-after": "1"})  # noqa: E731
-    with Client("http://quadcert.test", transport=httpx.MockTransport(handler), attempts=2) as client:
-        with pytest.raises(ProblemError) as info:
-            client.integrate("x", 0, 1)
+    handler = lambda request: httpx.Response(503, json=BUSY, headers={"retry-after": "1"})
+    with (
+        Client("http://quadcert.test", transport=httpx.MockTransport(handler), attempts=2) as client,
+        pytest.raises(ProblemError) as info,
+    ):
+        client.integrate("x", 0, 1)
     assert info.value.status == 503 and info.value.code == "saturated" and info.value.retry_after == 1.0
 
 
@@ -65,9 +67,8 @@ def test_a_refused_formula_is_not_retried() -> None:
         calls.append(request)
         return httpx.Response(422, json={**BUSY, "status": 422, "code": "unknown_function"})
 
-    with Client("http://quadcert.test", transport=httpx.MockTransport(handler)) as client:
-        with pytest.raises(ProblemError):
-            client.integrate("sinn(x)", 0, 1)
+    with Client("http://quadcert.test", transport=httpx.MockTransport(handler)) as client, pytest.raises(ProblemError):
+        client.integrate("sinn(x)", 0, 1)
     assert len(calls) == 1
 
 
@@ -77,9 +78,11 @@ def test_transport_failures_become_problem_errors(monkeypatch) -> None:
     def handler(request: httpx.Request) -> httpx.Response:
         raise httpx.ConnectError("connection refused", request=request)
 
-    with Client("http://quadcert.test", transport=httpx.MockTransport(handler)) as client:
-        with pytest.raises(ProblemError) as info:
-            client.integrate("x", 0, 1)
+    with (
+        Client("http://quadcert.test", transport=httpx.MockTransport(handler)) as client,
+        pytest.raises(ProblemError) as info,
+    ):
+        client.integrate("x", 0, 1)
     assert info.value.status == 0 and info.value.code == "service_unreachable"
     with pytest.raises(ProblemError) as info:
         Client("localhost:8000")
@@ -95,5 +98,5 @@ def test_importing_the_client_leaves_the_engine_unloaded() -> None:
         "import sys, quadcert.client; loaded = [m for m in sys.modules if m.split('.')[0] in "
         "('mpmath', 'flint') or m.endswith('_native') or m.startswith('quadcert.quadrature')]; print(loaded)"
     )
-    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
+    done = subprocess.run([sys.executable, "-c", code], check=False, capture_output=True, text=True, timeout=60)
     assert done.returncode == 0 and done.stdout.strip() == "[]", done.stdout + done.stderr

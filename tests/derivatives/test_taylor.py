@@ -5,7 +5,8 @@ from __future__ import annotations
 from fractions import Fraction
 
 import pytest
-from hypothesis import given, strategies as st
+from hypothesis import given
+from hypothesis import strategies as st
 
 from quadcert.arithmetic import MpmathArithmetic
 from quadcert.derivatives import Program
@@ -46,7 +47,7 @@ def test_coefficients_enclose_derivatives_at_every_point(text: str, left: int, s
     series = program.taylor(ar.hull(ar.exact(a), ar.exact(b)), 4)
     assert len(series) == 5
     t = a + (b - a) * Fraction(where, 100)
-    function = lambda v: _hp_eval(text, v)  # noqa: E731
+    function = lambda v: _hp_eval(text, v)
     for k, coefficient in enumerate(series):
         exact = HP.diff(function, HP.mpf(t.numerator) / t.denominator, k) / HP.factorial(k)
         lo, hi = HP.make_mpf(coefficient.lo), HP.make_mpf(coefficient.hi)
@@ -78,7 +79,7 @@ def _hp_eval(text: str, v):
 
 
 def _walk(node, v, names):
-    from quadcert.formula import Binary, Call, Constant, Negate, Number, Variable
+    from quadcert.formula import Call, Constant, Negate, Number, Variable
 
     if isinstance(node, Number):
         return HP.mpf(node.value.numerator) / node.value.denominator

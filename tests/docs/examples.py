@@ -20,12 +20,15 @@ from __future__ import annotations
 import json
 import re
 import sys
+from collections.abc import Iterator
 from pathlib import Path
-from typing import Any, Iterator
+from typing import Any
 
 ROOT = Path(__file__).resolve().parents[2]
 FILES = [ROOT / "README.md", *sorted((ROOT / "openapi-notes").glob("*.md"))]
-MARKER = re.compile(r"<!-- answer: (GET|POST) (\S+)(?: (\{.*?\}))?(?:; shorten (\w+))? -->\n```(\w*)\n(.*?)```", re.S)
+MARKER = re.compile(
+    r"<!-- answer: (GET|POST) (\S+)(?: (\{.*?\}))?(?:; shorten (\w+))? -->\n```(\w*)\n(.*?)```", re.DOTALL
+)
 VOLATILE = ("compute_seconds", "request_id", "cached")
 WIDTH = 112
 
@@ -61,7 +64,7 @@ def examples(text: str) -> Iterator[re.Match]:
 
 def regenerate(client: Any, text: str) -> str:
     def replace(match: re.Match) -> str:
-        method, target, body, shorten, language, _ = match.groups()
+        method, target, body, shorten, _language, _ = match.groups()
         head = match.group(0)[: match.start(6) - match.start(0)]
         return head + answer(client, method, target, body, shorten) + "```"
 

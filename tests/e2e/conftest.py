@@ -8,8 +8,8 @@ import socket
 import subprocess
 import sys
 import time
+from collections.abc import Iterator
 from dataclasses import dataclass
-from typing import Iterator
 
 import httpx
 import pytest

@@ -7,9 +7,9 @@ No assertion here is about speed: the checks are statuses, shapes, orderings and
 from __future__ import annotations
 
 import signal
-import sys
 import socket
 import subprocess
+import sys
 import threading
 import time
 from typing import Any
@@ -166,11 +166,16 @@ def test_serve_says_where_it_listens_and_refuses_bad_ports() -> None:
     try:
         port = running.url.rsplit(":", 1)[1]
         taken = subprocess.run(
-            [sys.executable, "-m", "quadcert.cli", "serve", "--port", port], capture_output=True, text=True, timeout=60
+            [sys.executable, "-m", "quadcert.cli", "serve", "--port", port],
+            check=False,
+            capture_output=True,
+            text=True,
+            timeout=60,
         )
         assert taken.returncode == 2 and "is in use" in taken.stderr and "started" not in taken.stderr
         wrong = subprocess.run(
             [sys.executable, "-m", "quadcert.cli", "serve", "--port", "99999"],
+            check=False,
             capture_output=True,
             text=True,
             timeout=60,

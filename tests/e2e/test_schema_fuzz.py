@@ -1,7 +1,7 @@
 """schemathesis against the served OpenAPI document: no 5xx, and responses match the schema.
 
-The one check left out is explained beside it. Cases come from schemathesis' strategies for each operation; hypothesis drives them directly, so the test does
-not depend on schemathesis' pytest plugin.
+The one check left out is explained beside it. Cases come from schemathesis' strategies for each operation;
+hypothesis drives them directly, so the test does not depend on schemathesis' pytest plugin.
 """
 
 from __future__ import annotations
@@ -15,7 +15,7 @@ from hypothesis import HealthCheck, given, settings
 EXAMPLES = int(os.environ.get("QUADCERT_SCHEMA_EXAMPLES", "25"))
 
 schemathesis = pytest.importorskip("schemathesis")
-from schemathesis.specs.openapi.checks import positive_data_acceptance  # noqa: E402
+from schemathesis.specs.openapi.checks import positive_data_acceptance
 
 # A schema-valid body may still hold a formula that cannot be read or integrated; 422 is the contract there,
 # so the "valid data must be accepted" check does not apply. Every other check does.
@@ -35,7 +35,7 @@ def test_every_operation_survives_generated_requests(server) -> None:
 
         @given(case=operation.as_strategy())
         @settings(max_examples=EXAMPLES, deadline=None, suppress_health_check=list(HealthCheck), database=None)
-        def exercise(case) -> None:
+        def exercise(case, operation=operation) -> None:
             response = case.call(timeout=30)
             seen.setdefault(operation.label, set()).add(response.status_code)
             assert response.status_code < 500 or response.status_code == 503, (

@@ -1,6 +1,7 @@
 """Random text never escapes the parser except as a coded FormulaError (bounded hypothesis run)."""
 
-from hypothesis import given, strategies as st
+from hypothesis import given
+from hypothesis import strategies as st
 
 from quadcert.errors import FormulaError
 from quadcert.formula import parse

@@ -12,7 +12,7 @@ from typing import Any
 import flint
 import mpmath
 
-from quadcert.formula import Binary, Call, Constant, Negate, Number, Parameter, Variable
+from quadcert.formula import Binary, Call, Constant, Negate, Number, Variable
 
 MP = mpmath.MPContext()
 

@@ -16,11 +16,11 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
+from quadcert.arithmetic import to_fraction
 from quadcert.formula import parse
 from quadcert.improper import InTail, NearPoint, Unsupported
 from quadcert.improper._at_infinity import Growth
 from quadcert.improper._near_point import Power
-from quadcert.arithmetic import to_fraction
 
 from ._reference import MP, arb_value, mp_value
 

@@ -7,7 +7,10 @@ log, sqrt and division are kept away from their singular points), so the referen
 
 from __future__ import annotations
 
-from hypothesis import given, settings, strategies as st
+import operator
+
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from quadcert import integrate
 from quadcert.arithmetic import FlintArithmetic, MpmathArithmetic, claim_flint_context, release_flint_context
@@ -39,17 +42,23 @@ SAFE_UNARY = [
 ]
 
 
+_OPERATORS = {"+": operator.add, "-": operator.sub, "*": operator.mul}
+
+
+def _composed(f, g):
+    return lambda x: f(g(x))
+
+
+def _joined(op, f, g):
+    return lambda x: op(f(x), g(x))
+
+
 def _combine(children):
     unary = st.tuples(st.sampled_from(SAFE_UNARY), children).map(
-        lambda t: (t[0][0].format(t[1][0]), (lambda f, g: lambda x: f(g(x)))(t[0][1], t[1][1]))
+        lambda t: (t[0][0].format(t[1][0]), _composed(t[0][1], t[1][1]))
     )
-    binary = st.tuples(st.sampled_from(["+", "-", "*"]), children, children).map(
-        lambda t: (
-            f"({t[1][0]}) {t[0]} ({t[2][0]})",
-            (lambda op, f, g: lambda x: op(f(x), g(x)))(
-                {"+": lambda a, b: a + b, "-": lambda a, b: a - b, "*": lambda a, b: a * b}[t[0]], t[1][1], t[2][1]
-            ),
-        )
+    binary = st.tuples(st.sampled_from(sorted(_OPERATORS)), children, children).map(
+        lambda t: (f"({t[1][0]}) {t[0]} ({t[2][0]})", _joined(_OPERATORS[t[0]], t[1][1], t[2][1]))
     )
     return unary | binary
 

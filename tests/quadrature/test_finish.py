@@ -8,7 +8,8 @@ from __future__ import annotations
 import math
 from fractions import Fraction
 
-from hypothesis import given, strategies as st
+from hypothesis import given
+from hypothesis import strategies as st
 
 from quadcert.quadrature._finish import difference_up, error_bound
 
@@ -56,6 +57,6 @@ def test_certified_digits_are_shared_by_the_whole_enclosure(low: float, spread: 
     if text is None:
         return
     value = Decimal(text)
-    _, digits, exponent = value.as_tuple()
+    _, _digits, exponent = value.as_tuple()
     unit = Decimal(1).scaleb(exponent)
     assert value <= Decimal(low) and Decimal(high) < value + unit, (low, high, text)

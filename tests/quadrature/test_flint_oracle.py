@@ -9,7 +9,8 @@ from __future__ import annotations
 from fractions import Fraction
 
 import flint
-from hypothesis import given, strategies as st
+from hypothesis import given
+from hypothesis import strategies as st
 
 from quadcert import integrate
 from tests.conftest import HP, encloses

@@ -59,6 +59,7 @@ def test_bounded_fuzz_run_finds_nothing(tmp_path) -> None:
             f"-artifact_prefix={tmp_path}/",
             str(corpus),
         ],
+        check=False,
         capture_output=True,
         text=True,
         timeout=600,

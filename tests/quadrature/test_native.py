@@ -13,15 +13,16 @@ from fractions import Fraction
 
 import flint
 import pytest
-from hypothesis import assume, given, strategies as st
+from hypothesis import assume, given
+from hypothesis import strategies as st
 
 from quadcert.arithmetic import MpmathArithmetic
 from quadcert.derivatives import Program
 from quadcert.errors import NotCertifiable
 from quadcert.formula import parse
 from quadcert.quadrature import _fast, integrate
-from tests.quadrature import native_probe
 from tests.conftest import HP, encloses
+from tests.quadrature import native_probe
 
 pytestmark = pytest.mark.skipif(not _fast.AVAILABLE, reason="the C engine was not built")
 

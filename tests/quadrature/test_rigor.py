@@ -156,7 +156,7 @@ def test_results_below_the_float_range_are_enclosed(integrand, a, b, exact, sour
     result = integrate(integrand, a, b, 1e-8, arithmetic=backend)
     assert encloses(result.enclosure, exact), (source, result.enclosure)
     assert result.error_bound > 0, source
-    low, high = result.enclosure
+    low, _high = result.enclosure
     assert math.copysign(1, low) > 0 or low < 0, "a zero bound prints as 0, never -0"
 
 

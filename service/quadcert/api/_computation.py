@@ -15,14 +15,13 @@ from fractions import Fraction
 from typing import Any
 
 from .._version import ENGINE_VERSION
-from ..errors import QuadcertError
+from ..errors import QuadcertError, ServiceError
 from ..formula import parse
-from ..quadrature._inputs import check_parameters
 from ..quadrature._endpoints import parse_limit
+from ..quadrature._inputs import check_parameters
 from ._cache import ResultCache, cache_key
 from ._jobs import _error
 from ._metrics import Metrics
-from ..errors import ServiceError
 from ._pool import WorkerPool
 from ._problems import from_engine_error, problem_body
 from ._settings import Settings

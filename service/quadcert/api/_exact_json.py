@@ -10,8 +10,9 @@ them to exact rationals.
 from __future__ import annotations
 
 import json
+from collections.abc import Callable, Coroutine
 from decimal import Decimal
-from typing import Any, Callable, Coroutine
+from typing import Any
 
 import simplejson
 from fastapi import Request, Response

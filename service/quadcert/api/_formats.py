@@ -16,7 +16,7 @@ MEDIA_TYPES = {
 }
 
 
-def number_text(value: float | int) -> str:
+def number_text(value: float) -> str:
     """Shortest text that round-trips a float64, dot as decimal separator, no exponent surprises."""
     if isinstance(value, int):
         return str(value)

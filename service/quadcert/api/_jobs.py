@@ -4,7 +4,8 @@ from __future__ import annotations
 
 import math
 import traceback
-from typing import Any, Callable
+from collections.abc import Callable
+from typing import Any
 
 from ..errors import FormulaError, InvalidInput, NotCertifiable, QuadcertError
 from ..quadrature import check, integrate, plan

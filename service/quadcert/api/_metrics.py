@@ -2,7 +2,8 @@
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING, Iterator
+from collections.abc import Iterator
+from typing import TYPE_CHECKING
 
 from prometheus_client import CollectorRegistry, Counter, Histogram
 from prometheus_client.core import CounterMetricFamily, GaugeMetricFamily
@@ -14,7 +15,7 @@ if TYPE_CHECKING:
 
 
 class _PoolCollector(Collector):
-    def __init__(self, pool: "WorkerPool", cache: "ResultCache") -> None:
+    def __init__(self, pool: WorkerPool, cache: ResultCache) -> None:
         self.pool, self.cache = pool, cache
 
     def collect(self) -> Iterator[GaugeMetricFamily | CounterMetricFamily]:
@@ -32,7 +33,7 @@ class _PoolCollector(Collector):
 
 
 class Metrics:
-    def __init__(self, pool: "WorkerPool", cache: "ResultCache") -> None:
+    def __init__(self, pool: WorkerPool, cache: ResultCache) -> None:
         self.registry = CollectorRegistry()
         self.requests = Counter(
             "quadcert_http_requests", "HTTP requests by route and status", ["route", "status"], registry=self.registry

@@ -7,7 +7,8 @@ import logging
 import re
 import time
 import uuid
-from typing import Any, Awaitable, Callable
+from collections.abc import Awaitable, Callable
+from typing import Any
 
 from ._problems import PROBLEM_MEDIA_TYPE, problem_body, problem_headers
 
@@ -110,7 +111,7 @@ class RequestContext:
         else:
             try:
                 await self.app(scope, receive, send_with_id)
-            except Exception:  # noqa: BLE001 - answered here, so the connection stays usable
+            except Exception:
                 log.exception("unhandled error", extra={"request_id": request_id, "path": path})
                 if started_response["sent"]:
                     raise  # half a response is out: only closing the connection is honest

@@ -272,7 +272,7 @@ class WorkerPool:
                 await asyncio.wait_for(
                     self._changed.wait_for(lambda: self.closed or self._has_room(group)), timeout=patience
                 )
-        except asyncio.TimeoutError:
+        except TimeoutError:
             raise Saturated("all workers are busy and the queue is full") from None
         if self.closed:
             raise ShuttingDown("the service is shutting down")
@@ -347,7 +347,7 @@ class WorkerPool:
             raise
         try:
             reply_id, answer = await asyncio.wait_for(_receive(loop, worker.socket), timeout=left)
-        except asyncio.TimeoutError:
+        except TimeoutError:
             log.warning("job over deadline; restarting worker", extra={"kind": job.kind, "deadline": left})
             await self._replace(index)
             raise DeadlineExceeded(f"the computation passed its {left:.3g} s deadline") from None

@@ -7,9 +7,8 @@ from typing import Any
 
 from fastapi.responses import JSONResponse
 
-from ._exact_json import ExactJSONResponse
-
 from .. import __version__
+from ._exact_json import ExactJSONResponse
 
 PROBLEM_MEDIA_TYPE = "application/problem+json"
 
@@ -124,15 +123,19 @@ PROBLEM_TYPES: dict[str, tuple[int, str, str]] = {
     "divergent_integral": (
         422,
         "The integral diverges",
-        "Proved: next to 'location' (a point, or ±inf) the "
-        "integrand keeps one sign and is at least a multiple of a power that is not integrable; "
-        "'detail' gives that minorant.",
+        (
+            "Proved: next to 'location' (a point, or ±inf) the "
+            "integrand keeps one sign and is at least a multiple of a power that is not integrable; "
+            "'detail' gives that minorant."
+        ),
     ),
     "singularity_not_bounded": (
         422,
         "The integrand cannot be bounded next to a singular point",
-        "No envelope rule applies at 'location'; 'detail' names the subexpression. "
-        "Rewrite the formula, or split the interval there.",
+        (
+            "No envelope rule applies at 'location'; 'detail' names the subexpression. "
+            "Rewrite the formula, or split the interval there."
+        ),
     ),
     "singularity_undecided": (
         422,
@@ -147,9 +150,11 @@ PROBLEM_TYPES: dict[str, tuple[int, str, str]] = {
     "tail_undecided": (
         422,
         "Convergence of a tail is undecided",
-        "The best envelope found is not integrable and "
-        "no minorant of one sign proves divergence; integrals that converge only conditionally, "
-        "such as sin(x)/x on [0, inf), are refused.",
+        (
+            "The best envelope found is not integrable and "
+            "no minorant of one sign proves divergence; integrals that converge only conditionally, "
+            "such as sin(x)/x on [0, inf), are refused."
+        ),
     ),
     "arithmetic_fault": (422, _CERTIFY, "Interval arithmetic could not bound a value."),
     "magnitude_exceeded": (422, "A value in the computation is too large", "A value beyond 2^65536 arose."),

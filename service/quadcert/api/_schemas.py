@@ -3,10 +3,19 @@
 from __future__ import annotations
 
 from decimal import Decimal
-from typing import Annotated, Any, Literal, Union
+from typing import Annotated, Any, Literal
 
-from pydantic import BaseModel, ConfigDict, Field, PlainValidator, StrictBool, StrictInt, StrictStr, WithJsonSchema
-from pydantic import conlist
+from pydantic import (
+    BaseModel,
+    ConfigDict,
+    Field,
+    PlainValidator,
+    StrictBool,
+    StrictInt,
+    StrictStr,
+    WithJsonSchema,
+    conlist,
+)
 
 from ..results import StopReason, Verdict  # the engine's own state types, not a second copy
 
@@ -16,7 +25,7 @@ def _json_number(value: Any) -> Decimal | int:
     if isinstance(value, float):
         value = Decimal(repr(value))
     if isinstance(value, bool) or not isinstance(value, (Decimal, int)):
-        raise ValueError("must be a JSON number")
+        raise ValueError("must be a JSON number")  # noqa: TRY004 - pydantic reports a ValueError as the field's error
     return value  # NaN and infinities pass here, so that the engine refuses them with the field's own code
 
 
@@ -36,7 +45,7 @@ Limit = Annotated[
 #: a closed interval [low, high] as two numbers
 Pair = conlist(float, min_length=2, max_length=2)
 #: a stretch of the mesh or a refusal's location: numbers, or "inf"/"-inf" at a tail
-Ends = conlist(Union[float, Literal["inf", "-inf"]], min_length=2, max_length=2)
+Ends = conlist(float | Literal["inf", "-inf"], min_length=2, max_length=2)
 
 
 class _Strict(BaseModel):
@@ -86,8 +95,8 @@ class BatchRequest(_Strict):
 
 
 class Panel(BaseModel):
-    lower: Union[float, Literal["-inf"]]
-    upper: Union[float, Literal["inf"]]
+    lower: float | Literal["-inf"]
+    upper: float | Literal["inf"]
     contribution: Pair
     bound: str
 

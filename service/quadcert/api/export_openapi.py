@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import json
 
-from .main import create_app
 from ._settings import Settings
+from .main import create_app
 
 
 def document() -> dict:

@@ -11,8 +11,9 @@ change, so instances are safe to use from concurrent callers.
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from fractions import Fraction
-from typing import Any, Callable, Protocol
+from typing import Any, Protocol
 
 from ..errors import InvalidInput
 from . import _kernels as kernels
@@ -83,7 +84,7 @@ class MpmathArithmetic:
     True
     """
 
-    __slots__ = ("prec", "zero", "one", "_constants")
+    __slots__ = ("_constants", "one", "prec", "zero")
 
     def __init__(self, prec: int) -> None:
         if not MIN_PRECISION <= prec <= MAX_PRECISION:
@@ -171,5 +172,5 @@ class MpmathArithmetic:
         return kernels.hull(kernels.from_fraction(low, self.prec), kernels.from_fraction(high, self.prec))
 
     def width(self, a: Interval) -> float:
-        lo, hi = self.bounds(kernels.sub(Interval.point(a.hi), Interval.point(a.lo), 53))
+        _lo, hi = self.bounds(kernels.sub(Interval.point(a.hi), Interval.point(a.lo), 53))
         return hi

@@ -13,8 +13,9 @@ from __future__ import annotations
 
 import math
 import threading
+from collections.abc import Callable
 from fractions import Fraction
-from typing import Any, Callable
+from typing import Any
 
 import flint
 
@@ -120,7 +121,7 @@ class FlintArithmetic:
     True
     """
 
-    __slots__ = ("prec", "zero", "one", "_constants")
+    __slots__ = ("_constants", "one", "prec", "zero")
 
     def __init__(self, prec: int) -> None:
         if not flint_context_claimed():

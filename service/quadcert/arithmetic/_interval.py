@@ -27,7 +27,7 @@ class Interval(NamedTuple):
     hi: Raw
 
     @classmethod
-    def point(cls, value: Raw) -> "Interval":
+    def point(cls, value: Raw) -> Interval:
         return cls(value, value)
 
     @property

@@ -18,8 +18,8 @@ Ranges of non-monotone functions are found from rigorous enclosures of pi
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from fractions import Fraction
-from typing import Callable
 
 from mpmath import libmp
 
@@ -371,7 +371,7 @@ def pow_int(a: Interval, n: int, prec: int) -> Interval:
     for end in (a.lo, a.hi):
         if end[1] and (end[2] + end[3]) * n > MAX_MAGNITUDE_BITS:
             raise MagnitudeExceeded(f"{_text(a)}^{n} is too large to compute with")
-    power: PointFunction = lambda x, wp, rnd: libmp.mpf_pow_int(x, n, wp, rnd)  # noqa: E731
+    power: PointFunction = lambda x, wp, rnd: libmp.mpf_pow_int(x, n, wp, rnd)
     if n % 2 or a.lo[0] == 0:  # odd power, or even power of a non-negative interval: increasing
         return _increasing(power, a, prec)
     if _le(a.hi, ZERO):  # even power of a non-positive interval

@@ -4,13 +4,14 @@ from __future__ import annotations
 
 import argparse
 import contextlib
-import signal
-import threading
 import re
+import signal
 import sys
+import threading
 import time
+from collections.abc import Iterator, Sequence
 from decimal import Decimal
-from typing import Any, Iterator, Sequence
+from typing import Any
 
 import simplejson
 
@@ -87,7 +88,7 @@ def _time_left(args: argparse.Namespace) -> float | None:
     return None if until is None else max(until - time.monotonic(), 1e-3)
 
 
-def _client(url: str, args: argparse.Namespace | None = None):  # noqa: ANN202 - imported lazily
+def _client(url: str, args: argparse.Namespace | None = None):
     from ..client import Client
 
     left = None if args is None else _time_left(args)
@@ -309,12 +310,12 @@ def _batch(args: argparse.Namespace) -> int:
                 outcomes.append(_table.outcome_of(integrate(**request)))
             except QuadcertError as error:
                 outcomes.append(_table.outcome_of(problem={"code": error.code, "detail": error.message}))
-    output = open(args.output, "w", newline="", encoding="utf-8") if args.output else sys.stdout
-    try:
+    with (
+        open(args.output, "w", newline="", encoding="utf-8")
+        if args.output
+        else contextlib.nullcontext(sys.stdout) as output
+    ):
         _table.write_rows(output, header, rows, outcomes, dialect)
-    finally:
-        if args.output:
-            output.close()
     bad = sum(o["status"] != "certified" for o in outcomes)
     print(f"{len(outcomes) - bad} of {len(outcomes)} rows certified", file=sys.stderr)
     return EXIT_OK if bad == 0 else EXIT_UNDECIDED
@@ -333,8 +334,10 @@ def _plan(args: argparse.Namespace) -> int:
 
 def _describe_plan(result: Plan) -> str:
     lines = [
-        f"uniform meshes for {result.integrand} on [{result.lower_limit}, {result.upper_limit}], "
-        f"tolerance {shown(result.tolerance, 6, 'near')}"
+        (
+            f"uniform meshes for {result.integrand} on [{result.lower_limit}, {result.upper_limit}], "
+            f"tolerance {shown(result.tolerance, 6, 'near')}"
+        )
     ]
     for rule in (result.simpson, result.trapezoid):
         if rule.available:

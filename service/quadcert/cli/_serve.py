@@ -14,16 +14,16 @@ import logging
 import math
 import socket
 import sys
-from typing import Any, Iterator
+from collections.abc import Iterator
+from typing import Any
 
 import uvicorn
-
 from pydantic import ValidationError
 
 from .. import __version__
 from ..api import Settings, create_app
-from ..errors import InvalidInput
 from ..api._http import protocol_options
+from ..errors import InvalidInput
 
 log = logging.getLogger("quadcert.serve")
 BACKSTOP_SECONDS = 3  # after the grace period, time for the 503 answers to be written

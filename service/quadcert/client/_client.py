@@ -3,9 +3,9 @@
 from __future__ import annotations
 
 import math
-
+from collections.abc import Mapping
 from decimal import Decimal, InvalidOperation
-from typing import Any, Mapping
+from typing import Any, Self
 
 import httpx
 import simplejson
@@ -224,7 +224,7 @@ class Client:
                 return _answer(response)
         raise AssertionError("unreachable")  # tenacity either returns or re-raises
 
-    def __enter__(self) -> "Client":
+    def __enter__(self) -> Self:
         return self
 
     def __exit__(self, *exc: object) -> None:
@@ -284,7 +284,7 @@ class AsyncClient:
                 return _answer(response)
         raise AssertionError("unreachable")
 
-    async def __aenter__(self) -> "AsyncClient":
+    async def __aenter__(self) -> Self:
         return self
 
     async def __aexit__(self, *exc: object) -> None:

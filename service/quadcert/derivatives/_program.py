@@ -7,8 +7,9 @@ the work that depends on the variable.
 
 from __future__ import annotations
 
+from collections.abc import Callable, Mapping
 from fractions import Fraction
-from typing import Any, Callable, Mapping
+from typing import Any
 
 from ..arithmetic import Arithmetic
 from ..errors import InvalidInput
@@ -98,7 +99,6 @@ class Program:
         return self._binary(node)
 
     def _call(self, node: Call) -> Compiled:
-        ar = self.ar
         args = [self._compile(a) for a in (distinct_arguments(node) if node.function in ("min", "max") else node.args)]
         if all(kind == "const" for kind, _ in args):
             values = [[payload] for _, payload in args]

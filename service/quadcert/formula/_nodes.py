@@ -8,7 +8,6 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Union
 
 
 @dataclass(frozen=True, slots=True)
@@ -37,23 +36,23 @@ class Constant:
 
 @dataclass(frozen=True, slots=True)
 class Negate:
-    operand: "Node"
+    operand: Node
 
 
 @dataclass(frozen=True, slots=True)
 class Binary:
     op: str  # one of + - * / ^
-    left: "Node"
-    right: "Node"
+    left: Node
+    right: Node
 
 
 @dataclass(frozen=True, slots=True)
 class Call:
     function: str
-    args: tuple["Node", ...]
+    args: tuple[Node, ...]
 
 
-Node = Union[Number, Variable, Parameter, Constant, Negate, Binary, Call]
+Node = Number | Variable | Parameter | Constant | Negate | Binary | Call
 
 
 def distinct_arguments(node: Call) -> tuple[Node, ...]:

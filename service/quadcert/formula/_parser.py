@@ -12,8 +12,8 @@ Grammar (``^`` binds tightest and is right-associative; ``-x^2`` is ``-(x^2)``):
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from functools import cached_property, lru_cache
 from fractions import Fraction
+from functools import cached_property, lru_cache
 
 from ..errors import FormulaError
 from . import _limits

@@ -7,9 +7,10 @@ and the least |g| on the piece when g is large). See docs/improper-integrals.md,
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass, replace
 from fractions import Fraction
-from typing import Any, Generic, Mapping, TypeVar
+from typing import Any, Generic, TypeVar
 
 from ..arithmetic import Interval
 from ..derivatives import Program

@@ -9,9 +9,9 @@ The rules are listed, each with its reason, in ``docs/improper-integrals.md``.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Mapping
 
 from ..arithmetic import Interval
 from ..derivatives import Program

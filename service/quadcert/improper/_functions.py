@@ -14,7 +14,7 @@ if TYPE_CHECKING:
 
 
 # -- next to a point -------------------------------------------------------------------------------------
-def near_call(near: "NearPoint", node: Call) -> "Envelope":
+def near_call(near: NearPoint, node: Call) -> Envelope:
     from ._near_point import Envelope, Power
 
     name = node.function
@@ -45,7 +45,7 @@ def near_call(near: "NearPoint", node: Call) -> "Envelope":
     raise Unsupported(f"{name} of a subexpression that is unbounded at the point")
 
 
-def _log_near(near: "NearPoint", g: "Envelope") -> "Envelope":
+def _log_near(near: NearPoint, g: Envelope) -> Envelope:
     """|log g| ≤ A + B·L from g's two envelopes; a lower envelope where g → 0 or g → ∞."""
     from ._near_point import Envelope, Power
 

@@ -17,10 +17,10 @@ defined on the open piece. Nothing here samples the integrand.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass
 from fractions import Fraction
 from math import ceil, floor
-from typing import Mapping
 
 from ..arithmetic import Interval
 from ..derivatives import Program

@@ -13,10 +13,10 @@ proves divergence instead.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass
 from fractions import Fraction
 from math import factorial
-from typing import Mapping
 
 from ..arithmetic import Interval
 from ..arithmetic._interval import raw_down, raw_up

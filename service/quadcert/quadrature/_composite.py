@@ -8,10 +8,12 @@ quarter of the tolerance; the panel stretches share what is left.
 
 from __future__ import annotations
 
+import itertools
 import math
-from fractions import Fraction
+from collections.abc import Callable, Mapping
 from dataclasses import replace
-from typing import Any, Callable, Mapping
+from fractions import Fraction
+from typing import Any
 
 from ..arithmetic import MpmathArithmetic, fraction_down, fraction_up
 from ..derivatives import Program
@@ -170,7 +172,7 @@ def _assemble(
     settings: Any,
     segment: Callable[..., Any],
 ) -> Any:
-    stretches = list(zip(chain, chain[1:]))
+    stretches = list(itertools.pairwise(chain))
     plans = []
     for u, v in stretches:
         plans.append((isinstance(u, int) or ends.singular(u), isinstance(v, int) or ends.singular(v)))
@@ -357,7 +359,7 @@ def _graded(ends: _Ends, start: Any, stop: Any, u: End, v: End, left: bool, righ
             marks.add(origin - step)  # type: ignore[operator]
             step *= _GROWTH
     points = [start, *sorted(m for m in marks if low[1] < m < high[0]), stop]
-    return list(zip(points, points[1:]))
+    return list(itertools.pairwise(points))
 
 
 def _piece(

@@ -4,9 +4,9 @@ from __future__ import annotations
 
 import math
 import re
-from functools import lru_cache
 from decimal import Decimal
 from fractions import Fraction
+from functools import lru_cache
 from typing import Any
 
 from ..arithmetic import Arithmetic

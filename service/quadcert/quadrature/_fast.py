@@ -14,10 +14,10 @@ from __future__ import annotations
 import math
 import time
 from array import array
+from collections.abc import Mapping
 from dataclasses import dataclass
 from fractions import Fraction
-from functools import lru_cache
-from typing import Mapping
+from functools import cache, lru_cache
 
 from ..arithmetic import MpmathArithmetic, fraction_down, fraction_up
 from ..derivatives import Program
@@ -125,7 +125,7 @@ class _Compiler:
             elif isinstance(node, Negate):
                 known = self.depends(node.operand)
             elif isinstance(node, Call):
-                known = any([self.depends(a) for a in node.args])
+                known = any(self.depends(a) for a in node.args)
             else:
                 assert isinstance(node, Binary)
                 known = self.depends(node.left) | self.depends(node.right)
@@ -225,7 +225,7 @@ _SELF_TEST = [
 ]
 
 
-@lru_cache(maxsize=None)
+@cache
 def trusted() -> bool:
     """Whether this machine's C library passes the guarded layer's checks (once per process).
 

@@ -4,9 +4,9 @@ from __future__ import annotations
 
 import math
 import re
+from collections.abc import Mapping
 from decimal import Decimal
 from fractions import Fraction
-from typing import Mapping
 
 from ..arithmetic import fraction_down
 from ..errors import InvalidInput
@@ -62,7 +62,7 @@ def exact_number(value: object, field: str, code: str = "invalid_parameter", ran
         value = Decimal(text)  # cheap whatever the exponent: Decimal keeps it as an integer
     if not isinstance(value, Decimal) or not value.is_finite():
         raise InvalidInput(f"{field} must be a finite number", code=code, field=field)
-    sign, digits, exponent = value.as_tuple()
+    _sign, digits, _exponent = value.as_tuple()
     significant = len(digits) - next((i for i, d in enumerate(digits) if d), len(digits))
     if significant > MAX_LITERAL_DIGITS:
         raise InvalidInput(f"{field} has more than {MAX_LITERAL_DIGITS} significant digits", code=code, field=field)

@@ -4,24 +4,24 @@ from __future__ import annotations
 
 import math
 import time
-from fractions import Fraction
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass
-from typing import Callable, Mapping, Union
+from fractions import Fraction
 
 from ..arithmetic import Arithmetic, FlintArithmetic, MpmathArithmetic, flint_context_claimed, fraction_down
 from ..derivatives import Program
 from ..errors import ArithmeticFault, InvalidInput, NotCertifiable
 from ..formula import Formula, parse
 from . import _composite, _fast, _inputs
-from ._finish import error_bound
 from ._endpoints import LimitValue, enclose_limit, exact_limit, parse_limit
+from ._finish import error_bound
 from ._result import IntegralResult, PanelReport
 from ._simpson import FLOAT_FLOOR, Refiner
 
 DEFAULT_PRECISION = 96
 _LIMIT_PRECISION = 128  # exact limits are enclosed at this precision for the float64 engine
 ArithmeticFactory = Callable[[int], Arithmetic]
-Limit = Union[Formula, Fraction]  # a limit as typed (a formula), or an exact cut chosen by the engine
+Limit = Formula | Fraction  # a limit as typed (a formula), or an exact cut chosen by the engine
 
 
 def default_arithmetic() -> ArithmeticFactory:
@@ -293,7 +293,7 @@ def _try_fast(
             (-high, -low), outcome.stop_reason, outcome.nodes, outcome.panels, outcome.bounds_used, mesh
         )
     low, high = outcome.enclosure
-    value, bound = error_bound(low, high)
+    _value, bound = error_bound(low, high)
     if not math.isfinite(bound) or (
         bound > target(low, high) and outcome.stop_reason not in ("deadline", "node_budget")
     ):

@@ -12,16 +12,17 @@ from __future__ import annotations
 
 import math
 import time
+from collections.abc import Mapping
 from fractions import Fraction
-from typing import Any, Mapping
+from typing import Any
 
 from ..arithmetic import Arithmetic, MpmathArithmetic
 from ..derivatives import Program
 from ..errors import ArithmeticFault, InvalidInput, NotCertifiable
 from ..formula import Formula
 from . import _inputs
-from ._integrate import ArithmeticFactory, prepare
 from ._endpoints import LimitValue, enclose_limit, parse_limit
+from ._integrate import ArithmeticFactory, prepare
 from ._result import Plan, RulePlan
 
 MAX_PIECES = 4096

@@ -15,9 +15,10 @@ from __future__ import annotations
 import heapq
 import math
 import time
+from collections.abc import Callable
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Any, Callable
+from typing import Any
 
 from ..arithmetic import Arithmetic, interval_text, shown
 from ..derivatives import Program
@@ -85,7 +86,7 @@ class ExactSum:
     1e-10
     """
 
-    __slots__ = ("units", "infinite")
+    __slots__ = ("infinite", "units")
     _SCALE = 1074
 
     def __init__(self) -> None:

@@ -7,9 +7,8 @@ from typing import Any
 from fastapi import Request
 from fastapi.responses import JSONResponse
 
-from .._exact_json import ExactJSONResponse
-
 from .._computation import Computation
+from .._exact_json import ExactJSONResponse
 from .._problems import problem_response
 
 PROBLEM_RESPONSES: dict[int | str, dict[str, Any]] = {

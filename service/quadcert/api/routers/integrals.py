@@ -13,13 +13,13 @@ from fastapi.responses import JSONResponse, Response
 
 from ...errors import InvalidInput, QuadcertError
 from ...quadrature import bound_text, shown
-from .._computation import _problem_args
 from .._cache import cache_key
 from .._cell_hints import hint, refuse_unknown_keys
+from .._computation import _problem_args
+from .._exact_json import ExactJSONResponse, ExactRoute
 from .._formats import MEDIA_TYPES, render, render_problem
 from .._jobs import _error
 from .._problems import problem_body, problem_headers, problem_response
-from .._exact_json import ExactJSONResponse, ExactRoute
 from .._schemas import BatchRequest, BatchResponse, IntegralRequest, IntegralResponse
 from ._common import PROBLEM_RESPONSES, computation, context, respond
 

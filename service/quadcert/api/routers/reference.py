@@ -31,10 +31,12 @@ async def reference(request: Request) -> HTMLResponse:
 def render(document: dict[str, Any]) -> str:
     info = document.get("info", {})
     parts = [
-        f"<!doctype html><html lang=en><meta charset=utf-8><title>{escape(info.get('title', ''))} API"
-        f"</title><style>{_STYLE}</style><h1>{escape(info.get('title', ''))} {escape(info.get('version', ''))}"
-        f'</h1><p>{escape(info.get("description", ""))}</p><p>Machine-readable: <a href="/openapi.json">'
-        "/openapi.json</a>. Worked examples: the openapi-notes folder of the source.</p>"
+        (
+            f"<!doctype html><html lang=en><meta charset=utf-8><title>{escape(info.get('title', ''))} API"
+            f"</title><style>{_STYLE}</style><h1>{escape(info.get('title', ''))} {escape(info.get('version', ''))}"
+            f'</h1><p>{escape(info.get("description", ""))}</p><p>Machine-readable: <a href="/openapi.json">'
+            "/openapi.json</a>. Worked examples: the openapi-notes folder of the source.</p>"
+        )
     ]
     for path, operations in document.get("paths", {}).items():
         for method, operation in operations.items():
@@ -44,8 +46,10 @@ def render(document: dict[str, Any]) -> str:
 
 def _operation(method: str, path: str, operation: dict[str, Any]) -> str:
     html = [
-        f'<h2 id="{escape(operation.get("operationId", ""))}"><span class=m>{method.upper()}</span> '
-        f"<code>{escape(path)}</code></h2><p>{escape(operation.get('summary', ''))}</p>"
+        (
+            f'<h2 id="{escape(operation.get("operationId", ""))}"><span class=m>{method.upper()}</span> '
+            f"<code>{escape(path)}</code></h2><p>{escape(operation.get('summary', ''))}</p>"
+        )
     ]
     parameters = operation.get("parameters", [])
     if parameters:
