@@ -23,6 +23,7 @@ INSTANCES = [
     errors.DeadlineExceeded("late"),
     errors.WorkerLost("gone"),
     errors.ShuttingDown("draining"),
+    errors.EngineDefect("KeyError: 'x'", trace="Traceback (most recent call last): ..."),
     errors.ProblemError({"status": 503, "code": "saturated", "detail": "busy", "column": None}, retry_after=2.0),
 ]
 

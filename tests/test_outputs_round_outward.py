@@ -135,8 +135,8 @@ def test_zero_prints_as_zero() -> None:
 
 def test_mesh_and_plan_answers_round_outward() -> None:
     """The service's mesh panels and plan figures, as the worker sends them, against the engine's floats."""
-    from quadcert.api._jobs import run_integral, run_plan
-    from quadcert.quadrature import integrate, plan
+    from quadcert.api._jobs import Job, run_integral, run_plan
+    from quadcert.quadrature import Request, integrate, plan
 
     request = {
         "integrand": "sin(3*x)*exp(x/3)",
@@ -145,7 +145,8 @@ def test_mesh_and_plan_answers_round_outward() -> None:
         "tolerance": 1e-6,
         "include_mesh": True,
     }
-    sent = json.loads(dumps(run_integral(request)), parse_float=Decimal)
+    job = Job(Request.build("sin(3*x)*exp(x/3)", "0.1", 2, 1e-6), echo=request, include_mesh=True)
+    sent = json.loads(dumps(run_integral(job, None)), parse_float=Decimal)
     engine = integrate(**request)
     assert len(sent["mesh"]) == len(engine.mesh)
     for shown, panel in zip(sent["mesh"], engine.mesh):
@@ -153,7 +154,7 @@ def test_mesh_and_plan_answers_round_outward() -> None:
         assert Fraction(shown["contribution"][0]) <= Fraction(panel.contribution[0])
         assert Fraction(shown["contribution"][1]) >= Fraction(panel.contribution[1])
     arguments = {"integrand": "exp(x)", "lower_limit": 0, "upper_limit": 2, "tolerance": 0.5e-4}
-    sent_plan = json.loads(dumps(run_plan(arguments)), parse_float=Decimal)
+    sent_plan = json.loads(dumps(run_plan(Job(Request.build(**arguments), echo=arguments), None)), parse_float=Decimal)
     exact_plan = plan(**arguments)
     for name in ("simpson", "trapezoid"):
         shown, rule = sent_plan[name], getattr(exact_plan, name)

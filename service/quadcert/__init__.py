@@ -25,6 +25,7 @@ _LAZY = {
     "check": "quadrature",
     "integrate": "quadrature",
     "plan": "quadrature",
+    "Request": "quadrature",
 }
 
 
@@ -50,6 +51,7 @@ __all__ = [
     "PanelReport",
     "Plan",
     "QuadcertError",
+    "Request",
     "RulePlan",
     "__version__",
     "check",

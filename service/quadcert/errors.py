@@ -1,8 +1,8 @@
 """Every error quadcert raises, in one hierarchy.
 
-Each error carries a stable machine-readable ``code``; the HTTP layer maps
-codes to RFC 9457 problem details in one place, so routes never invent
-ad-hoc strings.
+Each error carries a stable machine-readable ``code``. The HTTP layer turns an
+error into RFC 9457 problem details in one function (``api/_problems.py``): the
+status comes from the error's class, the title and meaning from its code.
 
     QuadcertError
     ├── FormulaError            the formula text cannot be read (has a column)
@@ -17,13 +17,16 @@ ad-hoc strings.
     │   ├── DeadlineExceeded    the computation passed its deadline; its worker was replaced
     │   ├── WorkerLost          the worker stopped during the job
     │   └── ShuttingDown        the service is draining
+    ├── EngineDefect            anything else raised inside the engine: a defect, logged with its trace
     └── ProblemError            a quadcert service answered with RFC 9457 problem details
 """
 
 from __future__ import annotations
 
+from typing import Any
 
-def _rebuild(cls: type, args: tuple, state: dict) -> QuadcertError:
+
+def _rebuild(cls: type[QuadcertError], args: tuple[Any, ...], state: dict[str, Any]) -> QuadcertError:
     """Unpickle an error with every field it had (code, column, field, location, ...)."""
     error = cls.__new__(cls)
     Exception.__init__(error, *args)
@@ -53,7 +56,7 @@ class QuadcertError(Exception):
     def __str__(self) -> str:
         return self.message
 
-    def __reduce__(self) -> tuple:
+    def __reduce__(self) -> tuple[Any, ...]:
         return (_rebuild, (type(self), self.args, dict(self.__dict__)))
 
 
@@ -147,16 +150,26 @@ class ShuttingDown(ServiceError):
     code = "shutting_down"
 
 
+class EngineDefect(QuadcertError):
+    """An exception the engine did not expect, carried out of a worker with its trace for the log."""
+
+    code = "internal_error"
+
+    def __init__(self, message: str, *, trace: str = "") -> None:
+        super().__init__(message)
+        self.trace = trace
+
+
 class ProblemError(QuadcertError):
     """Raised by the client: the service answered with problem details (``problem`` holds them all)."""
 
     code = "problem"
 
-    def __init__(self, problem: dict, retry_after: float | None = None) -> None:
+    def __init__(self, problem: dict[str, Any], retry_after: float | None = None) -> None:
         status = problem.get("status")
         detail = str(problem.get("detail", ""))
         super().__init__(f"{detail} (HTTP {status})" if status else detail, code=str(problem.get("code", "problem")))
         self.problem = problem
-        self.status = int(status or 0)  # 0: no HTTP answer at all (the service could not be reached)
+        self.status: int | None = int(status) if status else None  # None: no HTTP answer at all
         self.column = problem.get("column")
         self.retry_after = retry_after  # seconds, from a 503's Retry-After

@@ -2,12 +2,14 @@
 
 from __future__ import annotations
 
+import math
 import re
 from pathlib import Path
 
 from fastapi.testclient import TestClient
 
-from quadcert.api._problems import PROBLEM_TYPES
+from quadcert import errors
+from quadcert.api._problems import PROBLEM_TYPES, problem_for, status_of
 
 SOURCE = Path(__file__).resolve().parents[2] / "service"
 RAISED = re.compile(r"""code\s*=\s*"([a-z_]+)\"""")
@@ -82,3 +84,30 @@ def test_operations_have_stable_ids_and_counters_end_in_total(client: TestClient
     metrics = client.get("/metrics").text
     for name in ("quadcert_worker_restarts_total", "quadcert_cache_hits_total", "quadcert_cache_misses_total"):
         assert f"# TYPE {name} counter" in metrics
+
+
+def _error_classes(cls: type[errors.QuadcertError]) -> list[type[errors.QuadcertError]]:
+    found: list[type[errors.QuadcertError]] = []
+    for sub in cls.__subclasses__():
+        found += [sub, *_error_classes(sub)]
+    return found
+
+
+def test_a_class_status_agrees_with_its_documented_code() -> None:
+    """The status an error is answered with comes from its class; the table documents the same number."""
+    served = [c for c in [errors.QuadcertError, *_error_classes(errors.QuadcertError)] if c is not errors.ProblemError]
+    for cls in served:
+        error = cls.__new__(cls)  # the status depends on the class alone
+        documented = PROBLEM_TYPES[cls.code][0]
+        assert documented in (None, status_of(error)), (cls.__name__, cls.code, documented, status_of(error))
+    assert status_of(errors.DeadlineExceeded("late")) == 504 and status_of(errors.WorkerLost("gone")) == 503
+
+
+def test_one_function_maps_an_error_with_its_fields() -> None:
+    tail = errors.NotCertifiable("no bound towards +inf", code="tail_not_bounded", location=(math.inf, math.inf))
+    body = problem_for(tail, instance="/v1/integrals")
+    assert body["status"] == 422 and body["location"] == ["inf", "inf"] and body["code"] == "tail_not_bounded"
+    formula = problem_for(errors.FormulaError("unknown function 'sinn'", code="unknown_function", column=1))
+    assert formula["column"] == 1 and formula["title"] == PROBLEM_TYPES["unknown_function"][1]
+    assert problem_for(errors.Saturated("busy"))["status"] == 503
+    assert problem_for(errors.EngineDefect("KeyError: 'x'"))["status"] == 500

@@ -83,7 +83,7 @@ def test_transport_failures_become_problem_errors(monkeypatch) -> None:
         pytest.raises(ProblemError) as info,
     ):
         client.integrate("x", 0, 1)
-    assert info.value.status == 0 and info.value.code == "service_unreachable"
+    assert info.value.status is None and info.value.code == "service_unreachable"
     with pytest.raises(ProblemError) as info:
         Client("localhost:8000")
     assert info.value.code == "invalid_url"

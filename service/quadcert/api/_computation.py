@@ -10,20 +10,19 @@ import asyncio
 import logging
 import time
 from concurrent.futures import ThreadPoolExecutor
+from dataclasses import dataclass
 from decimal import Decimal
 from fractions import Fraction
 from typing import Any
 
 from .._version import ENGINE_VERSION
-from ..errors import QuadcertError, ServiceError
-from ..formula import parse
-from ..quadrature._endpoints import parse_limit
-from ..quadrature._inputs import check_parameters
+from ..errors import EngineDefect, QuadcertError, ServiceError
+from ..quadrature import Request
 from ._cache import ResultCache, cache_key
-from ._jobs import _error
+from ._jobs import TASKS, Job
 from ._metrics import Metrics
 from ._pool import WorkerPool
-from ._problems import from_engine_error, problem_body
+from ._problems import problem_for
 from ._settings import Settings
 
 log = logging.getLogger("quadcert.computation")
@@ -45,6 +44,14 @@ def _exact_text(value: Any) -> Any:
     return str(value) if isinstance(value, Decimal) else value
 
 
+@dataclass(frozen=True)
+class Prepared:
+    """A request parsed on the event loop, and its cache key's content."""
+
+    request: Request
+    canonical: dict[str, Any]
+
+
 class Computation:
     def __init__(self, settings: Settings, pool: WorkerPool, cache: ResultCache, metrics: Metrics) -> None:
         self.settings = settings
@@ -53,33 +60,39 @@ class Computation:
         self.metrics = metrics
 
     # -- shared pieces -----------------------------------------------------------------------
-    def canonical(self, body: dict[str, Any]) -> dict[str, Any]:
-        """Parse formula, limits and parameters in-process: coded errors come back fast, without a worker."""
-        values = check_parameters(body.get("parameters"))
-        formula = parse(body["integrand"], variable=body.get("variable", "x"), parameters=tuple(values))
-        lower = parse_limit(body["lower_limit"], "lower_limit", tuple(values))
-        upper = parse_limit(body["upper_limit"], "upper_limit", tuple(values))
-        return {
-            "integrand": formula.text,
-            "variable": formula.variable,
-            "lower": lower.text,
-            "upper": upper.text,
-            "parameters": {k: _fraction_text(v) for k, v in sorted(values.items())},
+    def prepare(self, body: dict[str, Any]) -> Prepared:
+        """Parse and validate once, in-process: coded errors come back fast, without a worker, and the worker
+        gets the parsed request."""
+        request = Request.build(
+            body["integrand"],
+            body["lower_limit"],
+            body["upper_limit"],
+            body.get("tolerance", Decimal("1e-8")),
+            variable=body.get("variable", "x"),
+            parameters=body.get("parameters"),
+            relative_tolerance=body.get("relative_tolerance"),
+            max_nodes=body.get("max_nodes") or self.settings.default_max_nodes,
+        )
+        canonical = {
+            **request.canonical(),
             **{
                 k: _exact_text(body.get(k))
                 for k in ("tolerance", "relative_tolerance", "max_nodes", "include_mesh", "claimed_value")
                 if k in body
             },
         }
+        return Prepared(request, canonical)
 
-    def _engine_request(self, kind: str, body: dict[str, Any], deadline: float) -> dict[str, Any]:
-        request = {k: v for k, v in body.items() if v is not None}
-        if kind != "plan":
-            request.setdefault("max_nodes", self.settings.default_max_nodes)
-            request["deadline_seconds"] = deadline * 0.8
-            if request.get("include_mesh"):
-                request["max_mesh_panels"] = self.settings.max_mesh_panels
-        return request
+    def _job(self, kind: str, body: dict[str, Any], request: Request, deadline: float) -> Job:
+        include_mesh = bool(body.get("include_mesh"))
+        return Job(
+            request,
+            echo=body,
+            include_mesh=include_mesh,
+            max_mesh_panels=self.settings.max_mesh_panels if include_mesh else None,
+            claimed_value=body.get("claimed_value"),
+            deadline_seconds=None if kind == "plan" else deadline * 0.8,
+        )
 
     async def _run(
         self,
@@ -90,24 +103,27 @@ class Computation:
         context: dict[str, Any],
         group: str | None = None,
         compute: float | None = None,
+        prepared: Prepared | None = None,
     ) -> tuple[Answer, str | None]:
         try:
-            if len(body.get("integrand", "")) > _INLINE_PARSE_CHARS:  # long text: parse off the event loop
-                canonical = await asyncio.get_running_loop().run_in_executor(_PARSER, self.canonical, body)
+            if prepared is not None:
+                pass
+            elif len(body.get("integrand", "")) > _INLINE_PARSE_CHARS:  # long text: parse off the event loop
+                prepared = await asyncio.get_running_loop().run_in_executor(_PARSER, self.prepare, body)
             else:
-                canonical = self.canonical(body)
+                prepared = self.prepare(body)
         except QuadcertError as error:
-            problem = problem_body(**_problem_args(_error(error)), **context)
+            problem = problem_for(error, **context)
             return (problem["status"], problem), None
-        key = cache_key(kind, canonical)
+        key = cache_key(kind, prepared.canonical)
         cached = self.cache.get(key)
         if cached is not None:
             return (200, {**cached, "cached": True, "compute_seconds": 0.0}), key
         started = time.perf_counter()
         try:
             answer = await self.pool.run(
-                kind,
-                self._engine_request(kind, body, compute or deadline),
+                TASKS[kind],
+                self._job(kind, body, prepared.request, compute or deadline),
                 deadline + 1.0,
                 wait,
                 group=group,
@@ -115,17 +131,15 @@ class Computation:
             )
         except ServiceError as error:
             self.metrics.results.labels(error.code).inc()
-            problem = problem_body(error.code, str(error), **context)
+            problem = problem_for(error, **context)
             return (problem["status"], problem), key
         self.metrics.engine_seconds.observe(time.perf_counter() - started)
         if "error" in answer:
+            error = answer["error"]
             self.metrics.results.labels("refused").inc()
-            if answer["error"]["code"] == "internal_error":
-                log.error(
-                    "engine failure", extra={"detail": answer["error"]["detail"], "trace": answer["error"].get("trace")}
-                )
-                answer["error"].pop("trace", None)
-            problem = from_engine_error(answer["error"], **context)
+            if isinstance(error, EngineDefect):
+                log.error("engine failure", extra={"detail": error.message, "trace": error.trace})
+            problem = problem_for(error, **context)
             return (problem["status"], problem), key
         result = answer["ok"]
         self.metrics.results.labels("certified").inc()
@@ -140,11 +154,12 @@ class Computation:
         deadline: float | None = None,
         group: str | None = None,
         compute: float | None = None,
+        prepared: Prepared | None = None,
     ) -> tuple[Answer, str | None]:
         """One integral. ``deadline`` (seconds from now) covers queueing and computing; a batch item also
         passes ``compute`` (its own engine time), ``wait`` (patience for queue room) and its batch's ``group``."""
         deadline = deadline or self.settings.request_deadline_seconds
-        (status, result), key = await self._run("integral", body, deadline, wait, context, group, compute)
+        (status, result), key = await self._run("integral", body, deadline, wait, context, group, compute, prepared)
         if status != 200 or result.get("cached"):
             return (status, result), key
         response = result  # already the answer's shape (results.integral_body, built in the worker)
@@ -169,13 +184,3 @@ class Computation:
         if key is not None:
             self.cache.put(key, response)
         return 200, response
-
-
-def _problem_args(error: dict[str, Any]) -> dict[str, Any]:
-    args = {"code": error["code"], "detail": error["detail"]}
-    for name in ("column", "field"):
-        if error.get(name) is not None:
-            args[name] = error[name]
-    if error.get("location"):
-        args["location"] = tuple(error["location"])
-    return args

@@ -1,39 +1,45 @@
-"""What a worker process runs: plain dicts in, plain dicts out (picklable, transport-free)."""
+"""What a worker process runs: a validated :class:`~quadcert.quadrature.Request` in, an answer's body out.
+
+A job is built on the event loop (``_computation``) after the request was parsed there, so the worker never
+reads the formula text again. Everything in a :class:`Job` pickles, the Request included; an error raised
+here travels back to the loop as the exception itself, with all its fields (see ``errors.py``).
+"""
 
 from __future__ import annotations
 
-import math
-import traceback
-from collections.abc import Callable
+from dataclasses import dataclass, field
 from typing import Any
 
-from ..errors import FormulaError, InvalidInput, NotCertifiable, QuadcertError
-from ..quadrature import check, integrate, plan
+from ..errors import InvalidInput
+from ..quadrature import Request
 from ..results import check_body, integral_body, plan_body
+from ._pool import Task
 
 
-def _error(error: Exception) -> dict[str, Any]:
-    if isinstance(error, QuadcertError):
-        payload: dict[str, Any] = {"code": error.code, "detail": error.message}
-        if isinstance(error, (FormulaError, InvalidInput)) and getattr(error, "column", None) is not None:
-            payload["column"] = error.column
-        if isinstance(error, InvalidInput) and error.field:
-            payload["field"] = error.field
-        if isinstance(error, NotCertifiable) and error.location is not None:
-            # JSON has no infinity: a tail's location is the text "inf" or "-inf"
-            payload["location"] = [v if math.isfinite(v) else ("inf" if v > 0 else "-inf") for v in error.location]
-        return payload
-    return {
-        "code": "internal_error",
-        "detail": f"{type(error).__name__}: {error}",
-        "trace": traceback.format_exc(limit=8),
-    }
+@dataclass(frozen=True)
+class Job:
+    """One unit of work for a worker."""
+
+    request: Request
+    #: what the caller typed, echoed in the answer as sent (tolerance, variable, claimed_value)
+    echo: dict[str, Any]
+    include_mesh: bool = False
+    #: the most panels an answer may carry; a larger mesh is refused rather than sent
+    max_mesh_panels: int | None = None
+    claimed_value: Any = None
+    #: the engine's own deadline for this job; the pool may shorten it to what is left
+    deadline_seconds: float | None = None
+    options: dict[str, Any] = field(default_factory=dict)
+
+    def seconds(self, left: float | None) -> float | None:
+        """The engine's deadline: this job's own, or what the pool leaves it, whichever comes first."""
+        candidates = [s for s in (self.deadline_seconds, left) if s is not None]
+        return min(candidates) if candidates else None
 
 
-def run_integral(request: dict[str, Any]) -> dict[str, Any]:
-    request = dict(request)
-    limit = request.pop("max_mesh_panels", None)
-    result = integrate(**request)
+def run_integral(job: Job, left: float | None) -> dict[str, Any]:
+    result = job.request.integrate(deadline_seconds=job.seconds(left), include_mesh=job.include_mesh, **job.options)
+    limit = job.max_mesh_panels
     if limit is not None and result.mesh is not None and len(result.mesh) > limit:
         raise InvalidInput(
             f"the mesh has {len(result.mesh)} panels, more than the {limit} an answer may carry; "
@@ -42,35 +48,16 @@ def run_integral(request: dict[str, Any]) -> dict[str, Any]:
             field="include_mesh",
         )
     # the answer's final shape, bounds printed outward, built here in the worker, not on the event loop
-    return integral_body(result, request)
+    return integral_body(result, job.echo)
 
 
-def run_check(request: dict[str, Any]) -> dict[str, Any]:
-    return check_body(check(**request), request)
+def run_check(job: Job, left: float | None) -> dict[str, Any]:
+    result = job.request.check(job.claimed_value, deadline_seconds=job.seconds(left), include_mesh=job.include_mesh)
+    return check_body(result, job.echo)
 
 
-def run_plan(request: dict[str, Any]) -> dict[str, Any]:
-    return plan_body(plan(**request))
+def run_plan(job: Job, left: float | None) -> dict[str, Any]:
+    return plan_body(job.request.plan())
 
 
-def run_sleep(request: dict[str, Any]) -> dict[str, Any]:  # used by fault tests only
-    import time
-
-    time.sleep(float(request["seconds"]))
-    return {"slept": request["seconds"]}
-
-
-JOBS: dict[str, Callable[[dict[str, Any]], dict[str, Any]]] = {
-    "integral": run_integral,
-    "check": run_check,
-    "plan": run_plan,
-    "sleep": run_sleep,
-}
-
-
-def execute(kind: str, request: dict[str, Any]) -> dict[str, Any]:
-    """Never raises: an answer is {"ok": ...} or {"error": ...}."""
-    try:
-        return {"ok": JOBS[kind](request)}
-    except Exception as error:  # noqa: BLE001 - every failure must become an answer
-        return {"error": _error(error)}
+TASKS: dict[str, Task] = {"integral": run_integral, "check": run_check, "plan": run_plan}

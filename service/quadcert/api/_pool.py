@@ -25,14 +25,15 @@ import pickle
 import signal
 import socket
 import struct
+import traceback
 from collections import OrderedDict, deque
+from collections.abc import Callable
 from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass, field
 from multiprocessing.reduction import ForkingPickler
 from typing import Any
 
-from ..errors import DeadlineExceeded, Saturated, ServiceError, ShuttingDown, WorkerLost
-from ._jobs import execute
+from ..errors import DeadlineExceeded, EngineDefect, QuadcertError, Saturated, ServiceError, ShuttingDown, WorkerLost
 
 log = logging.getLogger("quadcert.pool")
 
@@ -56,23 +57,43 @@ def _worker_main(connection: multiprocessing.connection.Connection, backend: str
             return
         if message is None:
             return
-        job_id, kind, request = message
-        answer = execute(kind, request)
+        job_id, task, payload, seconds = message
+        answer = execute(task, payload, seconds)
         try:
             connection.send((job_id, answer))
         except (BrokenPipeError, OSError):
             return
+        except Exception as error:  # noqa: BLE001 - an answer that does not pickle must still be answered
+            connection.send((job_id, {"error": _defect(error)}))
+
+
+#: a task takes its payload and the seconds its engine may run, and returns the answer's body
+Task = Callable[[Any, float | None], dict[str, Any]]
+
+
+def execute(task: Task, payload: Any, seconds: float | None) -> dict[str, Any]:
+    """Never raises: an answer is {"ok": body} or {"error": a QuadcertError, every field intact}."""
+    try:
+        return {"ok": task(payload, seconds)}
+    except QuadcertError as error:
+        return {"error": error}
+    except Exception as error:  # noqa: BLE001 - every failure must become an answer
+        return {"error": _defect(error)}
+
+
+def _defect(error: Exception) -> EngineDefect:
+    return EngineDefect(f"{type(error).__name__}: {error}", trace=traceback.format_exc(limit=8))
 
 
 @dataclass
 class _Job:
-    kind: str
-    request: dict[str, Any]
+    task: Task
+    payload: Any
     expires_at: float  # loop time by which the caller needs the answer (queueing included)
     compute_limit: float  # the longest the job may run once a worker takes it
     group: str
     enqueued_at: float
-    future: asyncio.Future = field(repr=False)
+    future: asyncio.Future[dict[str, Any]] = field(repr=False)
 
 
 class _Worker:
@@ -122,7 +143,7 @@ async def _exactly(loop: asyncio.AbstractEventLoop, sock: socket.socket, count: 
 
 
 class WorkerPool:
-    """``await pool.run(kind, request, deadline_seconds)`` → the job's answer dict."""
+    """``await pool.run(task, payload, deadline_seconds)`` → the job's answer dict."""
 
     def __init__(self, size: int, queue_limit: int, backend: str = "flint") -> None:
         self.size = size
@@ -137,7 +158,7 @@ class WorkerPool:
         self._served: dict[str, int] = {}  # jobs taken per group still holding admitted jobs
         self._changed: asyncio.Condition | None = None
         self._workers: list[_Worker] = []
-        self._tasks: list[asyncio.Task] = []
+        self._tasks: list[asyncio.Task[None]] = []
         self._ids = itertools.count()
         self._singles = itertools.count()
         self._pending = 0
@@ -211,8 +232,8 @@ class WorkerPool:
     # -- submitting --------------------------------------------------------------------------
     async def run(
         self,
-        kind: str,
-        request: dict[str, Any],
+        task: Task,
+        payload: Any,
         deadline_seconds: float,
         wait_for_slot: float = 0.0,
         group: str | None = None,
@@ -229,8 +250,8 @@ class WorkerPool:
         await self._admit(group, wait_for_slot)
         now = loop.time()
         job = _Job(
-            kind,
-            request,
+            task,
+            payload,
             now + deadline_seconds,
             deadline_seconds if compute_seconds is None else compute_seconds,
             group,
@@ -332,13 +353,11 @@ class WorkerPool:
         worker = self._workers[index]
         if not worker.process.is_alive():
             worker = await self._replace(index)
-        request = job.request
-        if "deadline_seconds" in request:  # the engine stops itself before the hard deadline
-            request = {**request, "deadline_seconds": min(request["deadline_seconds"], left * ENGINE_SHARE)}
         job_id = next(self._ids)
         loop = asyncio.get_running_loop()
         try:
-            await _send(loop, worker.socket, (job_id, job.kind, request))
+            # the engine stops itself before the hard deadline
+            await _send(loop, worker.socket, (job_id, job.task, job.payload, left * ENGINE_SHARE))
         except (BrokenPipeError, OSError, EOFError):
             await self._replace(index)
             raise WorkerLost("the worker was gone before the job started") from None
@@ -348,7 +367,7 @@ class WorkerPool:
         try:
             reply_id, answer = await asyncio.wait_for(_receive(loop, worker.socket), timeout=left)
         except TimeoutError:
-            log.warning("job over deadline; restarting worker", extra={"kind": job.kind, "deadline": left})
+            log.warning("job over deadline; restarting worker", extra={"task": job.task.__name__, "deadline": left})
             await self._replace(index)
             raise DeadlineExceeded(f"the computation passed its {left:.3g} s deadline") from None
         except (EOFError, OSError) as error:

@@ -1,13 +1,30 @@
-"""Every error code documented once (``PROBLEM_TYPES``: status, title, meaning) and turned into an RFC 9457
-problem document here; ``/problems/{code}`` serves the same table."""
+"""Every error code documented once (``PROBLEM_TYPES``: status, title, meaning), and every error turned into
+an RFC 9457 problem document here, by one function (:func:`problem_for`); ``/problems/{code}`` serves the
+same table.
+
+The HTTP status of an error comes from its class, found by walking the class hierarchy (``STATUS_BY_CLASS``):
+a new subclass of ``ServiceError`` is a 503 without anyone listing it. Codes that no exception carries (a
+framework's 404, a malformed body) take their status from the table.
+"""
 
 from __future__ import annotations
 
+import math
 from typing import Any
 
 from fastapi.responses import JSONResponse
 
 from .. import __version__
+from ..errors import (
+    DeadlineExceeded,
+    EngineDefect,
+    FormulaError,
+    InvalidInput,
+    NotCertifiable,
+    ProblemError,
+    QuadcertError,
+    ServiceError,
+)
 from ._exact_json import ExactJSONResponse
 
 PROBLEM_MEDIA_TYPE = "application/problem+json"
@@ -17,10 +34,34 @@ _INPUT = "A request value is unusable"
 _CERTIFY = "The integral cannot be certified"
 _BUSY = "The service cannot take the work now"
 
+#: the HTTP status of each error class; an error takes the entry of the nearest class in its hierarchy
+STATUS_BY_CLASS: dict[type[QuadcertError], int] = {
+    QuadcertError: 422,  # the request as sent cannot be answered: fix it, do not retry it
+    ServiceError: 503,  # the service cannot run it now: retry after Retry-After
+    DeadlineExceeded: 504,
+    EngineDefect: 500,
+}
+
+
+def status_of(error: QuadcertError) -> int:
+    """The status of the nearest class in ``error``'s hierarchy that has one.
+
+    >>> from quadcert.errors import Saturated, WorkerLost
+    >>> status_of(Saturated("full")), status_of(DeadlineExceeded("late")), status_of(InvalidInput("no"))
+    (503, 504, 422)
+    """
+    for cls in type(error).__mro__:
+        if cls in STATUS_BY_CLASS:
+            return STATUS_BY_CLASS[cls]  # type: ignore[index]
+    return 422  # not reached: every error is a QuadcertError
+
+
 #: every problem code, documented once: code -> (HTTP status, title, what it means and what to change).
 #: /problems/{code} serves the description; tests/api/test_problem_types.py checks that every code the
 #: code base can raise is here.
-PROBLEM_TYPES: dict[str, tuple[int, str, str]] = {
+#: The status column is what the service answers (a raised error's status comes from its class, and a test
+#: holds the two to agree); None marks a code the client and CLI raise themselves, with no HTTP answer.
+PROBLEM_TYPES: dict[str, tuple[int | None, str, str]] = {
     # the request itself
     "invalid_request": (
         422,
@@ -179,29 +220,36 @@ PROBLEM_TYPES: dict[str, tuple[int, str, str]] = {
     ),
     "internal_error": (500, "Internal error", "A defect in quadcert; it has been logged with the request id."),
     # raised by the client and the CLI only, never sent by the service
-    "service_unreachable": (0, "The service could not be reached", "No HTTP answer came; check the URL."),
-    "timed_out": (0, "The service did not answer in time", "The client's timeout passed."),
-    "invalid_url": (0, "Not a service URL", "Write the URL with http:// or https://."),
-    "unexpected_response": (0, "The answer was not a quadcert answer", "Something else answered at that URL."),
-    "problem": (0, "A problem answered by the service", "See the problem's own code."),
-    "quadcert_error": (0, "A quadcert error", "See the error's own code."),
+    "service_unreachable": (None, "The service could not be reached", "No HTTP answer came; check the URL."),
+    "timed_out": (None, "The service did not answer in time", "The client's timeout passed."),
+    "invalid_url": (None, "Not a service URL", "Write the URL with http:// or https://."),
+    "unexpected_response": (None, "The answer was not a quadcert answer", "Something else answered at that URL."),
+    "problem": (None, "A problem answered by the service", "See the problem's own code."),
+    "quadcert_error": (None, "A quadcert error", "See the error's own code."),
 }
-CODES: dict[str, tuple[int, str]] = {code: (status, title) for code, (status, title, _) in PROBLEM_TYPES.items()}
 
 
-def status_and_title(code: str) -> tuple[int, str]:
-    if code in CODES and CODES[code][0]:
-        return CODES[code]
-    return 422, _INPUT
+def _title(code: str) -> str:
+    return PROBLEM_TYPES[code][1] if code in PROBLEM_TYPES else _INPUT
 
 
 def problem_body(
-    code: str, detail: str, *, instance: str | None = None, request_id: str | None = None, **extra: Any
+    code: str,
+    detail: str,
+    *,
+    status: int | None = None,
+    instance: str | None = None,
+    request_id: str | None = None,
+    **extra: Any,
 ) -> dict[str, Any]:
-    status, title = status_and_title(code)
+    """A problem document for a code raised by no exception (a framework's 404, a malformed body), or, with
+    ``status``, for one that is (see :func:`problem_for`)."""
+    if status is None:
+        documented = PROBLEM_TYPES.get(code, (None, "", ""))[0]
+        status = documented if documented is not None else 422
     body: dict[str, Any] = {
         "type": f"/problems/{code}",
-        "title": title,
+        "title": _title(code),
         "status": status,
         "detail": detail,
         "code": code,
@@ -228,13 +276,20 @@ def problem_response(body: dict[str, Any], retry_after: int | None = None) -> JS
     )
 
 
-def from_engine_error(error: dict[str, Any], **context: Any) -> dict[str, Any]:
-    """A worker's error dict (see _jobs) as a problem body."""
+def problem_for(error: QuadcertError, **context: Any) -> dict[str, Any]:
+    """The one mapping from an error to a problem document: status by class, title by code, and the
+    error's own fields (the column in the formula, the field of the request, where certification failed)."""
+    column = getattr(error, "column", None) if isinstance(error, (FormulaError, InvalidInput, ProblemError)) else None
+    location = None
+    if isinstance(error, NotCertifiable) and error.location is not None:
+        # JSON has no infinity: a tail's location is the text "inf" or "-inf"
+        location = [v if math.isfinite(v) else ("inf" if v > 0 else "-inf") for v in error.location]
     return problem_body(
-        error["code"],
-        error["detail"],
-        column=error.get("column"),
-        field=error.get("field"),
-        location=tuple(error["location"]) if error.get("location") else None,
+        error.code,
+        error.message,
+        status=status_of(error),
+        column=column,
+        field=error.field if isinstance(error, InvalidInput) else None,
+        location=location,
         **context,
     )

@@ -128,8 +128,7 @@ def _install_error_handlers(app: FastAPI) -> None:
         code = {400: "malformed_body", 404: "not_found", 405: "method_not_allowed", 413: "body_too_large"}.get(
             error.status_code, "invalid_request"
         )
-        body = problem_body(code, str(error.detail), **_context(request))
-        body["status"] = error.status_code
+        body = problem_body(code, str(error.detail), status=error.status_code, **_context(request))
         response = problem_response(body)
         response.headers.update(error.headers or {})  # 405 carries Allow
         return response

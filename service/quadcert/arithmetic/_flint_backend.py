@@ -48,15 +48,15 @@ def _text(x: arb) -> str:
 
 
 def _exact_fraction(point: arb) -> Fraction:
-    man, exp = point.mid().man_exp()
-    man, exp = int(man), int(exp)
+    raw_man, raw_exp = point.mid().man_exp()
+    man, exp = int(raw_man), int(raw_exp)
     return Fraction(man) * Fraction(2) ** exp
 
 
 def _point_directed(point: arb, up: bool) -> float:
     """The float next to an exact arb point in one direction, from its exact mantissa and exponent."""
-    man, exp = point.mid().man_exp()
-    man = int(man)
+    raw_man, exp = point.mid().man_exp()
+    man = int(raw_man)
     return binary_directed(man < 0, abs(man), int(exp), up)
 
 

@@ -10,11 +10,11 @@ import math
 import sys
 from decimal import ROUND_CEILING, ROUND_FLOOR, ROUND_HALF_EVEN, Context, Decimal
 from fractions import Fraction
-from typing import NamedTuple
+from typing import Any, NamedTuple
 
 from mpmath import libmp
 
-Raw = tuple  # mpmath's raw float: (sign, mantissa, exponent, bitcount)
+Raw = tuple[Any, ...]  # mpmath's raw float: (sign, mantissa, exponent, bitcount)
 
 ZERO: Raw = libmp.fzero
 ONE: Raw = libmp.fone
@@ -35,7 +35,7 @@ class Interval(NamedTuple):
         return self.lo == self.hi
 
     def contains(self, value: Raw) -> bool:
-        return libmp.mpf_le(self.lo, value) and libmp.mpf_le(value, self.hi)
+        return bool(libmp.mpf_le(self.lo, value) and libmp.mpf_le(value, self.hi))
 
     def floats(self) -> tuple[float, float]:
         """Endpoints as float64, rounded outward, so the pair still encloses.

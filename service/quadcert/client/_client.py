@@ -148,11 +148,9 @@ def _seconds(header: str | None) -> float | None:
 
 
 def _unreachable(base_url: str, error: httpx.HTTPError) -> ProblemError:
-    """A transport failure as an error of our own hierarchy (status 0: no HTTP answer)."""
+    """A transport failure as an error of our own hierarchy (no status: no HTTP answer came)."""
     kind = "timed_out" if isinstance(error, httpx.TimeoutException) else "service_unreachable"
-    return ProblemError(
-        {"status": 0, "code": kind, "detail": f"no answer from {base_url}: {type(error).__name__}: {error}"}
-    )
+    return ProblemError({"code": kind, "detail": f"no answer from {base_url}: {type(error).__name__}: {error}"})
 
 
 #: at most this many tries for one call, and at most this long between two
@@ -163,7 +161,7 @@ LONGEST_WAIT = 30.0
 def _retryable(error: BaseException) -> bool:
     """503 (saturated, draining, a lost worker, too many connections) and transport failures: every call
     here is a pure computation, so sending it again is always safe."""
-    return isinstance(error, ProblemError) and error.status in (0, 503) and error.code != "timed_out"
+    return isinstance(error, ProblemError) and error.status in (None, 503) and error.code != "timed_out"
 
 
 def _wait(state: Any) -> float:
@@ -189,7 +187,6 @@ def _checked_url(url: str) -> str:
     if not url.startswith(("http://", "https://")):
         raise ProblemError(
             {
-                "status": 0,
                 "code": "invalid_url",
                 "detail": f"{url!r} is not an http:// or https:// URL; write http://{url}",
             }

@@ -9,15 +9,16 @@ from __future__ import annotations
 
 from collections.abc import Callable, Mapping
 from fractions import Fraction
-from typing import Any
+from typing import Any, Generic
 
 from ..arithmetic import Arithmetic
 from ..errors import InvalidInput
 from ..formula import Binary, Call, Constant, Formula, Negate, Node, Number, Parameter, Variable
 from ..formula._nodes import distinct_arguments
 from . import _series as series
+from ._series import E, Series
 
-_UNARY: dict[str, Callable[[Arithmetic, series.Series], series.Series]] = {
+_UNARY: dict[str, Callable[[Arithmetic[Any], Series[Any]], Series[Any]]] = {
     "sqrt": series.sqrt,
     "exp": series.exp,
     "log": series.log,
@@ -39,7 +40,7 @@ _UNARY: dict[str, Callable[[Arithmetic, series.Series], series.Series]] = {
 Compiled = tuple[str, Any]
 
 
-class Program:
+class Program(Generic[E]):
     """Evaluates one formula over intervals, for values (order 0) or Taylor coefficients.
 
     >>> from quadcert.formula import parse
@@ -50,7 +51,7 @@ class Program:
     [(8.0, 8.0), (12.0, 12.0), (6.0, 6.0), (1.0, 1.0)]
     """
 
-    def __init__(self, formula: Formula, ar: Arithmetic, parameters: Mapping[str, Fraction] | None = None) -> None:
+    def __init__(self, formula: Formula, ar: Arithmetic[E], parameters: Mapping[str, Fraction] | None = None) -> None:
         self.formula = formula
         self.ar = ar
         values = dict(parameters or {})
@@ -66,11 +67,11 @@ class Program:
     def is_constant(self) -> bool:
         return self._root[0] == "const"
 
-    def value(self, x: Any) -> Any:
+    def value(self, x: E) -> E:
         """Enclosure of f over the interval x."""
         return self.taylor(x, 0)[0]
 
-    def taylor(self, x: Any, order: int) -> series.Series:
+    def taylor(self, x: E, order: int) -> Series[E]:
         """Enclosures of f⁽ᵏ⁾(X)/k! for k = 0..order, cut short where f is not that smooth."""
         kind, payload = self._root
         if kind == "const":
@@ -107,12 +108,12 @@ class Program:
         function = node.function
         return ("series", lambda xs: self._apply(function, [f(xs) for f in lifted]))
 
-    def _apply(self, function: str, values: list[series.Series]) -> series.Series:
+    def _apply(self, function: str, values: list[Series[E]]) -> Series[E]:
         if function in ("min", "max"):
             return series.extremum(self.ar, values, largest=function == "max")
         return _UNARY[function](self.ar, values[0])
 
-    def _lift(self, compiled: Compiled) -> Callable[[series.Series], series.Series]:
+    def _lift(self, compiled: Compiled) -> Callable[[Series[E]], Series[E]]:
         kind, payload = compiled
         if kind == "series":
             return payload

@@ -13,43 +13,45 @@ That is exactly what the Peano-kernel error bounds of the quadrature need.
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from fractions import Fraction
-from typing import Any
+from typing import TypeVar
 
 from ..arithmetic import Arithmetic
 
-Series = list[Any]
+E = TypeVar("E")  # the enclosure type of the arithmetic in use
+Series = list[E]  # enclosures of f^(k)(X)/k!, k = 0, 1, ...
 
 # small exact constants of the recurrences, built once (these loops are the engine's hot path)
 _WHOLE = tuple(Fraction(n) for n in range(16))
 _INVERSE = (Fraction(0),) + tuple(Fraction(1, n) for n in range(1, 16))
 
 
-def variable(ar: Arithmetic, x: Any, order: int) -> Series:
+def variable(ar: Arithmetic[E], x: E, order: int) -> Series[E]:
     return [x, ar.one, *([ar.zero] * (order - 1))][: order + 1]
 
 
-def add(ar: Arithmetic, a: Series, b: Series) -> Series:
+def add(ar: Arithmetic[E], a: Series[E], b: Series[E]) -> Series[E]:
     return [ar.add(x, y) for x, y in zip(a, b)]
 
 
-def sub(ar: Arithmetic, a: Series, b: Series) -> Series:
+def sub(ar: Arithmetic[E], a: Series[E], b: Series[E]) -> Series[E]:
     return [ar.sub(x, y) for x, y in zip(a, b)]
 
 
-def neg(ar: Arithmetic, a: Series) -> Series:
+def neg(ar: Arithmetic[E], a: Series[E]) -> Series[E]:
     return [ar.neg(x) for x in a]
 
 
-def add_constant(ar: Arithmetic, a: Series, c: Any) -> Series:
+def add_constant(ar: Arithmetic[E], a: Series[E], c: E) -> Series[E]:
     return [ar.add(a[0], c), *a[1:]]
 
 
-def mul_constant(ar: Arithmetic, a: Series, c: Any) -> Series:
+def mul_constant(ar: Arithmetic[E], a: Series[E], c: E) -> Series[E]:
     return [ar.mul(x, c) for x in a]
 
 
-def _dot(ar: Arithmetic, a: Series, b: Series, k: int, start: int = 0) -> Any:
+def _dot(ar: Arithmetic[E], a: Series[E], b: Series[E], k: int, start: int = 0) -> E:
     """Σ_{j=start..k} a_j·b_{k−j}."""
     total = ar.mul(a[start], b[k - start])
     for j in range(start + 1, k + 1):
@@ -57,18 +59,17 @@ def _dot(ar: Arithmetic, a: Series, b: Series, k: int, start: int = 0) -> Any:
     return total
 
 
-def mul(ar: Arithmetic, a: Series, b: Series) -> Series:
+def mul(ar: Arithmetic[E], a: Series[E], b: Series[E]) -> Series[E]:
     n = min(len(a), len(b))
     return [_dot(ar, a, b, k) for k in range(n)]
 
 
-def square(ar: Arithmetic, a: Series) -> Series:
+def square(ar: Arithmetic[E], a: Series[E]) -> Series[E]:
     out = [ar.sqr(a[0])]
     for k in range(1, len(a)):
-        total = None
-        for j in range((k + 1) // 2):
-            term = ar.mul(a[j], a[k - j])
-            total = term if total is None else ar.add(total, term)
+        total = ar.mul(a[0], a[k])
+        for j in range(1, (k + 1) // 2):
+            total = ar.add(total, ar.mul(a[j], a[k - j]))
         total = ar.scale(total, _WHOLE[2])
         if k % 2 == 0:
             total = ar.add(total, ar.sqr(a[k // 2]))
@@ -76,7 +77,7 @@ def square(ar: Arithmetic, a: Series) -> Series:
     return out
 
 
-def div(ar: Arithmetic, a: Series, b: Series) -> Series:
+def div(ar: Arithmetic[E], a: Series[E], b: Series[E]) -> Series[E]:
     """a/b; raises when b's value reaches zero (the quotient itself is then unbounded)."""
     n = min(len(a), len(b))
     out = [ar.div(a[0], b[0])]
@@ -88,15 +89,15 @@ def div(ar: Arithmetic, a: Series, b: Series) -> Series:
     return out
 
 
-def reciprocal_constant(ar: Arithmetic, c: Any, b: Series) -> Series:
+def reciprocal_constant(ar: Arithmetic[E], c: E, b: Series[E]) -> Series[E]:
     return div(ar, [c, *([ar.zero] * (len(b) - 1))], b)
 
 
-def derivative(ar: Arithmetic, a: Series) -> Series:
+def derivative(ar: Arithmetic[E], a: Series[E]) -> Series[E]:
     return [ar.scale(a[k], _WHOLE[k]) for k in range(1, len(a))]
 
 
-def integrate(ar: Arithmetic, value: Any, d: Series, length: int) -> Series:
+def integrate(ar: Arithmetic[E], value: E, d: Series[E], length: int) -> Series[E]:
     """The series whose value is ``value`` and whose derivative series is ``d``."""
     out = [value]
     for k in range(1, length):
@@ -104,10 +105,10 @@ def integrate(ar: Arithmetic, value: Any, d: Series, length: int) -> Series:
     return out
 
 
-def _driven(ar: Arithmetic, u: Series, value: Any, slope_of: Any) -> Series:
+def _driven(ar: Arithmetic[E], u: Series[E], value: E, slope_of: Callable[[Series[E], int], E]) -> Series[E]:
     """f(u) where f' = g(f): f_k = (1/k) Σ_{j=1..k} j·u_j·g_{k−j}, g built on the fly."""
     out = [value]
-    g: Series = []
+    g: Series[E] = []
     for k in range(1, len(u)):
         g.append(slope_of(out, k - 1))
         acc = ar.mul(u[1], g[k - 1])
@@ -117,11 +118,11 @@ def _driven(ar: Arithmetic, u: Series, value: Any, slope_of: Any) -> Series:
     return out
 
 
-def exp(ar: Arithmetic, u: Series) -> Series:
+def exp(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
     return _driven(ar, u, ar.function("exp", u[0]), lambda f, m: f[m])
 
 
-def _one_plus_square(ar: Arithmetic, f: Series, m: int, sign: int) -> Any:
+def _one_plus_square(ar: Arithmetic[E], f: Series[E], m: int, sign: int) -> E:
     """Coefficient m of 1 ± f² (sign +1 or −1)."""
     sq = _dot(ar, f, f, m)
     if m == 0:
@@ -129,53 +130,51 @@ def _one_plus_square(ar: Arithmetic, f: Series, m: int, sign: int) -> Any:
     return sq if sign > 0 else ar.neg(sq)
 
 
-def tan(ar: Arithmetic, u: Series) -> Series:
+def tan(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
     return _driven(ar, u, ar.function("tan", u[0]), lambda f, m: _one_plus_square(ar, f, m, +1))
 
 
-def tanh(ar: Arithmetic, u: Series) -> Series:
+def tanh(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
     return _driven(ar, u, ar.function("tanh", u[0]), lambda f, m: _one_plus_square(ar, f, m, -1))
 
 
-def _pair(ar: Arithmetic, u: Series, s0: Any, c0: Any, sign: int) -> tuple[Series, Series]:
+def _pair(ar: Arithmetic[E], u: Series[E], s0: E, c0: E, sign: int) -> tuple[Series[E], Series[E]]:
     """sin/cos (sign −1) or sinh/cosh (sign +1) together: s' = c·u', c' = ±s·u'."""
     s, c = [s0], [c0]
     for k in range(1, len(u)):
-        acc_s = acc_c = None
-        for j in range(1, k + 1):
-            ts = ar.scale(ar.mul(u[j], c[k - j]), _WHOLE[j])
-            tc = ar.scale(ar.mul(u[j], s[k - j]), _WHOLE[j])
-            acc_s = ts if acc_s is None else ar.add(acc_s, ts)
-            acc_c = tc if acc_c is None else ar.add(acc_c, tc)
+        acc_s, acc_c = ar.mul(u[1], c[k - 1]), ar.mul(u[1], s[k - 1])
+        for j in range(2, k + 1):
+            acc_s = ar.add(acc_s, ar.scale(ar.mul(u[j], c[k - j]), _WHOLE[j]))
+            acc_c = ar.add(acc_c, ar.scale(ar.mul(u[j], s[k - j]), _WHOLE[j]))
         s.append(ar.scale(acc_s, _INVERSE[k]))
         c.append(ar.scale(acc_c if sign > 0 else ar.neg(acc_c), _INVERSE[k]))
     return s, c
 
 
-def sin(ar: Arithmetic, u: Series) -> Series:
+def sin(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
     return _pair(ar, u, ar.function("sin", u[0]), ar.function("cos", u[0]), -1)[0]
 
 
-def cos(ar: Arithmetic, u: Series) -> Series:
+def cos(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
     return _pair(ar, u, ar.function("sin", u[0]), ar.function("cos", u[0]), -1)[1]
 
 
-def sinh(ar: Arithmetic, u: Series) -> Series:
+def sinh(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
     return _pair(ar, u, ar.function("sinh", u[0]), ar.function("cosh", u[0]), +1)[0]
 
 
-def cosh(ar: Arithmetic, u: Series) -> Series:
+def cosh(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
     return _pair(ar, u, ar.function("sinh", u[0]), ar.function("cosh", u[0]), +1)[1]
 
 
-def log(ar: Arithmetic, u: Series) -> Series:
+def log(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
     value = ar.function("log", u[0])
     if len(u) == 1:
         return [value]
     return integrate(ar, value, div(ar, derivative(ar, u), u[:-1]), len(u))
 
 
-def log10(ar: Arithmetic, u: Series) -> Series:
+def log10(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
     value = ar.function("log10", u[0])
     if len(u) == 1:
         return [value]
@@ -184,7 +183,7 @@ def log10(ar: Arithmetic, u: Series) -> Series:
     return integrate(ar, value, slope, len(u))
 
 
-def sqrt(ar: Arithmetic, u: Series) -> Series:
+def sqrt(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
     s0 = ar.function("sqrt", u[0])
     if len(u) == 1 or ar.sign(s0) <= 0:  # at zero the slope is unbounded: value only
         return [s0]
@@ -198,7 +197,7 @@ def sqrt(ar: Arithmetic, u: Series) -> Series:
     return out
 
 
-def atan(ar: Arithmetic, u: Series) -> Series:
+def atan(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
     value = ar.function("atan", u[0])
     if len(u) == 1:
         return [value]
@@ -206,7 +205,7 @@ def atan(ar: Arithmetic, u: Series) -> Series:
     return integrate(ar, value, div(ar, derivative(ar, u), denominator), len(u))
 
 
-def asin(ar: Arithmetic, u: Series, sign: int = 1) -> Series:
+def asin(ar: Arithmetic[E], u: Series[E], sign: int = 1) -> Series[E]:
     value = ar.function("asin" if sign > 0 else "acos", u[0])
     if len(u) == 1:
         return [value]
@@ -217,11 +216,11 @@ def asin(ar: Arithmetic, u: Series, sign: int = 1) -> Series:
     return integrate(ar, value, slope if sign > 0 else neg(ar, slope), len(u))
 
 
-def acos(ar: Arithmetic, u: Series) -> Series:
+def acos(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
     return asin(ar, u, sign=-1)
 
 
-def erf(ar: Arithmetic, u: Series) -> Series:
+def erf(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
     value = ar.function("erf", u[0])
     if len(u) == 1:
         return [value]
@@ -231,7 +230,7 @@ def erf(ar: Arithmetic, u: Series) -> Series:
     return integrate(ar, value, slope, len(u))
 
 
-def _lipschitz_cut(ar: Arithmetic, value: Any, slopes: list[Any], length: int) -> Series:
+def _lipschitz_cut(ar: Arithmetic[E], value: E, slopes: list[E], length: int) -> Series[E]:
     """Value plus an a.e. slope enclosure: for kinks of abs, min and max."""
     if length == 1:
         return [value]
@@ -241,7 +240,7 @@ def _lipschitz_cut(ar: Arithmetic, value: Any, slopes: list[Any], length: int) -
     return [value, slope]
 
 
-def abs_(ar: Arithmetic, u: Series) -> Series:
+def abs_(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
     side = ar.sign(u[0])
     if side > 0:
         return u
@@ -251,7 +250,7 @@ def abs_(ar: Arithmetic, u: Series) -> Series:
     return _lipschitz_cut(ar, ar.function("abs", u[0]), slopes, min(len(u), 2))
 
 
-def extremum(ar: Arithmetic, args: list[Series], largest: bool) -> Series:
+def extremum(ar: Arithmetic[E], args: list[Series[E]], largest: bool) -> Series[E]:
     """min or max of several series; smooth where one argument is strictly the extremum."""
     best = args[0]
     for other in args[1:]:
@@ -265,13 +264,13 @@ def extremum(ar: Arithmetic, args: list[Series], largest: bool) -> Series:
     return best
 
 
-def pow_int(ar: Arithmetic, u: Series, n: int) -> Series:
+def pow_int(ar: Arithmetic[E], u: Series[E], n: int) -> Series[E]:
     """u^n for a constant integer n, by squaring; the value is kept tight."""
     if n < 0:
         return reciprocal_constant(ar, ar.one, pow_int(ar, u, -n))
     if n == 0:
         return [ar.one, *([ar.zero] * (len(u) - 1))]
-    result: Series | None = None
+    result: Series[E] | None = None
     base = u
     m = n
     while m:
@@ -284,7 +283,7 @@ def pow_int(ar: Arithmetic, u: Series, n: int) -> Series:
     return [ar.intersect(result[0], ar.pow_int(u[0], n)), *result[1:]]
 
 
-def pow_real(ar: Arithmetic, u: Series, v: Series) -> Series:
+def pow_real(ar: Arithmetic[E], u: Series[E], v: Series[E]) -> Series[E]:
     """u^v = exp(v·log u) for u > 0; with u reaching 0 only the value is known."""
     if ar.sign(u[0]) > 0:
         return exp(ar, mul(ar, v, log(ar, u)))

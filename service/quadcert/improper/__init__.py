@@ -6,8 +6,9 @@ envelope of |f| from the formula tree, integrate it in closed form with outward 
 regular rest back to the panels. See ``docs/improper-integrals.md`` for every rule and why it holds.
 """
 
+from ._algebra import Envelope
 from ._at_infinity import Growth, InTail, TailEnvelope
-from ._near_point import Envelope, NearPoint, Power
+from ._near_point import NearPoint, Power
 from ._pieces import Piece, end_piece, tail_piece
 from ._scalars import Unsupported
 from ._shift import shifted

@@ -49,7 +49,7 @@ class InTail(Rules[Growth]):
         self.formula, self.values, self.side, self.start = formula, dict(values), side, start
         self.s = Scalars()
         self.start_iv = self.s.num(start)
-        self._memo: dict[Node, TailEnvelope] = {}
+        self._memo: dict[Node, TailEnvelope[Growth]] = {}
 
     # -- the growth algebra ------------------------------------------------------------------------
     def sup(self, d: Fraction, rho: Fraction) -> Interval:
@@ -95,14 +95,14 @@ class InTail(Rules[Growth]):
         return s.ceiling_fraction(s.ar.mul(a.k, s.power(self.start_iv, a.p - 1)))
 
     # -- rules ---------------------------------------------------------------------------------------
-    def envelope(self, node: Node) -> TailEnvelope:
+    def envelope(self, node: Node) -> TailEnvelope[Growth]:
         cached = self._memo.get(node)
         if cached is None:
             cached = self._rule(node)
             self._memo[node] = cached
         return cached
 
-    def _constant(self, node: Node) -> TailEnvelope:
+    def _constant(self, node: Node) -> TailEnvelope[Growth]:
         ar, s = self.s.ar, self.s
         try:
             value = Program(Formula(node, self.formula.variable, self.formula.parameters), ar, self.values).value(
@@ -116,7 +116,7 @@ class InTail(Rules[Growth]):
             return TailEnvelope(upper, None, 0)
         return TailEnvelope(upper, upper, ar.sign(value))
 
-    def _rule(self, node: Node) -> TailEnvelope:
+    def _rule(self, node: Node) -> TailEnvelope[Growth]:
         if not _has_variable(node):
             return self._constant(node)
         if isinstance(node, Variable):
@@ -124,7 +124,7 @@ class InTail(Rules[Growth]):
             return TailEnvelope(one, one, self.side)
         return self.rule(node)
 
-    def call(self, node: Call) -> TailEnvelope:
+    def call(self, node: Call) -> TailEnvelope[Growth]:
         from ._tail_functions import tail_call
 
         return tail_call(self, node)

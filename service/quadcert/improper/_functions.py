@@ -7,15 +7,16 @@ from fractions import Fraction
 from typing import TYPE_CHECKING
 
 from ..formula import Call
+from ._algebra import Envelope
+from ._near_point import Power
 from ._scalars import Unsupported
 
 if TYPE_CHECKING:
-    from ._near_point import Envelope, NearPoint
+    from ._near_point import NearPoint
 
 
 # -- next to a point -------------------------------------------------------------------------------------
-def near_call(near: NearPoint, node: Call) -> Envelope:
-    from ._near_point import Envelope, Power
+def near_call(near: NearPoint, node: Call) -> Envelope[Power]:
 
     name = node.function
     if name in ("min", "max") or len(node.args) != 1:
@@ -45,9 +46,8 @@ def near_call(near: NearPoint, node: Call) -> Envelope:
     raise Unsupported(f"{name} of a subexpression that is unbounded at the point")
 
 
-def _log_near(near: NearPoint, g: Envelope) -> Envelope:
+def _log_near(near: NearPoint, g: Envelope[Power]) -> Envelope[Power]:
     """|log g| ≤ A + B·L from g's two envelopes; a lower envelope where g → 0 or g → ∞."""
-    from ._near_point import Envelope, Power
 
     s, ar = near.s, near.s.ar
     if g.sign != 1 or g.upper is None or g.lower is None:

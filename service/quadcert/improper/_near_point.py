@@ -21,6 +21,7 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 from fractions import Fraction
 from math import ceil, floor
+from typing import Any
 
 from ..arithmetic import Interval
 from ..derivatives import Program
@@ -58,7 +59,7 @@ class NearPoint(Rules[Power]):
         point: Fraction,
         side: int,
         delta: Fraction,
-        at_point: dict[Node, object] | None = None,
+        at_point: dict[Any, list[Any]] | None = None,
     ) -> None:
         if not 0 < delta <= Fraction(1, 16):
             raise ValueError("the piece must be at most 1/16 long, so that log(1/t) ≥ e on it")
@@ -68,10 +69,10 @@ class NearPoint(Rules[Power]):
         self.delta_iv = self.s.num(delta)
         self.log_delta = ar.neg(self.s.log(self.delta_iv))  # L_δ = log(1/δ) ≥ 2
         self.region = ar.hull(self.s.num(point), self.s.num(point + side * delta))
-        self._memo: dict[Node, Envelope] = {}
+        self._memo: dict[Node, Envelope[Power]] = {}
         # what does not depend on δ (Taylor coefficients at the point, zero proofs) is shared between the
         # rounds that shrink δ, through a dict the caller keeps
-        self._at_point: dict[Node, object] = {} if at_point is None else at_point
+        self._at_point: dict[Any, list[Any]] = {} if at_point is None else at_point
 
     # -- the power algebra -------------------------------------------------------------------------
     def sup(self, d: Fraction, k: Fraction) -> Interval:
@@ -144,7 +145,7 @@ class NearPoint(Rules[Power]):
         return ar.mul(a.k, ar.mul(s.power(self.delta_iv, a.p), s.power(self.log_delta, Fraction(a.q))))
 
     # -- rules ---------------------------------------------------------------------------------------
-    def envelope(self, node: Node) -> Envelope:
+    def envelope(self, node: Node) -> Envelope[Power]:
         cached = self._memo.get(node)
         if cached is None:
             cached = self._regular(node)
@@ -160,10 +161,10 @@ class NearPoint(Rules[Power]):
             self._memo[node] = cached
         return cached
 
-    def _program(self, node: Node, ar: object) -> Program:
+    def _program(self, node: Node, ar: object) -> Program[Any]:
         return Program(Formula(node, self.formula.variable, self.formula.parameters), ar, self.values)  # type: ignore[arg-type]
 
-    def _regular(self, node: Node) -> Envelope | None:
+    def _regular(self, node: Node) -> Envelope[Power] | None:
         """Both envelopes from the Taylor expansion at the point, where the subexpression is defined on the
         closed piece; None where it is not (the rules take over)."""
         s, ar = self.s, self.s.ar
@@ -195,18 +196,18 @@ class NearPoint(Rules[Power]):
         if node is None or not (s.low(coefficient) <= 0 <= s.high(coefficient)):
             return False
         key = ("exact", node)
-        exact = self._at_point.get(key)  # type: ignore[call-overload]
+        exact = self._at_point.get(key)
         if exact is None:
             try:
                 exact = self._program(node, ExactArithmetic()).taylor(self.point, ORDER - 1)
             except (Unsupported, ArithmeticFault, ZeroDivisionError):
                 exact = []
-            self._at_point[key] = exact  # type: ignore[index]
+            self._at_point[key] = exact
         return len(exact) > j and exact[j] == 0
 
     def _from_taylor(
         self, coefficients: list[Interval], remainder: Interval, m: int, node: Node | None = None
-    ) -> Envelope:
+    ) -> Envelope[Power]:
         """g(a + s·t) = Σ_{j<m} g_j·(s·t)^j + R·(s·t)^m with R over the piece."""
         s, ar = self.s, self.s.ar
         lead = 0
@@ -225,7 +226,7 @@ class NearPoint(Rules[Power]):
         direction = ar.sign(leading) * (self.side if lead % 2 else 1)
         return Envelope(upper, Power(low, Fraction(lead), 0), direction)
 
-    def call(self, node: Call) -> Envelope:
+    def call(self, node: Call) -> Envelope[Power]:
         from ._functions import near_call
 
         return near_call(self, node)

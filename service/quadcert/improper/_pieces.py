@@ -23,8 +23,9 @@ from ..arithmetic._interval import raw_down, raw_up
 from ..errors import ArithmeticFault, NotCertifiable
 from ..formula import Formula
 from ..formula._nodes import decimal_text
+from ._algebra import Envelope
 from ._at_infinity import Growth, InTail, TailEnvelope
-from ._near_point import Envelope, NearPoint, Power
+from ._near_point import NearPoint, Power
 from ._scalars import Unsupported
 
 _MAX_ROUNDS = 12
@@ -83,7 +84,7 @@ def _signed(size: Fraction, sign: int) -> tuple[Fraction, Fraction]:
     return -size, size
 
 
-def _near_integral(near: NearPoint, power: Power, delta: Fraction) -> object:
+def _near_integral(near: NearPoint, power: Power, delta: Fraction) -> Interval:
     """∫₀^δ k·t^p·L^q dt for δ ≤ the δ the envelope was derived on (it holds pointwise there, so on less too)."""
     s, ar = near.s, near.s.ar
     delta_iv = s.num(delta)
@@ -166,7 +167,7 @@ def end_piece(
 
 
 def _refuse_divergent_near(
-    near: NearPoint, env: Envelope, point: Fraction, location: tuple[float, float], variable: str
+    near: NearPoint, env: Envelope[Power], point: Fraction, location: tuple[float, float], variable: str
 ) -> None:
     if env.sign and env.lower is not None:
         low = near.lower_fold(env.lower)
@@ -180,7 +181,7 @@ def _refuse_divergent_near(
             )
 
 
-def _tail_integral(tail: InTail, growth: Growth, T: Fraction) -> object | None:
+def _tail_integral(tail: InTail, growth: Growth, T: Fraction) -> Interval | None:
     """∫_T^∞ k·y^p·e^(−r·y) dy for T ≥ the T the envelope was derived on (it holds there, so further out too)."""
     s, ar = tail.s, tail.s.ar
     start = s.num(T)
@@ -238,10 +239,10 @@ def tail_piece(formula: Formula, values: Mapping[str, Fraction], side: int, star
                 continue
             high = tail.s.high(size)
             width = high if env.sign else 2 * high
+            assert env.upper is not None  # size was computed from it
             if width <= budget:
                 low, top = _signed(high, env.sign)
                 return Piece("tail-envelope", None, T * side, (low, top), _growth_text(env.upper, formula.variable))
-            assert env.upper is not None
             if env.upper.r == 0:  # power decay: jump straight to about the T that should do
                 factor = (width / budget) ** (1 / float(-env.upper.p - 1))
                 grow = max(2, min(int(factor) + 1, 2**200))
@@ -259,7 +260,7 @@ def tail_piece(formula: Formula, values: Mapping[str, Fraction], side: int, star
     )
 
 
-def _refuse_divergent_tail(env: TailEnvelope, side: int, location: tuple[float, float], variable: str) -> None:
+def _refuse_divergent_tail(env: TailEnvelope[Growth], side: int, location: tuple[float, float], variable: str) -> None:
     low = env.lower
     if env.sign and low is not None and (low.r < 0 or (low.r == 0 and low.p >= -1)):
         raise NotCertifiable(

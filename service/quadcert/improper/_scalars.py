@@ -67,7 +67,7 @@ class Scalars:
 
 
 #: the values of functions that are exact rationals at rational points (the points where they are rational at all)
-_SPECIAL_VALUES = {
+_SPECIAL_VALUES: dict[tuple[str, Fraction], Fraction] = {
     ("exp", 0): Fraction(1),
     ("log", 1): Fraction(0),
     ("sin", 0): Fraction(0),

@@ -12,10 +12,10 @@ from ..formula import Call
 from ._scalars import EPSILON, Unsupported
 
 if TYPE_CHECKING:
-    from ._at_infinity import InTail, TailEnvelope
+    from ._at_infinity import Growth, InTail, TailEnvelope
 
 
-def tail_call(tail: InTail, node: Call) -> TailEnvelope:
+def tail_call(tail: InTail, node: Call) -> TailEnvelope[Growth]:
 
     name = node.function
     if name in ("min", "max") or len(node.args) != 1:
@@ -36,7 +36,7 @@ def tail_call(tail: InTail, node: Call) -> TailEnvelope:
     raise Unsupported(f"{name} in a tail")
 
 
-def _exp(tail: InTail, g: TailEnvelope, bound: Interval | None) -> TailEnvelope:
+def _exp(tail: InTail, g: TailEnvelope[Growth], bound: Interval | None) -> TailEnvelope[Growth]:
     from ._at_infinity import Growth, TailEnvelope
 
     s, ar = tail.s, tail.s.ar
@@ -69,7 +69,7 @@ def _exp(tail: InTail, g: TailEnvelope, bound: Interval | None) -> TailEnvelope:
     return TailEnvelope(upper, lower, 1)
 
 
-def _log(tail: InTail, g: TailEnvelope) -> TailEnvelope:
+def _log(tail: InTail, g: TailEnvelope[Growth]) -> TailEnvelope[Growth]:
     """|log g| ≤ A + B·log y ≤ (A·T^(−ε) + B/(e·ε))·y^ε, from g's two power envelopes."""
     from ._at_infinity import Growth, TailEnvelope
 
@@ -96,7 +96,7 @@ def _log(tail: InTail, g: TailEnvelope) -> TailEnvelope:
     return TailEnvelope(upper, None, 0)
 
 
-def _hyperbolic(tail: InTail, g: TailEnvelope, name: str) -> TailEnvelope:
+def _hyperbolic(tail: InTail, g: TailEnvelope[Growth], name: str) -> TailEnvelope[Growth]:
     """cosh and sinh of an unbounded argument (the bounded one is a shared rule)."""
     from ._at_infinity import Growth, TailEnvelope
 

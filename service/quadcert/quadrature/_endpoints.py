@@ -95,7 +95,7 @@ def exact_limit(formula: Formula) -> Fraction | None:
     return None
 
 
-def enclose_limit(formula: Formula, ar: Arithmetic, parameters: dict[str, Fraction], field: str) -> Any:
+def enclose_limit(formula: Formula, ar: Arithmetic[Any], parameters: dict[str, Fraction], field: str) -> Any:
     if infinite_side(formula):
         raise InvalidInput(
             f"{field} is infinite; this operation needs finite limits", code="infinite_limit", field=field

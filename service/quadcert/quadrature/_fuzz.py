@@ -24,7 +24,7 @@ def check_one(data: bytes) -> None:
     from ..errors import QuadcertError
     from ..formula import parse
     from . import _fast
-    from ._integrate import integrate
+    from ._request import integrate
 
     text = data.decode("utf-8", errors="replace")
     try:

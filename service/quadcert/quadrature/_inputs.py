@@ -85,11 +85,18 @@ def _in_range(value: Fraction, field: str, code: str) -> Fraction:
     return value
 
 
-def check_tolerance(value: NumberLike | None, field: str = "tolerance", optional: bool = False) -> float | None:
+def check_tolerance(value: NumberLike, field: str = "tolerance") -> float:
     """The tolerance to apply: the largest float64 not above the exact number given, so that a bound that
     meets it meets the caller's number too. The allowed range [1e-60, 1e300] is closed at both ends."""
-    if value is None and optional:
-        return None
+    return _tolerance(value, field, optional=False)
+
+
+def check_relative_tolerance(value: NumberLike | None, field: str = "relative_tolerance") -> float | None:
+    """The same for a relative tolerance, which may be absent and must be below 1."""
+    return None if value is None else _tolerance(value, field, optional=True)
+
+
+def _tolerance(value: NumberLike, field: str, optional: bool) -> float:
     if isinstance(value, bool) or not isinstance(value, (int, float, Decimal, Fraction, str)):
         raise InvalidInput(f"{field} must be a number", code="invalid_tolerance", field=field)
     exact = exact_number(value, field, code="invalid_tolerance", range_code="tolerance_out_of_range")

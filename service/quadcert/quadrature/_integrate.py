@@ -1,26 +1,30 @@
-"""The engine's front door: validate, read limits exactly, refine, report."""
+"""The engine proper: read limits exactly, refine (in float64 first, then at higher precision), report."""
 
 from __future__ import annotations
 
 import math
 import time
-from collections.abc import Callable, Mapping
+from collections.abc import Callable
 from dataclasses import dataclass
 from fractions import Fraction
+from typing import TYPE_CHECKING, Any
 
 from ..arithmetic import Arithmetic, FlintArithmetic, MpmathArithmetic, flint_context_claimed, fraction_down
 from ..derivatives import Program
 from ..errors import ArithmeticFault, InvalidInput, NotCertifiable
-from ..formula import Formula, parse
-from . import _composite, _fast, _inputs
-from ._endpoints import LimitValue, enclose_limit, exact_limit, parse_limit
+from ..formula import Formula
+from . import _composite, _fast
+from ._endpoints import enclose_limit, exact_limit
 from ._finish import error_bound
 from ._result import IntegralResult, PanelReport
 from ._simpson import FLOAT_FLOOR, Refiner
 
+if TYPE_CHECKING:
+    from ._request import Request
+
 DEFAULT_PRECISION = 96
 _LIMIT_PRECISION = 128  # exact limits are enclosed at this precision for the float64 engine
-ArithmeticFactory = Callable[[int], Arithmetic]
+ArithmeticFactory = Callable[[int], Arithmetic[Any]]
 Limit = Formula | Fraction  # a limit as typed (a formula), or an exact cut chosen by the engine
 
 
@@ -34,68 +38,25 @@ def choose_precision(tolerance: float) -> int:
     return max(DEFAULT_PRECISION, min(4096, int(-math.log2(tolerance)) + 48))
 
 
-def prepare(
-    integrand: str | Formula, variable: str, parameters: Mapping[str, object] | None
-) -> tuple[Formula, dict[str, Fraction]]:
-    values = _inputs.check_parameters(parameters)
-    if isinstance(integrand, Formula):
-        formula = integrand
-    else:
-        formula = parse(integrand, variable=variable, parameters=tuple(values))
-    return formula, values
-
-
-def integrate(
-    integrand: str | Formula,
-    lower_limit: LimitValue,
-    upper_limit: LimitValue,
-    tolerance: float = 1e-8,
+def run(
+    request: Request,
     *,
-    variable: str = "x",
-    parameters: Mapping[str, object] | None = None,
-    relative_tolerance: float | None = None,
-    max_nodes: int = _inputs.DEFAULT_MAX_NODES,
     deadline_seconds: float | None = None,
     include_mesh: bool = False,
     precision_bits: int | None = None,
     arithmetic: ArithmeticFactory | None = None,
 ) -> IntegralResult:
-    """Certified ∫ integrand d(variable) from lower_limit to upper_limit.
-
-    Parameters:
-        integrand: formula text in the language of the README (or a parsed :class:`Formula`).
-        lower_limit, upper_limit: a number or text such as ``"pi/2"``; text and Decimals are read exactly,
-            a float as the shortest decimal that prints it. The limits may be in either order.
-        tolerance: absolute target for the error bound (in [1e-60, 1e300]; text is read exactly).
-        variable: the integration variable's name.
-        parameters: name → number (or text) for the formula's other names.
-        relative_tolerance: also accept a bound ≤ this × |integral| (below 1).
-        max_nodes: evaluation budget; past it the rigorous enclosure so far is returned, not met.
-        deadline_seconds: wall-clock budget; past it, likewise.
-        include_mesh: also return every panel with its contribution and the bound that certified it.
-        precision_bits, arithmetic: force the arbitrary-precision engine at this precision or on this
-            backend (the compiled float64 engine is tried first otherwise).
-
-    Returns an :class:`IntegralResult`; raises :class:`FormulaError`, :class:`InvalidInput` or
-    :class:`NotCertifiable` (each with a ``code``) when it cannot answer.
-
-    >>> r = integrate("4/(1+x^2)", 0, 1, 1e-10)
-    >>> r.enclosure[0] <= 3.141592653589793 <= r.enclosure[1], r.error_bound <= 1e-10
-    (True, True)
-    """
+    """The certified integral of a validated request (see :func:`quadcert.integrate` for the options)."""
     started = time.perf_counter()
-    tolerance = _inputs.check_tolerance(tolerance)  # type: ignore[assignment]
-    relative = _inputs.check_tolerance(relative_tolerance, "relative_tolerance", optional=True)  # type: ignore[arg-type]
-    max_nodes = _inputs.check_max_nodes(max_nodes)
+    tolerance, relative = request.tolerance, request.relative_tolerance
+    formula, values = request.formula, dict(request.values)
+    lower_formula, upper_formula = request.lower, request.upper
     if deadline_seconds is not None and not (math.isfinite(deadline_seconds) and deadline_seconds > 0):
         raise InvalidInput(
             "deadline_seconds must be a positive number", code="invalid_deadline", field="deadline_seconds"
         )
-    formula, values = prepare(integrand, variable, parameters)
-    lower_formula = parse_limit(lower_limit, "lower_limit", tuple(values))
-    upper_formula = parse_limit(upper_limit, "upper_limit", tuple(values))
     deadline = None if deadline_seconds is None else time.monotonic() + deadline_seconds
-    settings = Settings(max_nodes, deadline, include_mesh, precision_bits, arithmetic)
+    settings = Settings(request.max_nodes, deadline, include_mesh, precision_bits, arithmetic)
 
     def target(low: float, high: float) -> float:
         """The absolute bound to meet: the tolerance, or the relative one times the smallest |integral| the
@@ -250,7 +211,7 @@ def _same(lower: Limit, upper: Limit) -> bool:
     return isinstance(lower, Fraction) and isinstance(upper, Fraction) and lower == upper
 
 
-def _enclosure(limit: Limit, ar: Arithmetic, values: dict[str, Fraction], field: str) -> object:
+def _enclosure(limit: Limit, ar: Arithmetic[Any], values: dict[str, Fraction], field: str) -> object:
     if isinstance(limit, Fraction):
         return ar.exact(limit)
     return enclose_limit(limit, ar, values, field)
@@ -314,8 +275,8 @@ def _exact_bounds(limit: Limit, values: dict[str, Fraction], field: str) -> tupl
 
 
 def _run(
-    program: Program,
-    ar: Arithmetic,
+    program: Program[Any],
+    ar: Arithmetic[Any],
     a: object,
     b: object,
     same_text: bool,

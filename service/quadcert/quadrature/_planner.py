@@ -12,25 +12,25 @@ from __future__ import annotations
 
 import math
 import time
-from collections.abc import Mapping
 from fractions import Fraction
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from ..arithmetic import Arithmetic, MpmathArithmetic
 from ..derivatives import Program
 from ..errors import ArithmeticFault, InvalidInput, NotCertifiable
-from ..formula import Formula
-from . import _inputs
-from ._endpoints import LimitValue, enclose_limit, parse_limit
-from ._integrate import ArithmeticFactory, prepare
+from ._endpoints import enclose_limit
+from ._integrate import ArithmeticFactory
 from ._result import Plan, RulePlan
+
+if TYPE_CHECKING:
+    from ._request import Request
 
 MAX_PIECES = 4096
 MAX_PLANNED_INTERVALS = 10**12
 
 
 def _derivative_bound(
-    program: Program, ar: Arithmetic, a: Any, b: Any, order: int
+    program: Program[Any], ar: Arithmetic[Any], a: Any, b: Any, order: int
 ) -> tuple[Fraction | None, int, str | None]:
     """Upper bound of max|f^(order)| on [a, b], refining the subdivision until it settles."""
     previous: Fraction | None = None
@@ -65,7 +65,7 @@ def _derivative_bound(
     return None, pieces // 2, reason
 
 
-def _count(ar: Arithmetic, span: Any, bound: Fraction, tolerance: float, constant: int, power: int) -> int:
+def _count(ar: Arithmetic[Any], span: Any, bound: Fraction, tolerance: float, constant: int, power: int) -> int:
     """Smallest safe n with span·(span/n)^power·bound/constant <= tolerance, from an upper enclosure."""
     if bound == 0:
         return 1
@@ -80,7 +80,7 @@ def _count(ar: Arithmetic, span: Any, bound: Fraction, tolerance: float, constan
 
 
 def _rule(
-    ar: Arithmetic, span: Any, bound: Fraction | None, reason: str | None, tolerance: float, rule: str, order: int
+    ar: Arithmetic[Any], span: Any, bound: Fraction | None, reason: str | None, tolerance: float, rule: str, order: int
 ) -> RulePlan:
     if bound is None:
         return RulePlan(rule, 0, 0, 0.0, order, None, None, False, reason)
@@ -95,30 +95,11 @@ def _rule(
     return RulePlan(rule, n, nodes, ar.bounds(h)[0], order, float(bound), ar.bounds(achieved)[1], True)
 
 
-def plan(
-    integrand: str | Formula,
-    lower_limit: LimitValue,
-    upper_limit: LimitValue,
-    tolerance: float,
-    *,
-    variable: str = "x",
-    parameters: Mapping[str, object] | None = None,
-    arithmetic: ArithmeticFactory = MpmathArithmetic,
-    precision_bits: int = 96,
-) -> Plan:
-    """Uniform Simpson and trapezoid node counts that the global bounds guarantee.
-
-    >>> p = plan("exp(x)", 0, 2, 0.5e-4)
-    >>> p.simpson.intervals, p.simpson.nodes, p.trapezoid.nodes
-    (7, 15, 315)
-    """
+def plan_for(request: Request, *, arithmetic: ArithmeticFactory = MpmathArithmetic, precision_bits: int = 96) -> Plan:
+    """Uniform Simpson and trapezoid node counts that the global bounds guarantee for ``request.tolerance``."""
     started = time.perf_counter()
-    tolerance = _inputs.check_tolerance(tolerance)  # type: ignore[assignment]
-    formula, values = prepare(integrand, variable, parameters)
-    lower, upper = (
-        parse_limit(lower_limit, "lower_limit", tuple(values)),
-        parse_limit(upper_limit, "upper_limit", tuple(values)),
-    )
+    tolerance, formula, values = request.tolerance, request.formula, dict(request.values)
+    lower, upper = request.lower, request.upper
     ar = arithmetic(precision_bits)
     program = Program(formula, ar, values)
     a = enclose_limit(lower, ar, values, "lower_limit")

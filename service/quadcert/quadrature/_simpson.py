@@ -57,7 +57,7 @@ class Outcome:
     stop_reason: str
 
 
-def _enclose(program: Program, ar: Arithmetic, panel: _Panel) -> tuple[Any, int]:
+def _enclose(program: Program[Any], ar: Arithmetic[Any], panel: _Panel) -> tuple[Any, int]:
     """Rigorous enclosure of the panel's integral: every available bound, intersected."""
     series = program.taylor(ar.hull(panel.p, panel.q), 4)
     width = ar.sub(panel.q, panel.p)
@@ -132,13 +132,13 @@ class Refiner:
 
     def __init__(
         self,
-        program: Program,
-        ar: Arithmetic,
+        program: Program[Any],
+        ar: Arithmetic[Any],
         *,
         max_nodes: int,
         deadline: float | None,
-        retry: Callable[[int], Program] | None = None,
-        fallback: Program | None = None,
+        retry: Callable[[int], Program[Any]] | None = None,
+        fallback: Program[Any] | None = None,
     ) -> None:
         self.program = program
         self.variable = program.formula.variable

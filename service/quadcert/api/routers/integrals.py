@@ -15,11 +15,9 @@ from ...errors import InvalidInput, QuadcertError
 from ...quadrature import bound_text, shown
 from .._cache import cache_key
 from .._cell_hints import hint, refuse_unknown_keys
-from .._computation import _problem_args
 from .._exact_json import ExactJSONResponse, ExactRoute
 from .._formats import MEDIA_TYPES, render, render_problem
-from .._jobs import _error
-from .._problems import problem_body, problem_headers, problem_response
+from .._problems import problem_body, problem_for, problem_headers, problem_response
 from .._schemas import BatchRequest, BatchResponse, IntegralRequest, IntegralResponse
 from ._common import PROBLEM_RESPONSES, computation, context, respond
 
@@ -153,13 +151,14 @@ async def read_integral(
         refuse_unknown_keys(list(request.query_params.keys()), GET_KEYS)
         _refuse_repeated_keys(request)
         body["parameters"] = _parameters(parameter or [])
-        tag = _etag(engine.canonical(body), format, field)
+        prepared = engine.prepare(body)
+        tag = _etag(prepared.canonical, format, field)
     except QuadcertError as error:
-        return _plain_problem(_with_hint(problem_body(**_args(error), **context(request)), request), format, request)
+        return _plain_problem(_with_hint(problem_for(error, **context(request)), request), format, request)
     headers = {"ETag": tag, "Cache-Control": "public, max-age=86400"}
     if _matches(request.headers.get("if-none-match"), tag):
         return Response(status_code=304, headers=headers)
-    (status, answer), _ = await engine.integral(body, context(request))
+    (status, answer), _ = await engine.integral(body, context(request), prepared=prepared)
     if status != 200:
         return _plain_problem(_with_hint(answer, request), format, request)
     if not answer["tolerance_met"]:
@@ -240,10 +239,6 @@ def _matches(if_none_match: str | None, tag: str) -> bool:
         return False
     offered = [t.strip() for t in if_none_match.split(",")]
     return "*" in offered or tag.removeprefix("W/") in [t.removeprefix("W/") for t in offered]
-
-
-def _args(error: QuadcertError) -> dict:
-    return _problem_args(_error(error))
 
 
 def _plain_problem(body: dict, fmt: str, request: Request) -> Response:
