@@ -73,7 +73,7 @@ class Computation:
             relative_tolerance=body.get("relative_tolerance"),
             max_nodes=body.get("max_nodes") or self.settings.default_max_nodes,
         )
-        canonical = {
+        canonical: dict[str, Any] = {
             **request.canonical(),
             **{
                 k: _exact_text(body.get(k))
@@ -135,11 +135,11 @@ class Computation:
             return (problem["status"], problem), key
         self.metrics.engine_seconds.observe(time.perf_counter() - started)
         if "error" in answer:
-            error = answer["error"]
+            refusal: QuadcertError = answer["error"]
             self.metrics.results.labels("refused").inc()
-            if isinstance(error, EngineDefect):
-                log.error("engine failure", extra={"detail": error.message, "trace": error.trace})
-            problem = problem_for(error, **context)
+            if isinstance(refusal, EngineDefect):
+                log.error("engine failure", extra={"detail": refusal.message, "trace": refusal.trace})
+            problem = problem_for(refusal, **context)
             return (problem["status"], problem), key
         result = answer["ok"]
         self.metrics.results.labels("certified").inc()

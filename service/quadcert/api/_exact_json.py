@@ -36,9 +36,8 @@ def dumps(content: Any) -> bytes:
     >>> dumps({"claimed_value": Decimal("9.00000000000000015"), "value": 9.0})
     b'{"claimed_value":9.00000000000000015,"value":9.0}'
     """
-    return simplejson.dumps(
-        content, use_decimal=True, ensure_ascii=False, allow_nan=False, separators=(",", ":")
-    ).encode("utf-8")
+    text: str = simplejson.dumps(content, use_decimal=True, ensure_ascii=False, allow_nan=False, separators=(",", ":"))
+    return text.encode("utf-8")
 
 
 class ExactJSONResponse(JSONResponse):

@@ -33,6 +33,7 @@ from dataclasses import dataclass, field
 from multiprocessing.reduction import ForkingPickler
 from typing import Any
 
+from ..arithmetic import Backend
 from ..errors import DeadlineExceeded, EngineDefect, QuadcertError, Saturated, ServiceError, ShuttingDown, WorkerLost
 
 log = logging.getLogger("quadcert.pool")
@@ -43,7 +44,7 @@ GROUP_SHARE = 0.5
 ENGINE_SHARE = 0.8
 
 
-def _worker_main(connection: multiprocessing.connection.Connection, backend: str = "flint") -> None:
+def _worker_main(connection: multiprocessing.connection.Connection, backend: Backend = "flint") -> None:
     signal.signal(signal.SIGINT, signal.SIG_IGN)  # the parent decides when workers stop
     signal.signal(signal.SIGTERM, signal.SIG_DFL)
     if backend == "flint":
@@ -96,8 +97,13 @@ class _Job:
     future: asyncio.Future[dict[str, Any]] = field(repr=False)
 
 
+def _kill_all(workers: list[_Worker]) -> None:
+    for worker in workers:
+        worker.kill()
+
+
 class _Worker:
-    def __init__(self, context: multiprocessing.context.BaseContext, backend: str) -> None:
+    def __init__(self, context: multiprocessing.context.SpawnContext, backend: Backend) -> None:
         parent, child = context.Pipe()  # a socket pair on POSIX
         self.connection = parent
         # the parent's end as a non-blocking socket for the event loop: replies of any size are read as they
@@ -145,7 +151,7 @@ async def _exactly(loop: asyncio.AbstractEventLoop, sock: socket.socket, count: 
 class WorkerPool:
     """``await pool.run(task, payload, deadline_seconds)`` → the job's answer dict."""
 
-    def __init__(self, size: int, queue_limit: int, backend: str = "flint") -> None:
+    def __init__(self, size: int, queue_limit: int, backend: Backend = "flint") -> None:
         self.size = size
         self.backend = backend
         self.queue_limit = queue_limit
@@ -192,7 +198,7 @@ class WorkerPool:
                 worker.process.kill()  # a signal, not a wait: close never blocks on a worker
         if self._threads is not None:
             threads, workers = self._threads, self._workers
-            await asyncio.get_running_loop().run_in_executor(threads, lambda: [w.kill() for w in workers])
+            await asyncio.get_running_loop().run_in_executor(threads, _kill_all, workers)
             threads.shutdown(wait=False, cancel_futures=True)
         if self._changed is not None:
             async with self._changed:
@@ -366,6 +372,7 @@ class WorkerPool:
             raise
         try:
             reply_id, answer = await asyncio.wait_for(_receive(loop, worker.socket), timeout=left)
+            reply: dict[str, Any] = answer
         except TimeoutError:
             log.warning("job over deadline; restarting worker", extra={"task": job.task.__name__, "deadline": left})
             await self._replace(index)
@@ -379,7 +386,7 @@ class WorkerPool:
         if reply_id != job_id:  # cannot happen with one job per worker; refuse rather than mix answers
             await self._replace(index)
             raise WorkerLost("the worker answered out of order")
-        return answer
+        return reply
 
     async def _replace(self, index: int) -> _Worker:
         old = self._workers[index]

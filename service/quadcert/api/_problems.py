@@ -52,7 +52,7 @@ def status_of(error: QuadcertError) -> int:
     """
     for cls in type(error).__mro__:
         if cls in STATUS_BY_CLASS:
-            return STATUS_BY_CLASS[cls]  # type: ignore[index]
+            return STATUS_BY_CLASS[cls]
     return 422  # not reached: every error is a QuadcertError
 
 

@@ -14,7 +14,6 @@ from pydantic import (
     StrictInt,
     StrictStr,
     WithJsonSchema,
-    conlist,
 )
 
 from ..results import StopReason, Verdict  # the engine's own state types, not a second copy
@@ -43,9 +42,9 @@ Limit = Annotated[
 
 
 #: a closed interval [low, high] as two numbers
-Pair = conlist(float, min_length=2, max_length=2)
+Pair = Annotated[list[float], Field(min_length=2, max_length=2)]
 #: a stretch of the mesh or a refusal's location: numbers, or "inf"/"-inf" at a tail
-Ends = conlist(float | Literal["inf", "-inf"], min_length=2, max_length=2)
+Ends = Annotated[list[float | Literal["inf", "-inf"]], Field(min_length=2, max_length=2)]
 
 
 class _Strict(BaseModel):
@@ -140,7 +139,7 @@ class Problem(BaseModel):
     field: str | None = None
     location: Ends | None = None
     request_id: str | None = None
-    errors: list[dict] | None = None
+    errors: list[dict[str, Any]] | None = None
 
 
 class BatchResponse(BaseModel):

@@ -3,10 +3,11 @@
 from __future__ import annotations
 
 import os
-from typing import Literal
 
 from pydantic import Field
 from pydantic_settings import BaseSettings, SettingsConfigDict
+
+from ..arithmetic import Backend
 
 
 class Settings(BaseSettings):
@@ -45,7 +46,7 @@ class Settings(BaseSettings):
         ge=0,
         description="open connections before the oldest silent one is closed (0: derived from the open-file limit)",
     )
-    backend: Literal["flint", "mpmath"] = Field(
+    backend: Backend = Field(
         "flint",
         description="engine arithmetic in the workers: flint (arb balls, fast) or mpmath (the reference backend)",
     )

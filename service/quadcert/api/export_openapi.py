@@ -3,12 +3,13 @@
 from __future__ import annotations
 
 import json
+from typing import Any
 
 from ._settings import Settings
 from .main import create_app
 
 
-def document() -> dict:
+def document() -> dict[str, Any]:
     return create_app(Settings(workers=1)).openapi()
 
 

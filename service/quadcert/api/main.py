@@ -12,6 +12,7 @@ from typing import Any
 from fastapi import FastAPI, Request
 from fastapi.exceptions import RequestValidationError
 from fastapi.openapi.utils import get_openapi
+from fastapi.responses import Response
 from starlette.exceptions import HTTPException as StarletteHTTPException
 
 from .. import __version__
@@ -87,14 +88,14 @@ def _plain_message(message: str) -> str:
 
 def _install_error_handlers(app: FastAPI) -> None:
     @app.exception_handler(RequestValidationError)
-    async def invalid(request: Request, error: RequestValidationError):  # type: ignore[no-untyped-def]
-        errors = [
+    async def invalid(request: Request, error: RequestValidationError) -> Response:
+        errors: list[dict[str, Any]] = [
             {"location": [str(p) for p in e.get("loc", ())], "message": e.get("msg", ""), "type": e.get("type", "")}
             for e in error.errors()
         ]
-        first = errors[0] if errors else {"location": [], "message": "invalid request"}
+        first: dict[str, Any] = errors[0] if errors else {"location": [], "message": "invalid request"}
         if first.get("type") == "json_invalid":  # not JSON text at all: 400, with where the text went wrong
-            raw = next(iter(error.errors()), {})
+            raw: dict[str, Any] = dict(next(iter(error.errors()), {}))
             reason = (raw.get("ctx") or {}).get("error", "")
             at = [p for p in raw.get("loc", ()) if isinstance(p, int)]
             where = f" at character {at[0]}" if at else ""
@@ -124,7 +125,7 @@ def _install_error_handlers(app: FastAPI) -> None:
         return problem_response(body)
 
     @app.exception_handler(StarletteHTTPException)
-    async def http_error(request: Request, error: StarletteHTTPException):  # type: ignore[no-untyped-def]
+    async def http_error(request: Request, error: StarletteHTTPException) -> Response:
         code = {400: "malformed_body", 404: "not_found", 405: "method_not_allowed", 413: "body_too_large"}.get(
             error.status_code, "invalid_request"
         )

@@ -4,7 +4,7 @@ Two backends: :class:`MpmathArithmetic` (the reference: mpmath with a guard on e
 :class:`FlintArithmetic` (python-flint's arb ball arithmetic in C, much faster; see its precision rule).
 """
 
-from ._backend import MAX_PRECISION, MIN_PRECISION, Arithmetic, MpmathArithmetic
+from ._backend import MAX_PRECISION, MIN_PRECISION, Arithmetic, Backend, MpmathArithmetic
 from ._flint_backend import FlintArithmetic, claim_flint_context, flint_context_claimed, release_flint_context
 from ._interval import Interval, fraction_down, fraction_up, interval_text, shown, to_fraction
 
@@ -12,6 +12,7 @@ __all__ = [
     "MAX_PRECISION",
     "MIN_PRECISION",
     "Arithmetic",
+    "Backend",
     "FlintArithmetic",
     "Interval",
     "MpmathArithmetic",

@@ -13,7 +13,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from fractions import Fraction
-from typing import Protocol, TypeVar
+from typing import Literal, Protocol, TypeVar
 
 from ..errors import InvalidInput
 from . import _kernels as kernels
@@ -23,6 +23,9 @@ MIN_PRECISION = 53
 MAX_PRECISION = 4096
 
 E = TypeVar("E")  # the enclosure type of one backend
+
+#: the backends by name, as settings and requests choose them
+Backend = Literal["flint", "mpmath"]
 
 
 class Arithmetic(Protocol[E]):

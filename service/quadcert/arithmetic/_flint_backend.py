@@ -87,8 +87,10 @@ def _monotone(method: str, increasing: bool = True) -> Callable[[arb], arb]:
 
     def apply(a: arb) -> arb:
         if a.is_exact():
-            return getattr(a, method)()
-        low, high = getattr(arb(a.lower()), method)(), getattr(arb(a.upper()), method)()
+            value: arb = getattr(a, method)()
+            return value
+        low: arb = getattr(arb(a.lower()), method)()
+        high: arb = getattr(arb(a.upper()), method)()
         return low.union(high)
 
     return apply
@@ -193,7 +195,7 @@ class FlintArithmetic:
         )
 
     def function(self, name: str, a: arb) -> arb:
-        result = _FUNCTIONS[name](a)
+        result: arb = _FUNCTIONS[name](a)
         if not result.is_finite():  # arb gives up (e.g. an unbounded slope at a domain edge): not a number we use
             raise Unbounded(f"{name} could not be bounded on {_text(a)}", certain=False)
         return result
@@ -222,7 +224,9 @@ class FlintArithmetic:
 
     def is_exact_integer(self, a: arb) -> int | None:
         if a.is_exact() and a.is_integer():
-            return int(a.mid().man_exp()[0]) * 2 ** int(a.mid().man_exp()[1])
+            man, exp = a.mid().man_exp()
+            whole: int = int(man) * 2 ** int(exp)
+            return whole
         return None
 
     def bounds(self, a: arb) -> tuple[float, float]:

@@ -11,7 +11,7 @@ import threading
 import time
 from collections.abc import Iterator, Sequence
 from decimal import Decimal
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import simplejson
 
@@ -21,8 +21,10 @@ from ..quadrature import CheckResult, IntegralResult, Plan, bound_text, certifie
 from ..results import check_body, integral_body, plan_body
 from . import _junit, _table
 
-EXIT_OK, EXIT_FAIL, EXIT_UNDECIDED = 0, 1, 2
+if TYPE_CHECKING:
+    from ..client import Client
 
+EXIT_OK, EXIT_FAIL, EXIT_UNDECIDED = 0, 1, 2
 
 EXIT_CODES = """exit codes:
   0  success (check: pass, certified |claimed - exact| <= tolerance)
@@ -88,7 +90,7 @@ def _time_left(args: argparse.Namespace) -> float | None:
     return None if until is None else max(until - time.monotonic(), 1e-3)
 
 
-def _client(url: str, args: argparse.Namespace | None = None):
+def _client(url: str, args: argparse.Namespace | None = None) -> Client:
     from ..client import Client
 
     left = None if args is None else _time_left(args)
@@ -216,7 +218,8 @@ def _checks(args: argparse.Namespace) -> int:
     items = read_checks(args.file)
     cases = []
     for item in _progress(items, "checks"):
-        if _time_left(args) is not None and _time_left(args) <= 1e-3:
+        left = _time_left(args)
+        if left is not None and left <= 1e-3:
             cases.append(_junit.CaseOutcome(item["name"], "error", "timeout: not started before --timeout", 0.0))
             continue
         case, _ = _one_check(args, item["name"], item)
@@ -285,7 +288,14 @@ def _typed(text: Any) -> Any:
 
 
 def _json(content: Any) -> str:
-    return simplejson.dumps(content, use_decimal=True, allow_nan=False)
+    text: str = simplejson.dumps(content, use_decimal=True, allow_nan=False)
+    return text
+
+
+def _known(value: float | None) -> float:
+    """A figure an available rule always has (its derivative and error bounds)."""
+    assert value is not None
+    return value
 
 
 def _batch(args: argparse.Namespace) -> int:
@@ -344,8 +354,8 @@ def _describe_plan(result: Plan) -> str:
             lines.append(
                 f"{rule.rule:10s} {rule.intervals} intervals, {rule.nodes} nodes, "
                 f"h = {shown(rule.spacing, 6, 'down')}, "
-                f"max|f^({rule.derivative_order})| <= {shown(rule.derivative_bound, 6, 'up')}, "
-                f"bound {shown(rule.error_bound, 3, 'up')}"
+                f"max|f^({rule.derivative_order})| <= {shown(_known(rule.derivative_bound), 6, 'up')}, "
+                f"bound {shown(_known(rule.error_bound), 3, 'up')}"
             )
         else:
             lines.append(f"{rule.rule:10s} not available: {rule.reason}")
@@ -497,7 +507,8 @@ def main(argv: Sequence[str] | None = None) -> int:
 
         claim_flint_context()  # the CLI computes on its main thread only, so it may own flint's context
     try:
-        return args.run(args)
+        code: int = args.run(args)
+        return code
     except QuadcertError as error:
         _print_problem(error)
         return EXIT_UNDECIDED

@@ -75,7 +75,7 @@ def _bind(host: str, port: int) -> socket.socket:
 def serve(host: str | None, port: int | None, workers: int | None) -> int:
     overrides = {k: v for k, v in {"host": host, "port": port, "workers": workers}.items() if v is not None}
     try:
-        settings = Settings(**overrides)
+        settings = Settings(**overrides)  # type: ignore[arg-type]  # pydantic-settings types its own init options too
     except ValidationError as error:
         first = error.errors()[0]
         raise InvalidInput(

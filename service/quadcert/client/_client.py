@@ -96,7 +96,8 @@ def _exact(value: Any) -> Any:
 
 def _encode(body: Any) -> bytes:
     """JSON with Decimals written as their digits, so the server certifies the number typed, not a float."""
-    return simplejson.dumps(body, use_decimal=True, allow_nan=False).encode()
+    text: str = simplejson.dumps(body, use_decimal=True, allow_nan=False)
+    return text.encode()
 
 
 def _limit(value: Any) -> Any:
@@ -167,10 +168,11 @@ def _retryable(error: BaseException) -> bool:
 def _wait(state: Any) -> float:
     """The server's Retry-After when it gave one, else 0.5 s, 1 s, 2 s ..."""
     error = state.outcome.exception() if state.outcome else None
-    advised = getattr(error, "retry_after", None)
+    advised: float | None = getattr(error, "retry_after", None)
     if advised is not None:
-        return min(advised, LONGEST_WAIT)
-    return min(0.5 * 2 ** (state.attempt_number - 1), LONGEST_WAIT)
+        return min(float(advised), LONGEST_WAIT)
+    attempt: int = state.attempt_number
+    return min(0.5 * 2.0 ** (attempt - 1), LONGEST_WAIT)
 
 
 def _retrying(attempts: int) -> dict[str, Any]:

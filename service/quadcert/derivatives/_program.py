@@ -76,7 +76,8 @@ class Program(Generic[E]):
         kind, payload = self._root
         if kind == "const":
             return [payload, *([self.ar.zero] * order)]
-        return payload(series.variable(self.ar, x, order))
+        grow: Callable[[Series[E]], Series[E]] = payload
+        return grow(series.variable(self.ar, x, order))
 
     # -- compilation -------------------------------------------------------------------------
     def _compile(self, node: Node) -> Compiled:
@@ -116,7 +117,8 @@ class Program(Generic[E]):
     def _lift(self, compiled: Compiled) -> Callable[[Series[E]], Series[E]]:
         kind, payload = compiled
         if kind == "series":
-            return payload
+            grow: Callable[[Series[E]], Series[E]] = payload
+            return grow
         ar = self.ar
         return lambda xs: [payload, *([ar.zero] * (len(xs) - 1))]
 

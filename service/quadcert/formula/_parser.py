@@ -14,6 +14,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from fractions import Fraction
 from functools import cached_property, lru_cache
+from typing import Any
 
 from ..errors import FormulaError
 from . import _limits
@@ -67,7 +68,7 @@ class Formula:
             object.__setattr__(self, "_hash", cached)
         return cached
 
-    def __getstate__(self) -> dict:
+    def __getstate__(self) -> dict[str, Any]:
         """Pickle without the cached hash: string hashes differ between processes."""
         return {k: v for k, v in self.__dict__.items() if k != "_hash"}
 

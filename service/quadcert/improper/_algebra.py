@@ -12,7 +12,7 @@ from dataclasses import dataclass, replace
 from fractions import Fraction
 from typing import Any, Generic, TypeVar
 
-from ..arithmetic import Interval
+from ..arithmetic import Arithmetic, Interval
 from ..derivatives import Program
 from ..errors import ArithmeticFault
 from ..formula import Binary, Call, Formula, Negate, Node, Variable
@@ -191,7 +191,7 @@ class Rules(Generic[Form]):
         )
 
 
-def _cap(ar: Any, name: str) -> Interval:
+def _cap(ar: Arithmetic[Interval], name: str) -> Interval:
     """sup |f| for the bounded functions: π/2 for atan, 1 for the others."""
     return ar.scale(ar.constant("pi"), Fraction(1, 2)) if name == "atan" else ar.one
 
@@ -230,7 +230,8 @@ def _has_variable(node: Node) -> bool:
 def _rational(node: Node, values: Mapping[str, Fraction]) -> Fraction:
     """The exact value of a constant exponent (a rational is needed for the power algebra)."""
     try:
-        value = Program(Formula(node, "_", tuple(values)), ExactArithmetic(), values).value(Fraction(0))  # type: ignore[arg-type]
+        exact: Program[Fraction] = Program(Formula(node, "_", tuple(values)), ExactArithmetic(), values)
+        value = exact.value(Fraction(0))
     except (Unsupported, ArithmeticFault, ZeroDivisionError):
         raise Unsupported("an exponent that is not a rational number") from None
     if abs(value.numerator) > 10**6 or value.denominator > 10**6:

@@ -10,7 +10,7 @@ from __future__ import annotations
 import math
 from fractions import Fraction
 
-from ..arithmetic import Interval, MpmathArithmetic
+from ..arithmetic import Interval, MpmathArithmetic, fraction_down, fraction_up
 
 PRECISION = 128
 #: the ε of L ≤ t^(−ε)/(e·ε) (near a point) and log y ≤ y^ε/(e·ε) (in a tail): small, so that a
@@ -67,7 +67,7 @@ class Scalars:
 
 
 #: the values of functions that are exact rationals at rational points (the points where they are rational at all)
-_SPECIAL_VALUES: dict[tuple[str, Fraction], Fraction] = {
+_SPECIAL_VALUES: dict[tuple[str, Fraction | int], Fraction] = {
     ("exp", 0): Fraction(1),
     ("log", 1): Fraction(0),
     ("sin", 0): Fraction(0),
@@ -168,3 +168,17 @@ class ExactArithmetic:
 
     def is_exact_integer(self, a: Fraction) -> int | None:
         return a.numerator if a.denominator == 1 else None
+
+    def bounds(self, a: Fraction) -> tuple[float, float]:
+        return fraction_down(a), fraction_up(a)
+
+    def bounds_exact(self, a: Fraction) -> tuple[Fraction, Fraction]:
+        return a, a
+
+    def from_bounds(self, low: Fraction, high: Fraction) -> Fraction:
+        if low != high:
+            raise Unsupported("not a point")
+        return low
+
+    def width(self, a: Fraction) -> float:
+        return 0.0

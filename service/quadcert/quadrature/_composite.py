@@ -139,8 +139,10 @@ def integrate_pieces(
 def _after(ends: _Ends, a: End, b: End) -> bool:
     """True when a lies after b, so the integral runs backwards (a and b are never the same limit here)."""
     if isinstance(a, int) or isinstance(b, int):
-        return a == 1 or b == -1
-    (a_lo, a_hi), (b_lo, b_hi) = ends.numeric(a), ends.numeric(b)  # type: ignore[misc]
+        return bool(a == 1 or b == -1)
+    a_ends, b_ends = ends.numeric(a), ends.numeric(b)
+    assert a_ends is not None and b_ends is not None  # finite ends: the infinite ones were decided above
+    (a_lo, a_hi), (b_lo, b_hi) = a_ends, b_ends
     if a_hi < b_lo:
         return False
     if b_hi < a_lo:
@@ -338,25 +340,27 @@ def _graded(ends: _Ends, start: Any, stop: Any, u: End, v: End, left: bool, righ
     marks: set[Fraction] = set()
     if left and isinstance(u, int):  # from −T in towards the stretch
         mark = Fraction(start) / _GROWTH
-        while mark < min(middle, -1, 2 * high[0]):
+        while mark < min(middle, Fraction(-1), 2 * high[0]):
             marks.add(mark)
             mark /= _GROWTH
     elif left:
         origin = ends.exact(u)
-        step = (low[0] - origin) * _GROWTH  # type: ignore[operator]
-        while origin + step < middle:  # type: ignore[operator]
-            marks.add(origin + step)  # type: ignore[operator]
+        assert origin is not None  # a finite end of a stretch next to a singular point is exact
+        step = (low[0] - origin) * _GROWTH
+        while origin + step < middle:
+            marks.add(origin + step)
             step *= _GROWTH
     if right and isinstance(v, int):  # from T in towards the stretch
         mark = Fraction(stop) / _GROWTH
-        while mark > max(middle, 1, 2 * low[1]):
+        while mark > max(middle, Fraction(1), 2 * low[1]):
             marks.add(mark)
             mark /= _GROWTH
     elif right:
         origin = ends.exact(v)
-        step = (origin - high[1]) * _GROWTH  # type: ignore[operator]
-        while origin - step > middle:  # type: ignore[operator]
-            marks.add(origin - step)  # type: ignore[operator]
+        assert origin is not None
+        step = (origin - high[1]) * _GROWTH
+        while origin - step > middle:
+            marks.add(origin - step)
             step *= _GROWTH
     points = [start, *sorted(m for m in marks if low[1] < m < high[0]), stop]
     return list(itertools.pairwise(points))

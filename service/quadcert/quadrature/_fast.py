@@ -11,9 +11,11 @@ enclosed exactly by the reference backend and rounded outward to floats.
 
 from __future__ import annotations
 
+import logging
 import math
 import time
 from array import array
+from collections import Counter
 from collections.abc import Mapping
 from dataclasses import dataclass
 from fractions import Fraction
@@ -24,52 +26,35 @@ from ..derivatives import Program
 from ..errors import ArithmeticFault
 from ..formula import Binary, Call, Constant, Formula, Negate, Node, Number, Parameter, Variable
 from ..formula._nodes import distinct_arguments
+from ..results import StopReason
+from ._native_tables import BINARY, EFFECT, FUNCTION_CODES, MAX_POWER, Op, Status, disagreement
 from ._peano import BOUND_NAMES
 from ._result import PanelReport
+
+log = logging.getLogger("quadcert.engine")
 
 try:
     from . import _native
 except ImportError:  # built without a C compiler: the arbitrary-precision engine does everything
-    _native = None
+    _native = None  # type: ignore[assignment]
+
+#: None when the extension's tables equal Python's; else what differs (the extension is then not used)
+TABLE_DISAGREEMENT = None if _native is None else disagreement(_native.tables())
+if TABLE_DISAGREEMENT is not None:
+    log.error("compiled engine disabled: its tables differ from Python's", extra={"detail": TABLE_DISAGREEMENT})
+    _native = None  # type: ignore[assignment]
 
 AVAILABLE = _native is not None
 
-_OPS = {"x": 0, "const": 1, "neg": 2, "+": 3, "-": 4, "*": 5, "/": 6, "sqr": 7, "powi": 8, "^": 9, "min": 10, "max": 11}
-FUNCTION_CODES = {
-    name: 20 + i
-    for i, name in enumerate(
-        [
-            "sqrt",
-            "exp",
-            "log",
-            "log10",
-            "sin",
-            "cos",
-            "tan",
-            "asin",
-            "acos",
-            "atan",
-            "sinh",
-            "cosh",
-            "tanh",
-            "erf",
-            "abs",
-        ]
-    )
-}
-MAX_POWER = 1024
 _FOLD_PRECISION = 128
-_STOPS = {0: "tolerance_met", 1: "node_budget", 2: "deadline"}
-DECLINED = {
-    -1: "value",
-    -2: "depth",
-    -3: "resolution",
-    -4: "unresolved",
-    -5: "memory",
-    -6: "rounding_mode",
-    -7: "float_range",
-    -8: "stalled",
-}  # why the C engine handed a request over
+
+#: why the compiled engine handed requests over, counted in this process (see :func:`declines`)
+_DECLINES: Counter[str] = Counter()
+
+
+def declines() -> dict[str, int]:
+    """How often, and why, the compiled engine declined in this process since it started."""
+    return dict(_DECLINES)
 
 
 @dataclass(frozen=True)
@@ -84,7 +69,7 @@ class FastOutcome:
     """A run that finished: its enclosure is rigorous whatever the stop reason."""
 
     enclosure: tuple[float, float]
-    stop_reason: str
+    stop_reason: StopReason
     nodes: int
     panels: int
     bounds_used: dict[str, int]
@@ -101,9 +86,9 @@ class _Compiler:
         self.depth = self.most = 0
         self.dependent: dict[int, bool] = {}  # id(node) -> does it involve the variable (computed once per node)
 
-    def emit(self, op: str | int, arg: int = 0, effect: int = 0) -> None:
-        self.code += [op if isinstance(op, int) else _OPS[op], arg]
-        self.depth += effect
+    def emit(self, op: Op, arg: int = 0) -> None:
+        self.code += [op, arg]
+        self.depth += EFFECT[op]
         self.most = max(self.most, self.depth)
 
     def constant(self, node: Node) -> None:
@@ -113,7 +98,7 @@ class _Compiler:
             program = Program(Formula(node, self.formula.variable, self.formula.parameters), self.ar, self.values)
             low, high = self.ar.bounds_exact(program.value(self.ar.zero))
         self.constants.append((fraction_down(low), fraction_up(high)))
-        self.emit("const", len(self.constants) - 1, +1)
+        self.emit(Op.CONST, len(self.constants) - 1)
 
     def depends(self, node: Node) -> bool:
         known = self.dependent.get(id(node))
@@ -136,17 +121,17 @@ class _Compiler:
         if not self.depends(node):
             self.constant(node)
         elif isinstance(node, Variable):
-            self.emit("x", 0, +1)
+            self.emit(Op.X)
         elif isinstance(node, Negate):
             self.node(node.operand)
-            self.emit("neg")
+            self.emit(Op.NEG)
         elif isinstance(node, Call):
             args = distinct_arguments(node) if node.function in ("min", "max") else node.args
             self.node(args[0])
             if node.function in ("min", "max"):
                 for arg in args[1:]:
                     self.node(arg)
-                    self.emit(node.function, 0, -1)
+                    self.emit(Op.MAX if node.function == "max" else Op.MIN)
             else:
                 self.emit(FUNCTION_CODES[node.function])
         else:
@@ -159,17 +144,17 @@ class _Compiler:
             if exponent is not None and abs(exponent) <= MAX_POWER:
                 self.node(node.left)
                 if exponent == 2:
-                    self.emit("sqr")
+                    self.emit(Op.SQR)
                 else:
-                    self.emit("powi", exponent)
+                    self.emit(Op.POWI, exponent)
                 return
         if node.op == "*" and node.left == node.right:
             self.node(node.left)
-            self.emit("sqr")
+            self.emit(Op.SQR)
             return
         self.node(node.left)
         self.node(node.right)
-        self.emit(node.op, 0, -1)
+        self.emit(BINARY[node.op])
 
     def exact_integer(self, node: Node) -> int | None:
         if isinstance(node, Number):
@@ -258,15 +243,15 @@ def run(
 ) -> FastOutcome | str:
     """Refine on [a, b] (exact enclosures of the limits, a < b); a FastOutcome, or why it declined."""
     if not trusted():
-        return "unavailable"
+        return _declined("unavailable")
     seconds = 0.0
     if deadline is not None:
         seconds = deadline - time.monotonic()
         if seconds <= 0:
-            return "deadline"
+            return _declined("deadline")
     bounds = (fraction_down(a[0]), fraction_up(a[1]), fraction_down(b[0]), fraction_up(b[1]))
     if not all(math.isfinite(v) for v in bounds):
-        return "limits"
+        return _declined("limits")
     status, low, high, nodes, panels, counts, mesh = _native.integrate(
         compiled.code,
         compiled.constants,
@@ -278,10 +263,19 @@ def run(
         max_nodes,
         want_mesh,
     )
-    if status < 0:
-        return DECLINED.get(status, "unknown")
+    ended = Status(status)
+    if ended < 0:
+        return _declined(ended.label, nodes)
     used = {BOUND_NAMES[order]: count for order, count in enumerate(counts) if count}
     reports: tuple[PanelReport, ...] = ()
     if mesh is not None:
         reports = tuple(PanelReport(p, q, (lo, hi), BOUND_NAMES[order]) for p, q, lo, hi, order in sorted(mesh))
-    return FastOutcome((low, high), _STOPS[status], nodes, panels, used, reports)
+    stop: StopReason = "tolerance_met" if ended is Status.MET else ended.label  # type: ignore[assignment]
+    return FastOutcome((low, high), stop, nodes, panels, used, reports)
+
+
+def _declined(reason: str, nodes: int = 0) -> str:
+    """Count and log why a request goes to the arbitrary-precision engine; the reason is returned."""
+    _DECLINES[reason] += 1
+    log.debug("compiled engine declined", extra={"reason": reason, "nodes": nodes})
+    return reason

@@ -5,9 +5,6 @@ from __future__ import annotations
 import math
 from decimal import ROUND_FLOOR, Decimal
 
-from ..arithmetic import shown  # noqa: F401 - re-exported by the package
-from ..results import bound_decimal, bound_text  # noqa: F401 - re-exported: the engine's public helpers
-
 
 def difference_up(x: float, y: float) -> float:
     """The smallest float64 >= x − y (TwoSum gives the exact rounding error of x − y)."""

@@ -13,11 +13,12 @@ from ..arithmetic import Arithmetic, FlintArithmetic, MpmathArithmetic, flint_co
 from ..derivatives import Program
 from ..errors import ArithmeticFault, InvalidInput, NotCertifiable
 from ..formula import Formula
+from ..results import StopReason
 from . import _composite, _fast
 from ._endpoints import enclose_limit, exact_limit
 from ._finish import error_bound
 from ._result import IntegralResult, PanelReport
-from ._simpson import FLOAT_FLOOR, Refiner
+from ._simpson import Refiner
 
 if TYPE_CHECKING:
     from ._request import Request
@@ -71,7 +72,7 @@ def run(
         if not math.isfinite(bound):
             raise NotCertifiable("the integral is beyond the float64 range", code="result_out_of_range")
         met = bound <= target(low, high)
-        stop = "resolution_limit" if segment.stop == FLOAT_FLOOR else segment.stop
+        stop = _reported(segment.stop, met)
         return IntegralResult(
             value=value,
             enclosure=(low, high),
@@ -79,7 +80,7 @@ def run(
             tolerance=tolerance,
             tolerance_met=met,
             applied_tolerance=target(low, high),
-            stop_reason="tolerance_met" if met else (stop if stop != "tolerance_met" else "resolution_limit"),
+            stop_reason=stop,
             nodes=segment.nodes,
             panels=segment.panels,
             integrand=formula.text,
@@ -164,15 +165,15 @@ def segment(
             settings.include_mesh,
         )
         if fast is not None:
-            outcome, low, high = fast
+            compiled, low, high = fast
             return Segment(
                 low,
                 high,
-                outcome.stop_reason,
-                outcome.nodes,
-                outcome.panels,
-                outcome.mesh if settings.include_mesh else (),
-                outcome.bounds_used,
+                compiled.stop_reason,
+                compiled.nodes,
+                compiled.panels,
+                compiled.mesh if settings.include_mesh else (),
+                compiled.bounds_used,
                 53,
             )
     prec = settings.precision_bits or min(max(choose_precision(tolerance), precision_floor), 4096)
@@ -203,6 +204,15 @@ def segment(
     enclosure, stop, nodes, panels, mesh, bounds_used = outcome
     low, high = ar.bounds(enclosure)
     return Segment(low, high, stop, nodes, panels, mesh, bounds_used, prec)
+
+
+def _reported(stop: str, met: bool) -> StopReason:
+    """The stop reason a caller sees: met, or what ended the refinement short of the tolerance."""
+    if met:
+        return "tolerance_met"
+    if stop in ("node_budget", "deadline"):
+        return stop  # type: ignore[return-value]
+    return "resolution_limit"  # float64's floor (FLOAT_FLOOR), or more bits would not help
 
 
 def _same(lower: Limit, upper: Limit) -> bool:

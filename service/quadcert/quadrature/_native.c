@@ -224,7 +224,16 @@ static inline void sum_add(running_sum *acc, double x) {
 
 static inline double sum_value(const running_sum *acc) { return acc->hi + acc->lo; }
 
-#define ROUNDING_SHARE 64.0   /* width below this many times the rounding: the floor is in sight */
+/* The refinement loop's factors. None of them affects rigor (the answer is the certified sum of the panels
+   whatever they are); they decide when to try the exact sum, and when float64 cannot reach the goal. */
+#define ROUNDING_SHARE 64.0        /* width below this many times the rounding: the floor is in sight */
+#define ESTIMATE_SLACK 1.01        /* try the exact sum once the running estimate is within 1% of the goal */
+#define RECHECK_SHRINK 0.95        /* after a failed exact sum, try again once the widths shrank by 5% */
+#define GOAL_MARGIN (1 - 1e-9)     /* the certified bound must beat the goal by this much (float slack) */
+#define ROUNDING_GOAL_SHARE 0.25   /* rounding above this share of the goal: float64 may not get there */
+#define STALL_SHRINK 0.9           /* doubling the panels must shrink the widths below this share */
+#define STALLS_TO_DECLINE 2        /* checkpoints in a row without that, near the floor, before declining */
+#define FIRST_CHECKPOINT 64        /* panels at the first stall checkpoint (then twice as many each time) */
 
 static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nodes, double deadline, iv *total_out) {
     iv fa, fb;
@@ -237,7 +246,7 @@ static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nod
     double next_check = INFINITY;
     double width_at_checkpoint = INFINITY;
     long long unresolved = 0, steps = 0;
-    Py_ssize_t checkpoint = 64;
+    Py_ssize_t checkpoint = FIRST_CHECKPOINT;
     int stalls = 0;
 #define ACCOUNT(i, s) do { panel *pp = &r->panels[i]; sum_add(&roundings, (s) * pp->rounding); \
         if (pp->resolved) { sum_add(&widths, (s) * pp->width); sum_add(&centres, (s) * pp->centre); } \
@@ -250,24 +259,25 @@ static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nod
             double rounding_sum = sum_value(&roundings);
             double half = width_sum / 2;
             double goal = target_of(tol, rel, centre_sum - half, centre_sum + half);
-            if (half <= goal * 1.01 && width_sum < next_check) {
+            if (half <= goal * ESTIMATE_SLACK && width_sum < next_check) {
                 iv total = sum_of_panels(r);
                 double bound = up(0.5 * iv_width(total));
-                if (bound <= target_of(tol, rel, total.lo, total.hi) * (1 - 1e-9)) { *total_out = total; return MET; }
-                next_check = width_sum * 0.95;
+                if (bound <= target_of(tol, rel, total.lo, total.hi) * GOAL_MARGIN) { *total_out = total; return MET; }
+                next_check = width_sum * RECHECK_SHRINK;
             }
             /* float64 cannot get there: its rounding alone takes a quarter of the goal, and it is already a
                visible share of the width (on a coarse mesh next to a singular end the first panels' sums
                are huge and so is their rounding, yet refining shrinks both) */
-            if (rounding_sum > 0.25 * goal && width_sum < ROUNDING_SHARE * rounding_sum) return DECLINE_RESOLUTION;
+            if (rounding_sum > ROUNDING_GOAL_SHARE * goal && width_sum < ROUNDING_SHARE * rounding_sum)
+                return DECLINE_RESOLUTION;
             if (r->heap_size >= checkpoint) {
                 /* doubling the panels must shrink the total: if twice in a row it barely moves while
                    rounding is already a visible share of it, the float64 floor has been reached before
                    the tolerance (far from the floor, wide panels of an oscillating integrand can keep
                    the total flat for a while, and that is no reason to give up) */
                 int near_floor = width_sum < ROUNDING_SHARE * rounding_sum;
-                stalls = (near_floor && width_sum > 0.9 * width_at_checkpoint) ? stalls + 1 : 0;
-                if (stalls >= 2) return DECLINE_STALLED;
+                stalls = (near_floor && width_sum > STALL_SHRINK * width_at_checkpoint) ? stalls + 1 : 0;
+                if (stalls >= STALLS_TO_DECLINE) return DECLINE_STALLED;
                 width_at_checkpoint = width_sum;
                 checkpoint *= 2;
             }
@@ -302,16 +312,20 @@ static const iv LN10 = {0x1.26bb1bbb55515p+1, 0x1.26bb1bbb55516p+1};            
 static const iv TWO_OVER_ROOT_PI = {0x1.20dd750429b6dp+0, 0x1.20dd750429b6ep+0};    /* 2/sqrt(pi) */
 
 /* indices in range and a stack that never underflows or overflows and ends with one value */
+#define MAX_POWER 1024   /* |n| of an integer power x^n */
+#define MAX_STACK 1024   /* stack slots a program may ask for */
+/* the stack effect of opcodes OP_X .. OP_MAX; every function (OP_SQRT .. OP_ABS) replaces its argument */
+static const signed char EFFECT[] = {1, 1, 0, -1, -1, -1, -1, 0, 0, -1, -1, -1};
+
 static int check_program(const machine *vm, Py_ssize_t nconst) {
-    static const signed char effect[] = {1, 1, 0, -1, -1, -1, -1, 0, 0, -1, -1, -1};
     int depth = 0;
     for (Py_ssize_t i = 0; i < vm->ops; i++) {
         int op = vm->code[2 * i], arg = vm->code[2 * i + 1], e;
-        if (op >= 0 && op <= OP_MAX) e = effect[op];
+        if (op >= 0 && op <= OP_MAX) e = EFFECT[op];
         else if (op >= OP_SQRT && op <= OP_ABS) e = 0;
         else { PyErr_SetString(PyExc_ValueError, "unknown opcode"); return -1; }
         if (op == OP_CONST && (arg < 0 || arg >= nconst)) { PyErr_SetString(PyExc_ValueError, "bad constant"); return -1; }
-        if (op == OP_POWI && (arg < -1024 || arg > 1024)) { PyErr_SetString(PyExc_ValueError, "bad power"); return -1; }
+        if (op == OP_POWI && (arg < -MAX_POWER || arg > MAX_POWER)) { PyErr_SetString(PyExc_ValueError, "bad power"); return -1; }
         int needs = e == 1 ? 0 : (e == 0 ? 1 : 2);
         if (depth < needs) { PyErr_SetString(PyExc_ValueError, "stack underflow"); return -1; }
         depth += e;
@@ -341,7 +355,7 @@ static int read_iv(PyObject *seq, Py_ssize_t i, iv *out) {
    validated.  Returns 0, or -1 with a Python exception set; release_machine frees it either way. */
 static int load_machine(machine *vm, const Py_buffer *code, PyObject *consts_obj, int stack_size) {
     memset(vm, 0, sizeof *vm);
-    if (code->len % 8 != 0 || stack_size < 1 || stack_size > 1024) {
+    if (code->len % 8 != 0 || stack_size < 1 || stack_size > MAX_STACK) {
         PyErr_SetString(PyExc_ValueError, "malformed program");
         return -1;
     }
@@ -372,6 +386,10 @@ static void release_machine(machine *vm) {
     vm->stack = NULL;
 }
 
+/* Simpson's Peano constants times k! (the series hold f^(k)/k!), as num/den: row 0 the signed fourth-order
+   one (-24/2880), rows 1..3 the absolute ones for k = 1..3 (5/36, 2/81 = 2!/81, 1/96 = 3!/576) */
+static const double PEANO[4][2] = {{-1.0, 120.0}, {5.0, 36.0}, {2.0, 81.0}, {1.0, 96.0}};
+
 static PyObject *native_integrate(PyObject *self, PyObject *args) {
     (void)self;
     Py_buffer code;
@@ -396,10 +414,8 @@ static PyObject *native_integrate(PyObject *self, PyObject *args) {
         r.vm = &vm;
         r.ln10 = LN10;
         r.two_over_root_pi = TWO_OVER_ROOT_PI;
-        r.c_signed = mk(div_dn(-1.0, 120.0), div_up(-1.0, 120.0));    /* -24/2880 */
-        r.c_abs[1] = mk(div_dn(5.0, 36.0), div_up(5.0, 36.0));
-        r.c_abs[2] = mk(div_dn(2.0, 81.0), div_up(2.0, 81.0));
-        r.c_abs[3] = mk(div_dn(1.0, 96.0), div_up(1.0, 96.0));
+        r.c_signed = mk(div_dn(PEANO[0][0], PEANO[0][1]), div_up(PEANO[0][0], PEANO[0][1]));
+        for (int k = 1; k <= 3; k++) r.c_abs[k] = mk(div_dn(PEANO[k][0], PEANO[k][1]), div_up(PEANO[k][0], PEANO[k][1]));
         Py_BEGIN_ALLOW_THREADS
         status = run(&r, mk(a_lo, a_hi), mk(b_lo, b_hi), tol, rel, max_nodes,
                      seconds > 0 ? started + seconds : 0.0, &total);
@@ -495,7 +511,7 @@ static PyObject *native_operate(PyObject *self, PyObject *args) {
     case 3: r = iv_div(&vm, a, b); break;
     case 4: r = iv_sqr(a); break;
     case 5:
-        if (n < 1 || n > 1024) { PyErr_SetString(PyExc_ValueError, "power out of range"); return NULL; }
+        if (n < 1 || n > MAX_POWER) { PyErr_SetString(PyExc_ValueError, "power out of range"); return NULL; }
         r = iv_pow_int(a, n);
         break;
     default: PyErr_SetString(PyExc_ValueError, "unknown operation"); return NULL;
@@ -504,7 +520,48 @@ static PyObject *native_operate(PyObject *self, PyObject *args) {
     return Py_BuildValue("(dd)", r.lo, r.hi);
 }
 
+/* Everything _fast.py must agree on, so that it can check at import instead of trusting two copies. */
+static PyObject *native_tables(PyObject *self, PyObject *unused) {
+    (void)self;
+    (void)unused;
+    static const char *const OPS[] = {"x", "const", "neg", "+", "-", "*", "/", "sqr", "powi", "^", "min", "max"};
+    static const char *const FUNCTIONS[] = {"sqrt", "exp", "log", "log10", "sin", "cos", "tan", "asin",
+                                             "acos", "atan", "sinh", "cosh", "tanh", "erf", "abs"};
+    PyObject *opcodes = PyDict_New(), *effects = PyDict_New(), *peano = PyList_New(4);
+    if (!opcodes || !effects || !peano) goto fail;
+    for (int op = 0; op <= OP_MAX; op++) {
+        PyObject *code = PyLong_FromLong(op), *effect = PyLong_FromLong(EFFECT[op]);
+        int bad = !code || !effect || PyDict_SetItemString(opcodes, OPS[op], code) || PyDict_SetItem(effects, code, effect);
+        Py_XDECREF(code);
+        Py_XDECREF(effect);
+        if (bad) goto fail;
+    }
+    for (int op = OP_SQRT; op <= OP_ABS; op++) {
+        PyObject *code = PyLong_FromLong(op);
+        int bad = !code || PyDict_SetItemString(opcodes, FUNCTIONS[op - OP_SQRT], code);
+        Py_XDECREF(code);
+        if (bad) goto fail;
+    }
+    for (int k = 0; k < 4; k++) {
+        PyObject *row = Py_BuildValue("(dd)", PEANO[k][0], PEANO[k][1]);
+        if (!row) goto fail;
+        PyList_SET_ITEM(peano, k, row);
+    }
+    return Py_BuildValue(
+        "{sNsNsNs{sisisisisisisisisisisi}sisisisi}", "opcodes", opcodes, "effects", effects, "peano", peano,
+        "status", "met", MET, "node_budget", NODE_BUDGET, "deadline", DEADLINE, "value", DECLINE_VALUE, "depth",
+        DECLINE_DEPTH, "resolution", DECLINE_RESOLUTION, "unresolved", DECLINE_UNRESOLVED, "memory", DECLINE_MEMORY,
+        "rounding_mode", DECLINE_ROUNDING_MODE, "float_range", DECLINE_RANGE, "stalled", DECLINE_STALLED,
+        "order", ORDER, "max_depth", MAX_DEPTH, "max_power", MAX_POWER, "max_stack", MAX_STACK);
+fail:
+    Py_XDECREF(opcodes);
+    Py_XDECREF(effects);
+    Py_XDECREF(peano);
+    return NULL;
+}
+
 static PyMethodDef methods[] = {
+    {"tables", native_tables, METH_NOARGS, "The opcodes, statuses and constants the engine was built with."},
     {"integrate", native_integrate, METH_VARARGS, "Certified adaptive Simpson of a compiled program."},
     {"taylor", native_taylor, METH_VARARGS, "Taylor coefficient enclosures of a compiled program."},
     {"enclose", native_enclose, METH_VARARGS, "Guarded enclosure of one elementary function."},

@@ -21,12 +21,14 @@ from ..arithmetic import Arithmetic, MpmathArithmetic
 from ..formula import Formula, parse
 from . import _inputs
 from ._check import decide
-from ._endpoints import LimitValue, parse_limit
+from ._endpoints import LimitValue, enclose_limit, infinite_side, parse_limit
 from ._integrate import run
 from ._planner import plan_for
 from ._result import CheckResult, IntegralResult, Plan
 
 ArithmeticFactory = Callable[[int], Arithmetic[Any]]
+#: enough to tell whether a limit evaluates and lies within ±1e300 (the engine encloses it again, tighter)
+_CHECK_LIMITS = MpmathArithmetic(64)
 
 
 @dataclass(frozen=True)
@@ -69,6 +71,9 @@ class Request:
         formula = integrand if isinstance(integrand, Formula) else parse(integrand, variable=variable, parameters=names)
         lower = parse_limit(lower_limit, "lower_limit", names)
         upper = parse_limit(upper_limit, "upper_limit", names)
+        for limit, field_name in ((lower, "lower_limit"), (upper, "upper_limit")):
+            if not infinite_side(limit):  # a finite limit must evaluate, within ±1e300: refused here, not later
+                enclose_limit(limit, _CHECK_LIMITS, values, field_name)
         return cls(formula, lower, upper, checked_tolerance, relative, budget, values)
 
     def canonical(self) -> dict[str, Any]:

@@ -219,10 +219,10 @@ class Refiner:
         """The same panel on the reference backend (exact endpoints), converted back exactly."""
         assert self.fallback is not None
         ar, ref = self.ar, self.fallback.ar
-        moved = _Panel(
-            *(ref.from_bounds(*ar.bounds_exact(v)) for v in (panel.p, panel.m, panel.q, panel.fp, panel.fm, panel.fq)),
-            panel.depth,
+        p, m, q, fp, fm, fq = (
+            ref.from_bounds(*ar.bounds_exact(v)) for v in (panel.p, panel.m, panel.q, panel.fp, panel.fm, panel.fq)
         )
+        moved = _Panel(p, m, q, fp, fm, fq, panel.depth)
         enclosure, order = _enclose(self.fallback, ref, moved)
         return ar.from_bounds(*ref.bounds_exact(enclosure)), order
 

@@ -27,7 +27,8 @@ PROBLEM_RESPONSES: dict[int | str, dict[str, Any]] = {
 
 
 def computation(request: Request) -> Computation:
-    return request.app.state.computation
+    engine: Computation = request.app.state.computation
+    return engine
 
 
 def context(request: Request) -> dict[str, Any]:

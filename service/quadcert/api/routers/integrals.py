@@ -6,7 +6,7 @@ import asyncio
 import hashlib
 import re
 from decimal import Decimal
-from typing import Annotated, Literal
+from typing import Annotated, Any, Literal
 
 from fastapi import APIRouter, Query, Request
 from fastapi.responses import JSONResponse, Response
@@ -26,7 +26,7 @@ _DECIMAL = re.compile(r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,9})?")
 router = APIRouter(tags=["integrals"], route_class=ExactRoute)
 
 #: GET failures come in the requested format: one line of text (text, csv), XML, or problem JSON (json)
-PLAIN_PROBLEM_RESPONSES = {
+PLAIN_PROBLEM_RESPONSES: dict[int | str, dict[str, Any]] = {
     status: {
         "description": f"{meaning}; a one-line reason in the requested format",
         "content": {
@@ -80,7 +80,7 @@ async def create_batch(body: BatchRequest, request: Request) -> JSONResponse:
     loop = asyncio.get_running_loop()
     until = loop.time() + settings.batch_deadline_seconds
 
-    async def one(index: int, item: IntegralRequest) -> dict:
+    async def one(index: int, item: IntegralRequest) -> dict[str, Any]:
         item_context = {**base, "instance": f"{base['instance']}#/items/{index}"}
         left = max(until - loop.time(), 1e-3)
         (_, answer), _ = await engine.integral(
@@ -137,7 +137,7 @@ async def read_integral(
     ] = None,
     max_nodes: Annotated[int | None, Query(ge=3, description="evaluation budget; the server default if absent")] = None,
 ) -> Response:
-    body = {
+    body: dict[str, Any] = {
         "integrand": integrand,
         "lower_limit": lower_limit,
         "upper_limit": upper_limit,
@@ -207,7 +207,7 @@ def _parameters(pairs: list[str]) -> dict[str, str]:
     return values
 
 
-def _with_hint(problem: dict, request: Request) -> dict:
+def _with_hint(problem: dict[str, Any], request: Request) -> dict[str, Any]:
     """The problem with a sentence on how the URL was probably mistyped, when its raw text shows it."""
     extra = hint(request.scope.get("query_string", b""), problem.get("field"))
     return {**problem, "detail": problem["detail"] + extra} if extra else problem
@@ -226,7 +226,7 @@ def _refuse_repeated_keys(request: Request) -> None:
         seen.add(key)
 
 
-def _etag(canonical: dict, fmt: str, field: str | None) -> str:
+def _etag(canonical: dict[str, Any], fmt: str, field: str | None) -> str:
     """Strong for text, csv and xml (the same bytes every time); weak for json, whose body also says whether
     it came from the cache and how long the engine took."""
     digest = hashlib.sha256(f"{cache_key('integral-get', canonical)}|{fmt}|{field}".encode()).hexdigest()
@@ -241,7 +241,7 @@ def _matches(if_none_match: str | None, tag: str) -> bool:
     return "*" in offered or tag.removeprefix("W/") in [t.removeprefix("W/") for t in offered]
 
 
-def _plain_problem(body: dict, fmt: str, request: Request) -> Response:
+def _plain_problem(body: dict[str, Any], fmt: str, request: Request) -> Response:
     retry_after = request.app.state.settings.retry_after_seconds
     if fmt == "json":
         return problem_response(body, retry_after)
