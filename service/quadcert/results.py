@@ -7,9 +7,10 @@ without loading the engine.
 from __future__ import annotations
 
 import math
-from dataclasses import asdict, dataclass, field
+from collections.abc import Callable, Mapping
+from dataclasses import MISSING, asdict, dataclass, field, fields
 from decimal import ROUND_CEILING, ROUND_FLOOR, Context, Decimal
-from typing import Any, Literal
+from typing import Any, Literal, TypeVar
 
 from ._version import ENGINE_VERSION
 
@@ -217,3 +218,53 @@ def plan_body(result: Plan) -> dict[str, Any]:
             if rule[key] is not None:
                 rule[key] = bound_decimal(rule[key], up=True)
     return content
+
+
+# -- and back: a JSON body as the result types (the client) -----------------------------------------------
+
+_Result = TypeVar("_Result")
+
+
+def _read(cls: type[_Result], body: Mapping[str, Any], convert: Mapping[str, Callable[[Any], Any]]) -> _Result:
+    """``cls`` from the body's fields, by the dataclass's own field list (so a new field needs no reader);
+    a required field that is missing raises KeyError."""
+    values: dict[str, Any] = {}
+    for item in fields(cls):  # type: ignore[arg-type]
+        if item.name in body and body[item.name] is not None:
+            values[item.name] = convert.get(item.name, _same)(body[item.name])
+        elif item.default is MISSING and item.default_factory is MISSING:
+            values[item.name] = body[item.name]
+    return cls(**values)
+
+
+def _same(value: Any) -> Any:
+    return value
+
+
+def _panel_from(body: Mapping[str, Any]) -> PanelReport:
+    # float() reads a tail's "inf"/"-inf" back
+    return PanelReport(float(body["lower"]), float(body["upper"]), tuple(body["contribution"]), body["bound"])
+
+
+def integral_from(body: Mapping[str, Any]) -> IntegralResult:
+    """An :class:`IntegralResult` from the JSON body :func:`integral_body` writes."""
+    return _read(
+        IntegralResult,
+        body,
+        {"enclosure": tuple, "bounds_used": dict, "mesh": lambda mesh: tuple(_panel_from(p) for p in mesh) or None},
+    )
+
+
+def check_from(body: Mapping[str, Any]) -> CheckResult:
+    """A :class:`CheckResult` from the JSON body :func:`check_body` writes."""
+    return _read(CheckResult, body, {"distance": tuple, "integral": integral_from})
+
+
+def plan_from(body: Mapping[str, Any]) -> Plan:
+    """A :class:`Plan` from the JSON body :func:`plan_body` writes."""
+    rule = {"simpson": _rule_from, "trapezoid": _rule_from}
+    return _read(Plan, body, rule)
+
+
+def _rule_from(body: Mapping[str, Any]) -> RulePlan:
+    return _read(RulePlan, body, {})

@@ -13,6 +13,7 @@ it is safe).
 """
 
 from ..errors import ProblemError
-from ._client import AsyncClient, Client, check_from, integral_from, plan_from
+from ..results import check_from, integral_from, plan_from
+from ._client import AsyncClient, Client
 
 __all__ = ["AsyncClient", "Client", "ProblemError", "check_from", "integral_from", "plan_from"]

@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import math
-from collections.abc import Mapping
 from decimal import Decimal, InvalidOperation
 from typing import Any, Self
 
@@ -12,71 +11,9 @@ import simplejson
 from tenacity import AsyncRetrying, Retrying, retry_if_exception, stop_after_attempt
 
 from ..errors import ProblemError
-from ..results import CheckResult, IntegralResult, PanelReport, Plan, RulePlan
+from ..results import CheckResult, IntegralResult, Plan, check_from, integral_from, plan_from
 
 DEFAULT_URL = "http://127.0.0.1:8000"
-
-
-def integral_from(body: Mapping[str, Any]) -> IntegralResult:
-    mesh = body.get("mesh")
-    return IntegralResult(
-        value=body["value"],
-        enclosure=tuple(body["enclosure"]),
-        error_bound=body["error_bound"],
-        tolerance=body["tolerance"],
-        tolerance_met=body["tolerance_met"],
-        stop_reason=body["stop_reason"],
-        nodes=body["nodes"],
-        panels=body["panels"],
-        integrand=body["integrand"],
-        lower_limit=body["lower_limit"],
-        upper_limit=body["upper_limit"],
-        precision_bits=body["precision_bits"],
-        compute_seconds=body["compute_seconds"],
-        bounds_used=dict(body.get("bounds_used") or {}),
-        applied_tolerance=body.get("applied_tolerance"),
-        mesh=tuple(
-            PanelReport(float(p["lower"]), float(p["upper"]), tuple(p["contribution"]), p["bound"]) for p in mesh
-        )  # float() reads a tail's "inf"/"-inf" back
-        if mesh
-        else None,
-    )
-
-
-def check_from(body: Mapping[str, Any]) -> CheckResult:
-    return CheckResult(
-        body["verdict"],
-        body["claimed_value"],
-        body["tolerance"],
-        tuple(body["distance"]),
-        integral_from(body["integral"]),
-    )
-
-
-def plan_from(body: Mapping[str, Any]) -> Plan:
-    def rule(r: Mapping[str, Any]) -> RulePlan:
-        return RulePlan(
-            r["rule"],
-            r["intervals"],
-            r["nodes"],
-            r["spacing"],
-            r["derivative_order"],
-            r["derivative_bound"],
-            r["error_bound"],
-            r["available"],
-            r.get("reason"),
-        )
-
-    return Plan(
-        body["integrand"],
-        body["lower_limit"],
-        body["upper_limit"],
-        body["tolerance"],
-        rule(body["simpson"]),
-        rule(body["trapezoid"]),
-        body["subintervals_for_bounds"],
-        body["compute_seconds"],
-    )
 
 
 _JSON = {"content-type": "application/json"}
