@@ -178,14 +178,14 @@ def integral_body(result: IntegralResult | dict[str, Any], request: dict[str, An
 
 def _panel(panel: dict[str, Any]) -> dict[str, Any]:
     return {
-        "lower": _outward(panel["lower"], up=False),
-        "upper": _outward(panel["upper"], up=True),
-        "contribution": [_outward(panel["contribution"][0], up=False), _outward(panel["contribution"][1], up=True)],
+        "lower": outward(panel["lower"], up=False),
+        "upper": outward(panel["upper"], up=True),
+        "contribution": [outward(panel["contribution"][0], up=False), outward(panel["contribution"][1], up=True)],
         "bound": panel["bound"],
     }
 
 
-def _outward(value: Any, up: bool) -> Any:
+def outward(value: Any, up: bool) -> Any:
     """A float bound as an outward decimal; an infinite end (a tail's) as the text "inf" or "-inf"."""
     if isinstance(value, float) and math.isinf(value):
         return "inf" if value > 0 else "-inf"
@@ -201,7 +201,7 @@ def check_body(result: CheckResult | dict[str, Any], request: dict[str, Any]) ->
         "verdict": data["verdict"],
         "claimed_value": request.get("claimed_value", data["claimed_value"]),
         "tolerance": request.get("tolerance", data["tolerance"]),
-        "distance": [_outward(near, up=False), _outward(far, up=True)],
+        "distance": [outward(near, up=False), outward(far, up=True)],
         "enclosure": integral["enclosure"],
         "integral": integral,
         "engine_version": ENGINE_VERSION,

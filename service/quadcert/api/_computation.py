@@ -84,7 +84,7 @@ class Computation:
         return Prepared(request, canonical)
 
     def _job(self, kind: str, body: dict[str, Any], request: Request, deadline: float) -> Job:
-        include_mesh = bool(body.get("include_mesh"))
+        include_mesh = bool(body.get("include_mesh")) or kind.startswith("picture")
         return Job(
             request,
             echo=body,
@@ -92,6 +92,7 @@ class Computation:
             max_mesh_panels=self.settings.max_mesh_panels if include_mesh else None,
             claimed_value=body.get("claimed_value"),
             deadline_seconds=None if kind == "plan" else deadline * 0.8,
+            picture=kind.partition("-")[2] or "json",
         )
 
     async def _run(
@@ -122,7 +123,7 @@ class Computation:
         started = time.perf_counter()
         try:
             answer = await self.pool.run(
-                TASKS[kind],
+                TASKS[kind.partition("-")[0]],
                 self._job(kind, body, prepared.request, compute or deadline),
                 deadline + 1.0,
                 wait,
@@ -166,6 +167,18 @@ class Computation:
         if key is not None and result["stop_reason"] != "deadline":
             self.cache.put(key, response)
         return (200, {**response, "cached": False}), key
+
+    async def picture(
+        self, body: dict[str, Any], context: dict[str, Any], kind: str = "json", prepared: Prepared | None = None
+    ) -> Answer:
+        """An integral and its picture: "json" (the boxes, for the page) or "svg" (a document for reports)."""
+        deadline = self.settings.request_deadline_seconds
+        (status, result), key = await self._run(f"picture-{kind}", body, deadline, 0.0, context, prepared=prepared)
+        if status != 200 or result.get("cached"):
+            return status, result
+        if key is not None and result["integral"]["stop_reason"] != "deadline":
+            self.cache.put(key, result)
+        return 200, result
 
     async def check(self, body: dict[str, Any], context: dict[str, Any]) -> Answer:
         (status, result), key = await self._run("check", body, self.settings.request_deadline_seconds, 0.0, context)

@@ -13,6 +13,7 @@ MEDIA_TYPES = {
     "csv": "text/csv; charset=utf-8",
     "xml": "application/xml; charset=utf-8",
     "json": "application/json",
+    "svg": "image/svg+xml",
 }
 
 

@@ -10,9 +10,11 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Any
 
+from .._version import ENGINE_VERSION
 from ..errors import InvalidInput
-from ..quadrature import Request
-from ..results import check_body, integral_body, plan_body
+from ..picture import Box, boxes, render_svg, summary
+from ..quadrature import Request, certified_digits
+from ..results import check_body, integral_body, outward, plan_body
 from ._pool import Task
 
 
@@ -29,6 +31,8 @@ class Job:
     claimed_value: Any = None
     #: the engine's own deadline for this job; the pool may shorten it to what is left
     deadline_seconds: float | None = None
+    #: for a picture: "svg" (a document for reports) or "json" (the boxes, for the page)
+    picture: str = "json"
     options: dict[str, Any] = field(default_factory=dict)
 
     def seconds(self, left: float | None) -> float | None:
@@ -60,4 +64,40 @@ def run_plan(job: Job, left: float | None) -> dict[str, Any]:
     return plan_body(job.request.plan())
 
 
-TASKS: dict[str, Task] = {"integral": run_integral, "check": run_check, "plan": run_plan}
+def run_picture(job: Job, left: float | None) -> dict[str, Any]:
+    """The integral with its mesh, and the picture of it: the boxes as JSON, or the SVG document."""
+    result = job.request.integrate(deadline_seconds=job.seconds(left), include_mesh=True, **job.options)
+    mesh = result.mesh or ()
+    if job.max_mesh_panels is not None and len(mesh) > job.max_mesh_panels:
+        raise InvalidInput(
+            f"the picture would have {len(mesh)} panels, more than the {job.max_mesh_panels} an answer may carry; "
+            "loosen the tolerance",
+            code="mesh_too_large",
+            field="tolerance",
+        )
+    drawn = boxes(job.request.formula, job.request.values, mesh)
+    variable = job.request.formula.variable
+    if job.picture == "svg":
+        return {"svg": render_svg(result, drawn, variable, ENGINE_VERSION), "integral": integral_body(result, job.echo)}
+    return {
+        "integral": {**integral_body(result, job.echo), "mesh": None},
+        "digits": certified_digits(*result.enclosure),
+        "boxes": [_box(b) for b in drawn],
+        "summary": summary(result, drawn),
+    }
+
+
+def _box(box: Box) -> list[Any]:
+    """[lower, upper, f low, f high, error share, bound]: bounds outward, a tail's end as "inf"/"-inf"."""
+    f_low, f_high = (None, None) if box.f_range is None else box.f_range
+    return [
+        outward(box.lower, up=False),
+        outward(box.upper, up=True),
+        None if f_low is None else outward(f_low, up=False),
+        None if f_high is None else outward(f_high, up=True),
+        outward(box.error, up=True),
+        box.bound,
+    ]
+
+
+TASKS: dict[str, Task] = {"integral": run_integral, "check": run_check, "plan": run_plan, "picture": run_picture}

@@ -178,3 +178,19 @@ class PlanResponse(BaseModel):
     subintervals_for_bounds: int
     compute_seconds: float
     engine_version: str
+
+
+class PictureResponse(BaseModel):
+    integral: IntegralResponse = Field(description="The certified integral (its mesh is in boxes)")
+    digits: str | None = Field(description="The digits every number in the enclosure shares; null if none is certain")
+    boxes: list[list[float | str | None]] = Field(
+        description="One per panel: [lower, upper, f low, f high, error share, bound]. f is enclosed over the "
+        "panel; null where it cannot be bounded (an envelope piece); bounds are printed outward"
+    )
+    summary: str = Field(description="The picture in words, for screen readers")
+
+
+class FormulaCheck(BaseModel):
+    integrand: str = Field(description="The formula as the engine reads it")
+    variable: str
+    engine_version: str

@@ -25,7 +25,7 @@ from ._pool import WorkerPool
 from ._problems import problem_body, problem_response
 from ._schemas import Problem
 from ._settings import Settings
-from .routers import checks, health, integrals, operations, plans, reference
+from .routers import checks, health, integrals, operations, page, pictures, plans, reference
 
 log = logging.getLogger("quadcert.app")
 
@@ -61,7 +61,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.state.metrics = metrics
     app.state.draining = False
     app.state.computation = Computation(settings, pool, cache, metrics)
-    for module in (health, integrals, checks, plans, operations, reference):
+    for module in (health, integrals, checks, plans, pictures, operations, reference, page):
         app.include_router(module.router)
     _install_error_handlers(app)
     app.add_middleware(BodyLimit, limit=settings.max_body_bytes)

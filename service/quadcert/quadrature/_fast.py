@@ -274,6 +274,17 @@ def run(
     return FastOutcome((low, high), stop, nodes, panels, used, reports)
 
 
+def value_range(compiled: Compiled, a: float, b: float) -> tuple[float, float] | None:
+    """An enclosure of f over [a, b] (floats), or None where the program cannot bound it."""
+    if _native is None:
+        return None
+    coefficients = _native.taylor(compiled.code, compiled.constants, compiled.stack, a, b, 0)
+    if not coefficients:
+        return None
+    low, high = coefficients[0]
+    return (low, high) if math.isfinite(low) and math.isfinite(high) else None
+
+
 def _declined(reason: str, nodes: int = 0) -> str:
     """Count and log why a request goes to the arbitrary-precision engine; the reason is returned."""
     _DECLINES[reason] += 1

@@ -107,6 +107,7 @@ async def create_batch(body: BatchRequest, request: Request) -> JSONResponse:
                 "text/plain": {"schema": {"type": "string"}},
                 "text/csv": {"schema": {"type": "string"}},
                 "application/xml": {"schema": {"type": "string"}},
+                "image/svg+xml": {"schema": {"type": "string"}},
             }
         },
         304: {"description": "Not modified (ETag matched)"},
@@ -130,7 +131,10 @@ async def read_integral(
         str | None, Query(max_length=80, description="also accept an error bound <= this times |integral| (below 1)")
     ] = None,
     parameter: Annotated[list[str] | None, Query(description="name:value, one parameter= per parameter")] = None,
-    format: Annotated[Literal["text", "csv", "xml", "json"], Query(description="the answer's shape")] = "text",
+    format: Annotated[
+        Literal["text", "csv", "xml", "json", "svg"],
+        Query(description="the answer's shape; svg: the picture of how the certificate was earned, for reports"),
+    ] = "text",
     field: Annotated[
         Literal["value", "error_bound", "low", "high", "nodes"] | None,
         Query(description="the one number to answer (text, csv, xml); default value"),
@@ -158,6 +162,11 @@ async def read_integral(
     headers = {"ETag": tag, "Cache-Control": "public, max-age=86400"}
     if _matches(request.headers.get("if-none-match"), tag):
         return Response(status_code=304, headers=headers)
+    if format == "svg":
+        status, picture = await engine.picture(body, context(request), "svg", prepared)
+        if status != 200:
+            return _plain_problem(_with_hint(picture, request), format, request)
+        return Response(picture["svg"], media_type=MEDIA_TYPES["svg"], headers=headers)
     (status, answer), _ = await engine.integral(body, context(request), prepared=prepared)
     if status != 200:
         return _plain_problem(_with_hint(answer, request), format, request)

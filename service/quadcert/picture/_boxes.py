@@ -1,0 +1,72 @@
+"""The picture's data: for every panel of a certified mesh, an enclosure of f over the panel (a box).
+
+The boxes are certified like everything else: each is f enclosed over the panel's outward-rounded ends, by
+the compiled float64 engine where the formula compiles, else by the reference backend at 53 bits. A panel
+where f cannot be bounded (a piece next to a singular point, a tail) has no box; the picture marks it.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable, Mapping, Sequence
+from dataclasses import dataclass
+from fractions import Fraction
+from functools import partial
+
+from ..arithmetic import MpmathArithmetic
+from ..derivatives import Program
+from ..errors import QuadcertError
+from ..formula import Formula
+from ..quadrature import PanelReport, _fast
+
+#: bounds that mark a panel in the picture: lower-order Peano bounds and range bounds, and the envelope pieces
+LOW_ORDER = frozenset({"simpson-f3", "simpson-f2", "simpson-f1", "range"})
+ENVELOPES = frozenset({"singular-envelope", "tail-envelope"})
+
+Range = tuple[float, float] | None
+
+
+@dataclass(frozen=True)
+class Box:
+    """One panel as drawn: its ends, f's enclosure over it (None: not bounded), and its share of the error."""
+
+    lower: float
+    upper: float
+    f_range: Range
+    error: float  # half the width of the panel's contribution: its share of the error bound
+    bound: str
+
+
+def boxes(formula: Formula, values: Mapping[str, Fraction], mesh: Sequence[PanelReport]) -> list[Box]:
+    """A box per panel, in the mesh's order."""
+    enclose = _enclosure(formula, values)
+    result = []
+    for panel in mesh:
+        f_range = None
+        if panel.bound not in ENVELOPES and math.isfinite(panel.lower) and math.isfinite(panel.upper):
+            f_range = enclose(panel.lower, panel.upper)
+        low, high = panel.contribution
+        error = (high - low) / 2 if math.isfinite(high - low) else math.inf
+        result.append(Box(panel.lower, panel.upper, f_range, error, panel.bound))
+    return result
+
+
+def _enclosure(formula: Formula, values: Mapping[str, Fraction]) -> Callable[[float, float], Range]:
+    """f over [a, b] as two floats, or None; the compiled engine when the formula compiles."""
+    compiled = _fast.compile_formula(formula, values) if _fast.AVAILABLE and _fast.trusted() else None
+    if compiled is not None:
+        return partial(_fast.value_range, compiled)
+    ar = MpmathArithmetic(53)
+    try:
+        program = Program(formula, ar, values)
+    except QuadcertError:
+        return lambda a, b: None
+
+    def reference(a: float, b: float) -> Range:
+        try:
+            low, high = ar.bounds(program.value(ar.from_bounds(Fraction(a), Fraction(b))))
+        except QuadcertError:
+            return None
+        return (low, high) if math.isfinite(low) and math.isfinite(high) else None
+
+    return reference
