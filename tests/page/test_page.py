@@ -127,7 +127,7 @@ def test_the_page_stays_usable_with_100000_panels(served, browser) -> None:  # t
 
 @pytest.mark.parametrize("url_format", ["svg"])
 def test_the_svg_picture_has_a_box_per_panel(served, url_format: str) -> None:  # type: ignore[no-untyped-def]
-    import xml.etree.ElementTree as ElementTree
+    from xml.etree import ElementTree
 
     query = f"integrand={quote('exp(-x^2)')}&lower_limit=0&upper_limit=1&tolerance=1e-10"
     svg = httpx.get(f"{served.url}/v1/integral?{query}&format={url_format}", timeout=60)

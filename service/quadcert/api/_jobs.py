@@ -12,7 +12,7 @@ from typing import Any
 
 from .._version import ENGINE_VERSION
 from ..errors import InvalidInput
-from ..picture import Box, boxes, render_svg, summary
+from ..picture import Box, boxes, render_svg, summary, y_range
 from ..quadrature import Request, certified_digits
 from ..results import check_body, integral_body, outward, plan_body
 from ._pool import Task
@@ -83,6 +83,7 @@ def run_picture(job: Job, left: float | None) -> dict[str, Any]:
         "integral": {**integral_body(result, job.echo), "mesh": None},
         "digits": certified_digits(*result.enclosure),
         "boxes": [_box(b) for b in drawn],
+        "y_range": list(y_range(drawn)),
         "summary": summary(result, drawn),
     }
 

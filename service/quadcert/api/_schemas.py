@@ -187,6 +187,9 @@ class PictureResponse(BaseModel):
         description="One per panel: [lower, upper, f low, f high, error share, bound]. f is enclosed over the "
         "panel; null where it cannot be bounded (an envelope piece); bounds are printed outward"
     )
+    y_range: Pair = Field(
+        description="The y axis the picture uses; the tallest boxes over at most 2% of the interval may reach beyond it"
+    )
     summary: str = Field(description="The picture in words, for screen readers")
 
 

@@ -10,15 +10,28 @@ import sys
 import threading
 import time
 from collections.abc import Iterator, Sequence
+from dataclasses import replace
 from decimal import Decimal
+from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 import simplejson
 
 from .. import __version__
 from ..errors import InvalidInput, ProblemError, QuadcertError
-from ..quadrature import CheckResult, IntegralResult, Plan, bound_text, certified_digits, check, integrate, plan, shown
-from ..results import check_body, integral_body, plan_body
+from ..quadrature import (
+    CheckResult,
+    IntegralResult,
+    Plan,
+    Request,
+    bound_text,
+    certified_digits,
+    check,
+    integrate,
+    plan,
+    shown,
+)
+from ..results import check_body, integral_body, integral_from, plan_body
 from . import _junit, _table
 
 if TYPE_CHECKING:
@@ -110,7 +123,9 @@ def _integrate(args: argparse.Namespace) -> int:
     options = _engine_options(args)
     if args.mesh:
         options["include_mesh"] = True
-    if args.url:
+    if args.plot:
+        result = _plot(args, options)
+    elif args.url:
         with _client(args.url, args) as client:
             result = client.integrate(args.formula, args.lower, args.upper, args.tol, **options)
     else:
@@ -121,6 +136,33 @@ def _integrate(args: argparse.Namespace) -> int:
     else:
         print(_describe(result))
     return EXIT_OK if result.tolerance_met else EXIT_UNDECIDED
+
+
+def _plot(args: argparse.Namespace, options: dict[str, Any]) -> IntegralResult:
+    """Certify with the mesh, draw the picture to ``--plot`` (SVG), and return the result (mesh kept for --mesh)."""
+    from .._version import ENGINE_VERSION
+    from ..picture import Box, boxes, render_svg
+
+    if args.url:
+        with _client(args.url, args) as client:
+            answer = client.picture(args.formula, args.lower, args.upper, args.tol, **options)
+        result = integral_from(answer["integral"])
+        drawn = [
+            Box(float(b[0]), float(b[1]), None if b[2] is None else (float(b[2]), float(b[3])), float(b[4]), str(b[5]))
+            for b in answer["boxes"]
+        ]
+    else:
+        deadline = options.pop("deadline_seconds", None)
+        options.pop("include_mesh", None)
+        request = Request.build(args.formula, args.lower, args.upper, args.tol, **options)
+        with _working("certifying"):
+            result = request.integrate(deadline_seconds=deadline, include_mesh=True)
+        drawn = boxes(request.formula, request.values, result.mesh or ())
+    path = Path(args.plot)
+    path.parent.mkdir(parents=True, exist_ok=True)
+    path.write_text(render_svg(result, drawn, args.var, ENGINE_VERSION), encoding="utf-8")
+    print(f"picture: {path} ({len(drawn)} panels)", file=sys.stderr)
+    return result if args.mesh else replace(result, mesh=None)
 
 
 def _describe(result: IntegralResult) -> str:
@@ -419,6 +461,9 @@ def build_parser() -> argparse.ArgumentParser:
         help="evaluation budget (default 200001); past it the enclosure is returned, not certified",
     )
     one.add_argument("--mesh", action="store_true", help="also print every panel")
+    one.add_argument(
+        "--plot", metavar="FILE.svg", help="also draw how the certificate was earned, as an SVG picture for reports"
+    )
     one.add_argument("--json", action="store_true", help="print the result as JSON")
     one.set_defaults(run=_integrate)
 

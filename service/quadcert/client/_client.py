@@ -178,6 +178,12 @@ class Client:
     def batch(self, items: list[dict[str, Any]]) -> list[IntegralResult | ProblemError]:
         return _batch(self._post("/v1/integrals/batch", {"items": [_exact_numbers(i) for i in items]}))
 
+    def picture(
+        self, integrand: str, lower_limit: Any, upper_limit: Any, tolerance: float = 1e-8, **options: Any
+    ) -> dict[str, Any]:
+        """The certified integral and its picture's data, as ``POST /v1/pictures`` answers them."""
+        return self._post("/v1/pictures", _request(integrand, lower_limit, upper_limit, tolerance, options))
+
     def check(
         self,
         integrand: str,

@@ -51,6 +51,34 @@ def boxes(formula: Formula, values: Mapping[str, Fraction], mesh: Sequence[Panel
     return result
 
 
+#: the share of the interval whose tallest boxes may reach beyond the picture's y axis (and are clipped there)
+CLIPPED_SHARE = 0.02
+
+
+def y_range(drawn: Sequence[Box]) -> tuple[float, float]:
+    """The y axis: every box, except the tallest ones that together span at most 2% of the interval (next to a
+    singular point f grows without bound; one axis for all of it would flatten the rest to a line)."""
+    finite = [b for b in drawn if b.f_range is not None and math.isfinite(b.upper - b.lower)]
+    if not finite:
+        return -1.0, 1.0
+    span = sum(b.upper - b.lower for b in finite)
+    allowance = CLIPPED_SHARE * span
+
+    def edge(values: list[tuple[float, float]]) -> float:
+        used = 0.0
+        for value, width in values:
+            used += width
+            if used > allowance:
+                return value
+        return values[-1][0]
+
+    high = edge(sorted(((b.f_range[1], b.upper - b.lower) for b in finite if b.f_range), reverse=True))
+    low = -edge(sorted(((-b.f_range[0], b.upper - b.lower) for b in finite if b.f_range), reverse=True))
+    if not high > low:
+        low, high = low - 1, high + 1
+    return low, high
+
+
 def _enclosure(formula: Formula, values: Mapping[str, Fraction]) -> Callable[[float, float], Range]:
     """f over [a, b] as two floats, or None; the compiled engine when the formula compiles."""
     compiled = _fast.compile_formula(formula, values) if _fast.AVAILABLE and _fast.trusted() else None

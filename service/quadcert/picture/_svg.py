@@ -14,7 +14,7 @@ from xml.sax.saxutils import escape
 
 from ..arithmetic import shown
 from ..results import IntegralResult, bound_text
-from ._boxes import ENVELOPES, LOW_ORDER, Box
+from ._boxes import ENVELOPES, LOW_ORDER, Box, y_range
 
 WIDTH, HEIGHT = 960, 600
 LEFT, RIGHT = 80, 24
@@ -43,11 +43,7 @@ svg { font: 13px system-ui, sans-serif; }
 def render(result: IntegralResult, boxes: Sequence[Box], variable: str, engine: str) -> str:
     """The SVG text of one certified integral's picture."""
     xs = _XScale(boxes)
-    finite = [b.f_range for b in boxes if b.f_range is not None]
-    y_low = min((r[0] for r in finite), default=-1.0)
-    y_high = max((r[1] for r in finite), default=1.0)
-    if not y_high > y_low:
-        y_low, y_high = y_low - 1, y_high + 1
+    y_low, y_high = y_range(boxes)
     ys = _Linear(y_low, y_high, BAND_BOTTOM, BAND_TOP)
     errors = [b.error for b in boxes if b.error > 0 and math.isfinite(b.error)]
     e_low = math.floor(math.log10(min(errors))) if errors else -16
@@ -75,7 +71,11 @@ def render(result: IntegralResult, boxes: Sequence[Box], variable: str, engine: 
         f'<text class="muted" x="{LEFT}" y="50">{escape(_certificate(result))}</text>',
     ]
     parts += _axes(xs, ys, es, y_low, y_high, e_low, e_high, variable)
-    parts.append('<g class="boxes">')
+    parts.append(
+        f'<clipPath id="band"><rect x="{LEFT}" y="{BAND_TOP}" width="{WIDTH - LEFT - RIGHT}" '
+        f'height="{BAND_BOTTOM - BAND_TOP}"/></clipPath>'
+    )
+    parts.append('<g class="boxes" clip-path="url(#band)">')
     for b in boxes:
         x0, x1 = xs(b.lower), xs(b.upper)
         width = max(x1 - x0, 0.6)
@@ -117,8 +117,11 @@ def summary(result: IntegralResult, boxes: Sequence[Box]) -> str:
     coarse = sum(b.bound in LOW_ORDER for b in boxes)
     envelopes = sum(b.bound in ENVELOPES for b in boxes)
     worst = max(boxes, key=lambda b: b.error, default=None)
+    low, high = y_range(boxes)
+    clipped = sum(b.f_range is not None and (b.f_range[0] < low or b.f_range[1] > high) for b in boxes)
     text = (
-        f"{len(boxes)} panels; {coarse} certified by a lower-order or range bound; {envelopes} envelope pieces. "
+        f"{len(boxes)} panels; {coarse} certified by a lower-order or range bound; {envelopes} envelope pieces; "
+        f"{clipped} boxes reach beyond the y axis and are cut at its edge. "
         f"The enclosure is [{bound_text(result.enclosure[0], up=False)}, {bound_text(result.enclosure[1], up=True)}]"
         f" with error bound {bound_text(result.error_bound, up=True)}."
     )
@@ -164,7 +167,7 @@ class _Linear:
 
     def __call__(self, value: float) -> float:
         share = (value - self.low) / (self.high - self.low)
-        return self.out_low + min(max(share, -0.02), 1.02) * (self.out_high - self.out_low)
+        return self.out_low + min(max(share, -0.05), 1.05) * (self.out_high - self.out_low)
 
 
 class _XScale:

@@ -8,6 +8,7 @@ const DECIMAL = /^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d{1,9})?$/;
 const TAIL_SHARE = 0.06; // an infinite end is drawn this share of the finite span beyond it
 let charts = [];
 let lastBoxes = [];
+let lastRange = null;
 
 // -- the request ------------------------------------------------------------------------------------
 function jsonNumberOrText(text) {
@@ -134,7 +135,7 @@ function showResult(answer, elapsed) {
   $("reproduce").href = link;
   history.replaceState(null, "", `/?${q}`);
   $("engine").textContent = r.engine_version;
-  drawPicture(answer.boxes);
+  drawPicture(answer.boxes, answer.y_range);
   $("picture-summary").textContent = answer.summary;
   showSnippets(q);
 }
@@ -154,10 +155,11 @@ function cssColor(name) {
   return getComputedStyle(document.documentElement).getPropertyValue(name).trim();
 }
 
-function drawPicture(boxes) {
+function drawPicture(boxes, yRange) {
   for (const chart of charts) chart.destroy();
   charts = [];
   lastBoxes = boxes;
+  lastRange = yRange;
   const { end } = finiteEnds(boxes);
   const lefts = boxes.map((b) => end(b[0]));
   const rights = boxes.map((b) => end(b[1]));
@@ -167,6 +169,7 @@ function drawPicture(boxes) {
     if (b[2] !== null) { fLow = Math.min(fLow, b[2]); fHigh = Math.max(fHigh, b[3]); }
     if (typeof b[4] === "number" && b[4] > 0) { eLow = Math.min(eLow, b[4]); eHigh = Math.max(eHigh, b[4]); }
   }
+  if (yRange) [fLow, fHigh] = yRange; // the server's axis: the tallest boxes next to a singular point are cut
   if (!(fHigh > fLow)) { fLow -= 1; fHigh += 1; }
   if (!(eHigh > eLow)) { eLow = eLow === Infinity ? 1e-16 : eLow / 10; eHigh = eLow * 100; }
   const width = Math.max(320, $("band").clientWidth || 900);
@@ -356,5 +359,5 @@ $("variable").addEventListener("input", scheduleCheck);
 $("parameters").addEventListener("input", scheduleCheck);
 $("zoom-dense").addEventListener("click", zoomDense);
 $("zoom-reset").addEventListener("click", resetZoom);
-window.addEventListener("resize", () => { if (lastBoxes.length) drawPicture(lastBoxes); });
+window.addEventListener("resize", () => { if (lastBoxes.length) drawPicture(lastBoxes, lastRange); });
 if (fillFromQuery()) certify();
