@@ -53,11 +53,14 @@ def boxes(formula: Formula, values: Mapping[str, Fraction], mesh: Sequence[Panel
 
 #: the share of the interval whose tallest boxes may reach beyond the picture's y axis (and are clipped there)
 CLIPPED_SHARE = 0.02
+#: ... but only when the full range is this many times the rest's: a smooth f is always shown whole
+OUTLIER_FACTOR = 4.0
 
 
 def y_range(drawn: Sequence[Box]) -> tuple[float, float]:
-    """The y axis: every box, except the tallest ones that together span at most 2% of the interval (next to a
-    singular point f grows without bound; one axis for all of it would flatten the rest to a line)."""
+    """The y axis: every box; or, where a few boxes tower over the rest, all but the tallest ones that together
+    span at most 2% of the interval (next to a singular point f grows without bound, and one axis for all of it
+    would flatten the rest to a line)."""
     finite = [b for b in drawn if b.f_range is not None and math.isfinite(b.upper - b.lower)]
     if not finite:
         return -1.0, 1.0
@@ -72,10 +75,14 @@ def y_range(drawn: Sequence[Box]) -> tuple[float, float]:
                 return value
         return values[-1][0]
 
+    full_low = min(b.f_range[0] for b in finite if b.f_range)
+    full_high = max(b.f_range[1] for b in finite if b.f_range)
     high = edge(sorted(((b.f_range[1], b.upper - b.lower) for b in finite if b.f_range), reverse=True))
     low = -edge(sorted(((-b.f_range[0], b.upper - b.lower) for b in finite if b.f_range), reverse=True))
     if not high > low:
         low, high = low - 1, high + 1
+    if full_high - full_low <= OUTLIER_FACTOR * (high - low):  # nothing towers over the rest: show it all
+        return full_low, full_high
     return low, high
 
 
