@@ -138,3 +138,31 @@ def test_the_svg_picture_has_a_box_per_panel(served, url_format: str) -> None:  
     assert len(boxes) == panels
     text = " ".join(root.itertext())
     assert "exp(-x^2)" in text and "quadcert-engine-" in text and "certified" in text
+
+
+def test_the_picture_answers_the_keyboard(served, browser) -> None:  # type: ignore[no-untyped-def]
+    """The picture takes focus by Tab order; + zooms in, 0 shows it all again."""
+    browser.get(served.url + "/")
+    _certify(browser, "sqrt(x)", "0", "1", "1e-8")
+    whole = browser.execute_script("return charts[0].scales.x.max - charts[0].scales.x.min")
+    overlay = browser.find_element(By.CSS_SELECTOR, "#band .u-over")
+    assert overlay.get_attribute("tabindex") == "0" and "arrow keys" in overlay.get_attribute("aria-label")
+    overlay.send_keys("+")
+    zoomed = browser.execute_script("return charts[0].scales.x.max - charts[0].scales.x.min")
+    overlay.send_keys("0")
+    again = browser.execute_script("return charts[0].scales.x.max - charts[0].scales.x.min")
+    assert zoomed < whole and abs(again - whole) <= 1e-12 * max(1.0, whole)
+
+
+def test_a_dark_colour_scheme_is_followed(served, browser) -> None:  # type: ignore[no-untyped-def]
+    browser.get(served.url + "/")
+    light = browser.execute_script("return getComputedStyle(document.body).backgroundColor")
+    browser.execute_cdp_cmd(
+        "Emulation.setEmulatedMedia", {"features": [{"name": "prefers-color-scheme", "value": "dark"}]}
+    )
+    try:
+        browser.get(served.url + "/")
+        dark = browser.execute_script("return getComputedStyle(document.body).backgroundColor")
+    finally:
+        browser.execute_cdp_cmd("Emulation.setEmulatedMedia", {"features": []})
+    assert light != dark and dark == "rgb(22, 26, 34)"  # the page's own dark paper, #161a22
