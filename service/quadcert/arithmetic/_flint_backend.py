@@ -12,7 +12,6 @@ Same semantics as the reference backend: explicit domains, ``certain`` faults, m
 from __future__ import annotations
 
 import math
-import threading
 from collections.abc import Callable
 from fractions import Fraction
 from typing import Any
@@ -21,26 +20,10 @@ import flint
 
 from ..errors import DomainViolation, InvalidInput, MagnitudeExceeded, Unbounded
 from ._interval import binary_directed, interval_text
+from ._ownership import flint_context_claimed
 
 arb = flint.arb
-_owner: int | None = None
 _EXP_LIMIT = arb(40000)
-
-
-def claim_flint_context() -> None:
-    """Declare that the calling thread owns flint's global context (call once, in a single-threaded process)."""
-    global _owner
-    _owner = threading.get_ident()
-
-
-def release_flint_context() -> None:
-    """Give up the claim (for tests and for programs that start threads later)."""
-    global _owner
-    _owner = None
-
-
-def flint_context_claimed() -> bool:
-    return _owner == threading.get_ident()
 
 
 def _text(x: arb) -> str:

@@ -30,6 +30,7 @@ from ..results import StopReason
 from ._native_tables import BINARY, EFFECT, FUNCTION_CODES, MAX_POWER, Op, Status, disagreement
 from ._peano import BOUND_NAMES
 from ._result import PanelReport
+from ._self_test import passes
 
 log = logging.getLogger("quadcert.engine")
 
@@ -187,48 +188,11 @@ def _compile_cached(formula: Formula, items: tuple[tuple[str, Fraction], ...]) -
     return Compiled(array("i", compiler.code).tobytes(), tuple(compiler.constants), max(1, compiler.most))
 
 
-# (function, argument) pairs the C library must get right for the compiled engine to be trusted on this
-# machine: ordinary arguments, arguments next to zeros, poles and extrema, and large ones
-_SELF_TEST = [
-    (name, x)
-    for name, points in {
-        "exp": (-700.5, -1.0, -1e-9, 0.5, 1.0, 3.7, 88.7, 690.25),
-        "log": (1e-300, 0.1, 1.0000001, 2.0, 1e300),
-        "log10": (1e-300, 0.3, 1.0000001, 1000.0, 1e300),
-        "sin": (1e-8, 1.0, 3.141592653589793, 22.0, 1e5, 1e9),
-        "cos": (1e-8, 1.5707963267948966, 3.0, 355.0, 1e5, 1e9),
-        "tan": (0.5, 1.5707963267948, -1.4, 11.0),
-        "asin": (-0.99999, 0.001, 0.5, 1.0),
-        "acos": (-1.0, 0.001, 0.7, 0.99999999),
-        "atan": (-1e10, -1.0, 1e-9, 2.5, 1e300),
-        "sinh": (-690.0, -1e-9, 0.7, 30.0),
-        "cosh": (-690.0, 1e-9, 0.7, 30.0),
-        "tanh": (-20.0, -1e-9, 0.3, 5.0),
-        "erf": (-6.0, -1e-9, 0.4, 1.5, 5.0),
-    }.items()
-    for x in points
-]
-
-
 @cache
 def trusted() -> bool:
-    """Whether this machine's C library passes the guarded layer's checks (once per process).
-
-    Each enclosure must contain mpmath's value at 100 bits, in a private context (no global precision is
-    touched); a library that fails is not used, and every request goes to the arbitrary-precision engine.
-    """
-    if _native is None:
-        return False
-    import mpmath
-
-    ref = mpmath.MPContext()
-    ref.prec = 100
-    for name, x in _SELF_TEST:
-        enclosure = _native.enclose(FUNCTION_CODES[name], x, x)
-        value = getattr(ref, name)(ref.mpf(x))
-        if enclosure is None or not ref.mpf(enclosure[0]) <= value <= ref.mpf(enclosure[1]):
-            return False
-    return True
+    """Whether this machine's C library passes the guarded layer's checks (once per process, and remembered
+    per build and machine in the user's cache folder; see ``_self_test``)."""
+    return _native is not None and passes(_native.__file__, _native.enclose)
 
 
 def run(

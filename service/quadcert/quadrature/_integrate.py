@@ -9,7 +9,7 @@ from dataclasses import dataclass
 from fractions import Fraction
 from typing import TYPE_CHECKING, Any
 
-from ..arithmetic import Arithmetic, FlintArithmetic, MpmathArithmetic, flint_context_claimed, fraction_down
+from ..arithmetic import Arithmetic, MpmathArithmetic, flint_context_claimed, fraction_down
 from ..derivatives import Program
 from ..errors import ArithmeticFault, InvalidInput, NotCertifiable
 from ..formula import Formula
@@ -31,7 +31,11 @@ Limit = Formula | Fraction  # a limit as typed (a formula), or an exact cut chos
 
 def default_arithmetic() -> ArithmeticFactory:
     """The fast ball backend where this thread owns flint's context, else the reference backend."""
-    return FlintArithmetic if flint_context_claimed() else MpmathArithmetic
+    if flint_context_claimed():
+        from ..arithmetic._flint_backend import FlintArithmetic  # loaded here: the compiled engine never needs it
+
+        return FlintArithmetic
+    return MpmathArithmetic
 
 
 def choose_precision(tolerance: float) -> int:
