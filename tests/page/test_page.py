@@ -166,3 +166,18 @@ def test_a_dark_colour_scheme_is_followed(served, browser) -> None:  # type: ign
     finally:
         browser.execute_cdp_cmd("Emulation.setEmulatedMedia", {"features": []})
     assert light != dark and dark == "rgb(22, 26, 34)"  # the page's own dark paper, #161a22
+
+
+def test_a_bad_limit_is_marked_as_you_type(served, browser) -> None:  # type: ignore[no-untyped-def]
+    """The whole request is checked as it is typed, with the API's codes: a misspelt constant in a limit, then
+    a tolerance of zero, each on its own input."""
+    browser.get(served.url + "/")
+    _fill(browser, "lower", "pii/2")
+    error = _wait(browser, expected.visibility_of_element_located((By.CSS_SELECTOR, "#request-error[data-code]")))
+    assert error.get_attribute("data-code") == "unknown_name" and "did you mean 'pi'" in error.text
+    assert browser.find_element(By.ID, "lower").get_attribute("aria-invalid") == "true"
+    _fill(browser, "lower", "0")
+    _fill(browser, "tolerance", "0")
+    _wait(browser, lambda d: d.find_element(By.ID, "request-error").get_attribute("data-code") == "invalid_tolerance")
+    assert browser.find_element(By.ID, "tolerance").get_attribute("aria-invalid") == "true"
+    assert browser.find_element(By.ID, "lower").get_attribute("aria-invalid") is None

@@ -83,6 +83,21 @@ class Computation:
         }
         return Prepared(request, canonical)
 
+    async def prepared(self, body: dict[str, Any]) -> Prepared:
+        """:meth:`prepare`, off the event loop when the formula is long enough to take a while."""
+        if len(body.get("integrand", "")) > _INLINE_PARSE_CHARS:
+            return await asyncio.get_running_loop().run_in_executor(_PARSER, self.prepare, body)
+        return self.prepare(body)
+
+    async def validate(self, body: dict[str, Any], context: dict[str, Any]) -> Answer:
+        """Whether a request would be taken, without computing it: its canonical form, or the problem."""
+        try:
+            prepared = await self.prepared(body)
+        except QuadcertError as error:
+            problem = problem_for(error, **context)
+            return problem["status"], problem
+        return 200, {"valid": True, "canonical": prepared.canonical, "engine_version": ENGINE_VERSION}
+
     def _job(self, kind: str, body: dict[str, Any], request: Request, deadline: float) -> Job:
         include_mesh = bool(body.get("include_mesh")) or kind.startswith("picture")
         return Job(
@@ -107,12 +122,7 @@ class Computation:
         prepared: Prepared | None = None,
     ) -> tuple[Answer, str | None]:
         try:
-            if prepared is not None:
-                pass
-            elif len(body.get("integrand", "")) > _INLINE_PARSE_CHARS:  # long text: parse off the event loop
-                prepared = await asyncio.get_running_loop().run_in_executor(_PARSER, self.prepare, body)
-            else:
-                prepared = self.prepare(body)
+            prepared = prepared or await self.prepared(body)
         except QuadcertError as error:
             problem = problem_for(error, **context)
             return (problem["status"], problem), None

@@ -197,3 +197,9 @@ class FormulaCheck(BaseModel):
     integrand: str = Field(description="The formula as the engine reads it")
     variable: str
     engine_version: str
+
+
+class RequestCheck(BaseModel):
+    valid: Literal[True]
+    canonical: dict[str, Any] = Field(description="The request as the engine reads it: exact texts")
+    engine_version: str

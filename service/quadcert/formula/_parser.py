@@ -124,6 +124,10 @@ def _one_edit(a: str, b: str) -> bool:
     return any(long[:i] + long[i + 1 :] == short for i in range(len(long)))
 
 
+#: the variable name of a formula that may not have one (a limit): no identifier can be written this way
+CONSTANT_ONLY = "_"
+
+
 class _Parser:
     def __init__(self, text: str, variable: str, parameters: tuple[str, ...]) -> None:
         self.tokens: list[Token] = tokenize(text)
@@ -341,12 +345,17 @@ class _Parser:
                 code="unknown_name",
                 column=token.column,
             )
-        hint = _suggest(text, [self.variable, *self.parameters, *CONSTANTS])
+        constant_only = self.variable == CONSTANT_ONLY  # a limit: no variable at all
+        names = [*self.parameters, *CONSTANTS] if constant_only else [self.variable, *self.parameters, *CONSTANTS]
+        hint = _suggest(text, names)
         if not hint and len(text) > 1 and all(c == self.variable or c in CONSTANTS for c in text):
             hint = f"; implicit multiplication is not read, write {'*'.join(text)}"
-        raise FormulaError(
-            f"unknown name {text!r}{hint}; the variable is {self.variable!r}", code="unknown_name", column=token.column
+        where = (
+            "; a limit is a constant: numbers, pi, e, inf and the parameters"
+            if constant_only
+            else f"; the variable is {self.variable!r}"
         )
+        raise FormulaError(f"unknown name {text!r}{hint}{where}", code="unknown_name", column=token.column)
 
 
 def _read_number(token: Token) -> Fraction:

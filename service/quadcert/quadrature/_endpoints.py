@@ -13,6 +13,7 @@ from ..arithmetic import Arithmetic
 from ..derivatives import Program
 from ..errors import FormulaError, InvalidInput, QuadcertError
 from ..formula import Constant, Formula, Negate, Number, parse
+from ..formula._parser import CONSTANT_ONLY
 
 _PLAIN = re.compile(r"-?[0-9]{1,15}(\.[0-9]{1,15})?")
 _INFINITE = {"inf", "+inf", "-inf", "infinity", "+infinity", "-infinity", "oo", "-oo"}
@@ -52,8 +53,8 @@ def parse_limit(value: LimitValue, field: str, parameters: tuple[str, ...] = ())
 
 
 #: an infinite limit, as a formula that only this module and the improper pieces look inside
-POSITIVE_INFINITY = Formula(Constant("inf"), "_")
-NEGATIVE_INFINITY = Formula(Negate(Constant("inf")), "_")
+POSITIVE_INFINITY = Formula(Constant("inf"), CONSTANT_ONLY)
+NEGATIVE_INFINITY = Formula(Negate(Constant("inf")), CONSTANT_ONLY)
 
 
 def infinite_side(limit: Formula) -> int:
@@ -77,9 +78,9 @@ def _parse_limit_text(text: str, field: str, parameters: tuple[str, ...]) -> For
         return NEGATIVE_INFINITY
     if _PLAIN.fullmatch(text):  # the common case, read without the parser into the tree it would build
         number = Number(Fraction(text.lstrip("-")))
-        return Formula(Negate(number) if text.startswith("-") else number, "_")
+        return Formula(Negate(number) if text.startswith("-") else number, CONSTANT_ONLY)
     try:
-        formula = parse(text, variable="_", parameters=parameters)
+        formula = parse(text, variable=CONSTANT_ONLY, parameters=parameters)
     except FormulaError as error:
         raise InvalidInput(f"{field}: {error.message}", code=error.code, field=field, column=error.column) from None
     return formula

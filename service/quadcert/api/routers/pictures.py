@@ -13,7 +13,7 @@ from ...errors import QuadcertError
 from ...formula import parse
 from .._exact_json import ExactJSONResponse, ExactRoute
 from .._problems import problem_for
-from .._schemas import FormulaCheck, IntegralRequest, PictureResponse
+from .._schemas import FormulaCheck, IntegralRequest, PictureResponse, RequestCheck
 from ._common import PROBLEM_RESPONSES, computation, context, respond
 
 router = APIRouter(tags=["pictures"], route_class=ExactRoute)
@@ -28,6 +28,18 @@ router = APIRouter(tags=["pictures"], route_class=ExactRoute)
 )
 async def create_picture(body: IntegralRequest, request: Request) -> JSONResponse:
     status, answer = await computation(request).picture(body.model_dump(), context(request))
+    return respond(request, status, answer)
+
+
+@router.post(
+    "/v1/integrals/validate",
+    operation_id="validateIntegral",
+    response_model=RequestCheck,
+    responses=PROBLEM_RESPONSES,
+    summary="Check an integral request without computing it: the problem it would get, with field and column",
+)
+async def validate_integral(body: IntegralRequest, request: Request) -> JSONResponse:
+    status, answer = await computation(request).validate(body.model_dump(), context(request))
     return respond(request, status, answer)
 
 

@@ -54,38 +54,51 @@ function query() {
   return q;
 }
 
-// -- errors as you type -------------------------------------------------------------------------------
+// -- errors as you type: the whole request, checked by the service with the API's own codes -------------
+const FIELDS = { integrand: "integrand", variable: "variable", lower_limit: "lower", upper_limit: "upper",
+  tolerance: "tolerance", relative_tolerance: "relative", parameters: "parameters" };
 let checkTimer = null;
 let checkSeq = 0;
 function scheduleCheck() {
   clearTimeout(checkTimer);
-  checkTimer = setTimeout(checkFormula, 150);
+  checkTimer = setTimeout(checkRequest, 150);
 }
 
-async function checkFormula() {
+async function checkRequest() {
   const seq = ++checkSeq;
-  const q = new URLSearchParams({ integrand: $("integrand").value, variable: $("variable").value.trim() || "x" });
-  for (const [k] of parameters()) if (k) q.append("parameter", k);
-  const response = await fetch(`/v1/formula?${q}`);
+  const response = await fetch("/v1/integrals/validate", {
+    method: "POST", headers: { "content-type": "application/json" }, body: requestBody(),
+  });
   if (seq !== checkSeq) return; // a later keystroke has its own answer coming
-  const body = await response.json();
-  showFormulaProblem(response.ok ? null : body);
+  showProblem(response.ok ? null : await response.json());
 }
 
-function showFormulaProblem(problem) {
-  const input = $("integrand");
-  if (!problem) {
-    input.removeAttribute("aria-invalid");
-    $("integrand-error").textContent = "";
-    $("integrand-marker").textContent = "";
-    return;
+function fieldOf(problem) {
+  // the input a problem belongs to: its field ("lower_limit", "parameters.k", "body.tolerance"), else the formula
+  const name = String(problem.field || "integrand").replace(/^body\./, "").split(".")[0];
+  return FIELDS[name] || "integrand";
+}
+
+function showProblem(problem) {
+  for (const id of Object.values(FIELDS)) $(id).removeAttribute("aria-invalid");
+  $("integrand-error").textContent = "";
+  $("integrand-marker").textContent = "";
+  delete $("integrand-error").dataset.code;
+  $("request-error").textContent = "";
+  if (!problem) return;
+  const id = fieldOf(problem);
+  $(id).setAttribute("aria-invalid", "true");
+  const message = `${problem.code}: ${problem.detail}`;
+  if (id === "integrand") {
+    $("integrand-error").textContent = message;
+    $("integrand-error").dataset.code = problem.code;
+    $("integrand-marker").textContent = problem.column ? " ".repeat(problem.column - 1) + "^" : "";
+    $("integrand-marker").dataset.column = problem.column || "";
+  } else {
+    $("request-error").textContent = message;
+    $("request-error").dataset.code = problem.code;
+    $("request-error").dataset.field = id;
   }
-  input.setAttribute("aria-invalid", "true");
-  const column = problem.column;
-  $("integrand-error").textContent = `${problem.code}: ${problem.detail}`;
-  $("integrand-error").dataset.code = problem.code;
-  $("integrand-marker").textContent = column ? " ".repeat(column - 1) + "^" : "";
-  $("integrand-marker").dataset.column = column || "";
 }
 
 // -- the answer ---------------------------------------------------------------------------------------
@@ -103,8 +116,7 @@ async function certify(event) {
     const answer = await response.json();
     if (!response.ok) {
       $("status").textContent = `${answer.code}: ${answer.detail}`;
-      if (answer.column && (answer.field || "").indexOf("integrand") >= 0) showFormulaProblem(answer);
-      else if (answer.column && !answer.field) showFormulaProblem(answer);
+      if (response.status === 422) showProblem(answer);
       return;
     }
     showResult(answer, performance.now() - started);
@@ -354,9 +366,7 @@ function fillFromQuery() {
 }
 
 $("form").addEventListener("submit", certify);
-$("integrand").addEventListener("input", scheduleCheck);
-$("variable").addEventListener("input", scheduleCheck);
-$("parameters").addEventListener("input", scheduleCheck);
+for (const id of Object.values(FIELDS)) $(id).addEventListener("input", scheduleCheck);
 $("zoom-dense").addEventListener("click", zoomDense);
 $("zoom-reset").addEventListener("click", resetZoom);
 window.addEventListener("resize", () => { if (lastBoxes.length) drawPicture(lastBoxes, lastRange); });
