@@ -122,7 +122,8 @@ def test_the_page_stays_usable_with_100000_panels(served, browser) -> None:  # t
     assert 0 < after < before  # it zoomed into the densest stretch
     drawn = browser.find_element(By.ID, "band").get_attribute("data-boxes")
     assert drawn == "100000"
-    print("\n100,000 panels drawn;", browser.execute_script("return performance.now()"), "ms since page load")
+    draw_ms = browser.find_element(By.ID, "band").get_attribute("data-draw-ms")
+    print(f"\n100,000 panels: the picture was built and drawn in {draw_ms} ms")  # a figure, not a test
 
 
 @pytest.mark.parametrize("url_format", ["svg"])

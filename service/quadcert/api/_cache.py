@@ -26,8 +26,10 @@ def cache_key(kind: str, canonical: dict[str, Any]) -> str:
 
 
 def estimated_bytes(value: dict[str, Any]) -> int:
+    """An answer's weight: its mesh, or the encoded picture (bytes, or SVG text) it carries."""
     mesh = value.get("mesh") or (value.get("integral") or {}).get("mesh") or ()
-    return ENTRY_BYTES + PANEL_BYTES * len(mesh)
+    encoded = value.get("json") or value.get("svg") or b""
+    return ENTRY_BYTES + PANEL_BYTES * len(mesh) + len(encoded)
 
 
 class ResultCache:

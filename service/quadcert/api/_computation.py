@@ -181,12 +181,13 @@ class Computation:
     async def picture(
         self, body: dict[str, Any], context: dict[str, Any], kind: str = "json", prepared: Prepared | None = None
     ) -> Answer:
-        """An integral and its picture: "json" (the boxes, for the page) or "svg" (a document for reports)."""
+        """An integral and its picture, made in a worker: ``json`` (the encoded body of POST /v1/pictures, bytes)
+        or ``svg`` (a document for reports, text)."""
         deadline = self.settings.request_deadline_seconds
         (status, result), key = await self._run(f"picture-{kind}", body, deadline, 0.0, context, prepared=prepared)
         if status != 200 or result.get("cached"):
             return status, result
-        if key is not None and result["integral"]["stop_reason"] != "deadline":
+        if key is not None and result["stop_reason"] != "deadline":
             self.cache.put(key, result)
         return 200, result
 

@@ -7,7 +7,7 @@ here travels back to the loop as the exception itself, with all its fields (see 
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Any
 
 from .._version import ENGINE_VERSION
@@ -15,6 +15,7 @@ from ..errors import InvalidInput
 from ..picture import Box, boxes, render_svg, summary, y_range
 from ..quadrature import Request, certified_digits
 from ..results import check_body, integral_body, outward, plan_body
+from ._exact_json import dumps
 from ._pool import Task
 
 
@@ -77,15 +78,18 @@ def run_picture(job: Job, left: float | None) -> dict[str, Any]:
         )
     drawn = boxes(job.request.formula, job.request.values, mesh)
     variable = job.request.formula.variable
+    integral = integral_body(replace(result, mesh=None), job.echo)  # the mesh travels as the boxes
     if job.picture == "svg":
-        return {"svg": render_svg(result, drawn, variable, ENGINE_VERSION), "integral": integral_body(result, job.echo)}
-    return {
-        "integral": {**integral_body(result, job.echo), "mesh": None},
+        return {"svg": render_svg(result, drawn, variable, ENGINE_VERSION), "stop_reason": result.stop_reason}
+    body = {
+        "integral": integral,
         "digits": certified_digits(*result.enclosure),
         "boxes": [_box(b) for b in drawn],
         "y_range": list(y_range(drawn)),
         "summary": summary(result, drawn),
     }
+    # encoded here: a 100,000-panel picture is megabytes of JSON, and the event loop only forwards bytes
+    return {"json": dumps(body), "stop_reason": result.stop_reason}
 
 
 def _box(box: Box) -> list[Any]:

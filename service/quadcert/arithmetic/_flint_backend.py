@@ -99,6 +99,7 @@ def _finite(x: arb, what: str) -> arb:
 class FlintArithmetic:
     """Ball-arithmetic backend; see the module docstring for the precision rule.
 
+    >>> from quadcert.arithmetic import claim_flint_context
     >>> claim_flint_context()
     >>> ar = FlintArithmetic(80)
     >>> lo, hi = ar.bounds(ar.mul(ar.exact(Fraction(1, 3)), ar.exact(Fraction(3))))

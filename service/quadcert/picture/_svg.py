@@ -22,6 +22,7 @@ BAND_TOP, BAND_BOTTOM = 70, 380
 ERROR_TOP, ERROR_BOTTOM = 410, 520
 TAIL_SHARE = 0.06  # of the plot's width, for a tail drawn at each infinite end
 BOUNDARY_LIMIT = 2000  # panel ends are drawn as lines up to this many panels, as a rug beyond
+TOOLTIP_LIMIT = 5000  # panels described one by one (a <title> each) up to this many
 
 _STYLE = """
 svg { font: 13px system-ui, sans-serif; }
@@ -84,9 +85,11 @@ def render(result: IntegralResult, boxes: Sequence[Box], variable: str, engine: 
             top, bottom = float(BAND_TOP), float(BAND_BOTTOM)
         else:
             top, bottom = ys(b.f_range[1]), ys(b.f_range[0])
+        # each panel in words where a reader can hover over it; a large mesh keeps the document light
+        tip = f"<title>{escape(_panel_text(b, variable))}</title>" if len(boxes) <= TOOLTIP_LIMIT else ""
         parts.append(
             f'<rect class="box{kind}" x="{x0:.2f}" y="{top:.2f}" width="{width:.2f}" '
-            f'height="{max(bottom - top, 0.6):.2f}"><title>{escape(_panel_text(b, variable))}</title></rect>'
+            f'height="{max(bottom - top, 0.6):.2f}">{tip}</rect>'
         )
     parts.append("</g>")
     parts += _ends(xs, boxes)

@@ -6,7 +6,7 @@ from __future__ import annotations
 from typing import Annotated
 
 from fastapi import APIRouter, Query, Request
-from fastapi.responses import JSONResponse
+from fastapi.responses import JSONResponse, Response
 
 from ..._version import ENGINE_VERSION
 from ...errors import QuadcertError
@@ -26,9 +26,11 @@ router = APIRouter(tags=["pictures"], route_class=ExactRoute)
     responses=PROBLEM_RESPONSES,
     summary="Certify one integral and return its picture: f enclosed over every panel, and each panel's error",
 )
-async def create_picture(body: IntegralRequest, request: Request) -> JSONResponse:
+async def create_picture(body: IntegralRequest, request: Request) -> Response:
     status, answer = await computation(request).picture(body.model_dump(), context(request))
-    return respond(request, status, answer)
+    if status != 200:
+        return respond(request, status, answer)
+    return Response(answer["json"], media_type="application/json")  # encoded by the worker
 
 
 @router.post(

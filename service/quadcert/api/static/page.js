@@ -168,6 +168,7 @@ function cssColor(name) {
 }
 
 function drawPicture(boxes, yRange) {
+  const started = performance.now();
   for (const chart of charts) chart.destroy();
   charts = [];
   lastBoxes = boxes;
@@ -265,6 +266,7 @@ function drawPicture(boxes, yRange) {
   band.hooks.setScale = [(u, key) => { if (key === "x") syncX(u); }];
   errors.hooks.setScale = [(u, key) => { if (key === "x") syncX(u); }];
   band.root.dataset.panels = String(boxes.length);
+  $("band").dataset.drawMs = (performance.now() - started).toFixed(0); // both charts built and drawn once
 }
 
 let syncing = false;
