@@ -130,3 +130,12 @@ def test_unknown_route_and_method(client: TestClient) -> None:
     assert missing.status_code == 404 and missing.json()["code"] == "not_found"
     wrong = client.delete("/v1/integrals")
     assert wrong.status_code == 405 and wrong.json()["code"] == "method_not_allowed"
+
+
+def test_a_budget_below_the_minimum_is_refused_not_replaced(client: TestClient) -> None:
+    """max_nodes 0 is a mistake to name, not a request for the server's default (which applies when absent)."""
+    for budget, code in ((0, "budget_out_of_range"), (2, "budget_out_of_range")):
+        body = {"integrand": "x", "lower_limit": 0, "upper_limit": 1, "max_nodes": budget}
+        problem = client.post("/v1/integrals", json=body).json()
+        assert problem["code"] == code and problem["field"] == "max_nodes"
+    assert client.post("/v1/integrals", json={"integrand": "x", "lower_limit": 0, "upper_limit": 1}).status_code == 200

@@ -71,7 +71,7 @@ class Computation:
             variable=body.get("variable", "x"),
             parameters=body.get("parameters"),
             relative_tolerance=body.get("relative_tolerance"),
-            max_nodes=body.get("max_nodes") or self.settings.default_max_nodes,
+            max_nodes=self.settings.default_max_nodes if body.get("max_nodes") is None else body["max_nodes"],
         )
         canonical: dict[str, Any] = {
             **request.canonical(),
