@@ -19,7 +19,6 @@ from __future__ import annotations
 import argparse
 import math
 import statistics
-import time
 from collections.abc import Callable
 from dataclasses import dataclass
 from functools import partial
@@ -28,6 +27,7 @@ from typing import Any
 import flint
 from flint import acb, arb
 
+from benchmarks.suite import _timed
 from quadcert import integrate
 from quadcert.arithmetic import claim_flint_context
 
@@ -76,22 +76,13 @@ ROWS = [
 ]
 
 
-def _best(call: Callable[[], Any], repeats: int = 3) -> tuple[float, Any]:
-    best, result = math.inf, None
-    for _ in range(repeats):
-        started = time.perf_counter()
-        result = call()
-        best = min(best, time.perf_counter() - started)
-    return best, result
-
-
 def _flint(row: Row, tolerance: float) -> tuple[float, float]:
     prec = max(64, math.ceil(-math.log2(tolerance)) + 16)
     old = flint.ctx.prec
     flint.ctx.prec = prec
     try:
         lower, upper = (acb(arb(_value(t))) for t in (row.a, row.b))
-        seconds, value = _best(lambda: acb.integral(row.flint_f, lower, upper, abs_tol=tolerance, rel_tol=2.0**-prec))
+        seconds, value = _timed(lambda: acb.integral(row.flint_f, lower, upper, abs_tol=tolerance, rel_tol=2.0**-prec))
         return seconds, float(value.real.rad()) if value.real.is_finite() else math.inf
     finally:
         flint.ctx.prec = old
@@ -106,7 +97,7 @@ def run(tolerances: list[float]) -> list[dict[str, Any]]:
     rows = []
     for tolerance in tolerances:
         for row in ROWS:
-            ours_seconds, result = _best(partial(integrate, row.formula, row.a, row.b, tolerance))
+            ours_seconds, result = _timed(partial(integrate, row.formula, row.a, row.b, tolerance))
             flint_seconds, flint_radius = _flint(row, tolerance)
             rows.append(
                 {

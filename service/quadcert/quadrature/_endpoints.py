@@ -96,6 +96,26 @@ def exact_limit(formula: Formula) -> Fraction | None:
     return None
 
 
+#: the largest |limit| the engine takes (the float 1e300, exactly)
+_LIMIT_RANGE = Fraction(1e300)
+
+
+def check_limit(formula: Formula, parameters: dict[str, Fraction], field: str, ar: Arithmetic[Any]) -> None:
+    """Refuse a finite limit that does not evaluate, or lies beyond ±1e300, before any work is done. A plain
+    numeral is checked by its exact value; anything else is enclosed once with ``ar``."""
+    value = exact_limit(formula)
+    if value is None:
+        enclose_limit(formula, ar, parameters, field)
+    elif abs(value) > _LIMIT_RANGE:
+        raise _out_of_range(field)
+
+
+def _out_of_range(field: str) -> InvalidInput:
+    return InvalidInput(
+        f"{field} is beyond ±1e300; such limits are not supported", code="limit_out_of_range", field=field
+    )
+
+
 def enclose_limit(formula: Formula, ar: Arithmetic[Any], parameters: dict[str, Fraction], field: str) -> Any:
     if infinite_side(formula):
         raise InvalidInput(
@@ -112,7 +132,5 @@ def enclose_limit(formula: Formula, ar: Arithmetic[Any], parameters: dict[str, F
         raise InvalidInput(f"{field} cannot be evaluated: {error.message}", code="invalid_limit", field=field) from None
     low, high = ar.bounds(value)
     if not (math.isfinite(low) and math.isfinite(high)) or max(abs(low), abs(high)) > 1e300:
-        raise InvalidInput(
-            f"{field} is beyond ±1e300; such limits are not supported", code="limit_out_of_range", field=field
-        )
+        raise _out_of_range(field)
     return value

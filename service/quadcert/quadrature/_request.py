@@ -21,7 +21,7 @@ from ..arithmetic import Arithmetic, MpmathArithmetic
 from ..formula import Formula, parse
 from . import _inputs
 from ._check import decide
-from ._endpoints import LimitValue, enclose_limit, infinite_side, parse_limit
+from ._endpoints import LimitValue, check_limit, infinite_side, parse_limit
 from ._integrate import run
 from ._planner import plan_for
 from ._result import CheckResult, IntegralResult, Plan
@@ -73,7 +73,7 @@ class Request:
         upper = parse_limit(upper_limit, "upper_limit", names)
         for limit, field_name in ((lower, "lower_limit"), (upper, "upper_limit")):
             if not infinite_side(limit):  # a finite limit must evaluate, within ±1e300: refused here, not later
-                enclose_limit(limit, _CHECK_LIMITS, values, field_name)
+                check_limit(limit, values, field_name, _CHECK_LIMITS)
         return cls(formula, lower, upper, checked_tolerance, relative, budget, values)
 
     def canonical(self) -> dict[str, Any]:
