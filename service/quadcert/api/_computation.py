@@ -107,7 +107,7 @@ class Computation:
             max_mesh_panels=self.settings.max_mesh_panels if include_mesh else None,
             claimed_value=body.get("claimed_value"),
             deadline_seconds=None if kind == "plan" else deadline * 0.8,
-            picture=kind.partition("-")[2] or "json",
+            picture="svg" if kind == "picture-svg" else "json",
         )
 
     async def _run(
@@ -133,7 +133,7 @@ class Computation:
         started = time.perf_counter()
         try:
             answer = await self.pool.run(
-                TASKS[kind.partition("-")[0]],
+                TASKS[kind],
                 self._job(kind, body, prepared.request, compute or deadline),
                 deadline + 1.0,
                 wait,

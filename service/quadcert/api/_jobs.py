@@ -105,4 +105,11 @@ def _box(box: Box) -> list[Any]:
     ]
 
 
-TASKS: dict[str, Task] = {"integral": run_integral, "check": run_check, "plan": run_plan, "picture": run_picture}
+#: the task for each kind of answer (the kind is also part of the cache key)
+TASKS: dict[str, Task] = {
+    "integral": run_integral,
+    "check": run_check,
+    "plan": run_plan,
+    "picture-json": run_picture,
+    "picture-svg": run_picture,
+}
