@@ -163,6 +163,20 @@ function finiteEnds(boxes) {
   return { end, low, high };
 }
 
+function hatch(color) {
+  // the envelope pieces' fill: diagonal lines, as in the SVG picture
+  const tile = document.createElement("canvas");
+  tile.width = tile.height = 8;
+  const g = tile.getContext("2d");
+  g.strokeStyle = color;
+  g.lineWidth = 2;
+  g.beginPath();
+  g.moveTo(0, 8);
+  g.lineTo(8, 0);
+  g.stroke();
+  return g.createPattern(tile, "repeat");
+}
+
 function cssColor(name) {
   return getComputedStyle(document.documentElement).getPropertyValue(name).trim();
 }
@@ -203,6 +217,7 @@ function drawPicture(boxes, yRange) {
     series: [{}, { show: false }],
   });
   let drawn = 0;
+  const hatched = hatch(colors.envelope);
   const band = new uPlot({
     ...common(320, [fLow, fHigh], false),
     hooks: {
@@ -220,8 +235,8 @@ function drawPicture(boxes, yRange) {
           const top = b[2] === null ? u.bbox.top : u.valToPos(b[3], "y", true);
           const bottom = b[2] === null ? u.bbox.top + u.bbox.height : u.valToPos(b[2], "y", true);
           const kind = b[5];
-          ctx.fillStyle = kind.endsWith("envelope") ? colors.envelope : /f[123]$|^range$/.test(kind) ? colors.coarse : colors.box;
-          ctx.globalAlpha = kind.endsWith("envelope") ? 0.3 : 1;
+          ctx.globalAlpha = 1;
+          ctx.fillStyle = kind.endsWith("envelope") ? hatched : /f[123]$|^range$/.test(kind) ? colors.coarse : colors.box;
           ctx.fillRect(x0, top, Math.max(x1 - x0, 1), Math.max(bottom - top, 1));
           if (x1 - x0 >= 3) { // panel ends, where they are far enough apart to read
             ctx.globalAlpha = 0.35;
