@@ -16,6 +16,7 @@ reads without blocking as the bytes arrive, so a reply of any size (a 100,000-pa
 from __future__ import annotations
 
 import asyncio
+import importlib
 import itertools
 import logging
 import multiprocessing
@@ -44,13 +45,22 @@ GROUP_SHARE = 0.5
 ENGINE_SHARE = 0.8
 
 
-def _worker_main(connection: multiprocessing.connection.Connection, backend: Backend = "flint") -> None:
+#: modules a worker imports as it starts, before it takes a job: the engine, its tasks and the ball backend, so
+#: that a worker's first job does not pay for loading them (its deadline would)
+PRELOAD = ("quadcert.api._jobs", "quadcert.arithmetic._flint_backend")
+
+
+def _worker_main(
+    connection: multiprocessing.connection.Connection, backend: Backend = "flint", preload: tuple[str, ...] = PRELOAD
+) -> None:
     signal.signal(signal.SIGINT, signal.SIG_IGN)  # the parent decides when workers stop
     signal.signal(signal.SIGTERM, signal.SIG_DFL)
     if backend == "flint":
         from ..arithmetic import claim_flint_context
 
         claim_flint_context()  # a worker runs one job at a time on one thread: it owns flint's context
+    for name in preload:
+        importlib.import_module(name)
     while True:
         try:
             message = connection.recv()
