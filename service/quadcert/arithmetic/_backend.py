@@ -17,6 +17,7 @@ from typing import Literal, Protocol, TypeVar
 
 from ..errors import InvalidInput
 from . import _kernels as kernels
+from . import _special as special
 from ._interval import ZERO, Interval, to_fraction
 
 MIN_PRECISION = 53
@@ -47,6 +48,8 @@ class Arithmetic(Protocol[E]):
     def pow_int(self, a: E, n: int) -> E: ...
     def pow_real(self, a: E, b: E) -> E: ...
     def function(self, name: str, a: E) -> E: ...
+    def polygamma(self, order: int, a: E) -> E: ...
+    def bessel_j(self, order: int, a: E) -> E: ...
     def minimum(self, a: E, b: E) -> E: ...
     def maximum(self, a: E, b: E) -> E: ...
     def hull(self, a: E, b: E) -> E: ...
@@ -75,6 +78,15 @@ _FUNCTIONS: dict[str, Callable[[Interval, int], Interval]] = {
     "tanh": kernels.tanh,
     "erf": kernels.erf,
     "abs": lambda a, _prec: kernels.abs_(a),
+    "asinh": special.asinh,
+    "acosh": special.acosh,
+    "atanh": special.atanh,
+    "cbrt": special.cbrt,
+    "erfc": special.erfc,
+    "sign": lambda a, _prec: special.sign(a),
+    "step": lambda a, _prec: special.step(a),
+    "gamma": special.gamma,
+    "lgamma": special.lgamma,
 }
 _CONSTANTS = {"pi": kernels.pi, "e": kernels.e}
 
@@ -138,6 +150,14 @@ class MpmathArithmetic:
 
     def function(self, name: str, a: Interval) -> Interval:
         return _FUNCTIONS[name](a, self.prec)
+
+    def polygamma(self, order: int, a: Interval) -> Interval:
+        """ψ⁽ᵒʳᵈᵉʳ⁾ over a positive interval (for the Taylor coefficients of Γ and log Γ)."""
+        return special.polygamma(order, a, self.prec)
+
+    def bessel_j(self, order: int, a: Interval) -> Interval:
+        """J_order over a (for the Taylor coefficients of j0 and j1)."""
+        return special.bessel_j(order, a, self.prec)
 
     def minimum(self, a: Interval, b: Interval) -> Interval:
         return kernels.minimum(a, b)

@@ -184,6 +184,17 @@ class FlintArithmetic:
             raise Unbounded(f"{name} could not be bounded on {_text(a)}", certain=False)
         return result
 
+    def polygamma(self, order: int, a: arb) -> arb:
+        """ψ⁽ᵒʳᵈᵉʳ⁾ over a positive ball: digamma, or (−1)^(m+1)·m!·ζ(m + 1, a) for m ≥ 1."""
+        _positive("the polygamma function", a, allow_zero=False)
+        if order == 0:
+            return _finite(a.digamma(), "digamma")
+        sign = 1 if order % 2 else -1
+        return _finite(sign * math.factorial(order) * arb(order + 1).zeta(a), "polygamma")
+
+    def bessel_j(self, order: int, a: arb) -> arb:
+        return _finite(a.bessel_j(order), "the Bessel function")
+
     def minimum(self, a: arb, b: arb) -> arb:
         return a.min(b)
 
@@ -305,6 +316,60 @@ def _hyperbolic(method: str) -> Callable[[arb], arb]:
     return apply
 
 
+def _acosh(a: arb) -> arb:
+    if a < 1:
+        raise DomainViolation(f"acosh is undefined on {_text(a)}", certain=True)
+    if not a >= 1:
+        raise DomainViolation(f"acosh may be undefined: its argument reaches {_text(a)}", certain=False)
+    return _monotone("acosh")(a)
+
+
+def _atanh(a: arb) -> arb:
+    if a <= -1 or a >= 1:
+        raise DomainViolation(f"atanh is undefined on {_text(a)}", certain=True)
+    if not abs(a) < 1:
+        raise Unbounded(f"atanh has a pole at ±1, and its argument reaches {_text(a)}", certain=False)
+    return _monotone("atanh")(a)
+
+
+def _cbrt_point(t: arb) -> arb:
+    if t == 0:
+        return arb(0)
+    root: arb = abs(t).root(3)
+    return root if t > 0 else -root
+
+
+def _cbrt(a: arb) -> arb:
+    if a.is_exact():
+        return _cbrt_point(a)
+    return _cbrt_point(arb(a.lower())).union(_cbrt_point(arb(a.upper())))
+
+
+def _sign(a: arb) -> arb:
+    low = arb(-1) if a.lower() < 0 else (arb(0) if a.lower() == 0 else arb(1))
+    high = arb(1) if a.upper() > 0 else (arb(0) if a.upper() == 0 else arb(-1))
+    return low.union(high)
+
+
+def _step(a: arb) -> arb:
+    low = arb(1) if a.lower() >= 0 else arb(0)
+    high = arb(1) if a.upper() >= 0 else arb(0)
+    return low.union(high)
+
+
+def _gamma(a: arb) -> arb:
+    if a.is_exact() and a.is_integer() and a <= 0:
+        raise Unbounded(f"gamma has a pole at {_text(a)}", certain=True)
+    if a.upper() > 5000:
+        raise MagnitudeExceeded(f"gamma of {_text(a)} is too large to compute with")
+    return a.gamma()
+
+
+def _lgamma(a: arb) -> arb:
+    _positive("lgamma", a, allow_zero=False)
+    return a.lgamma()
+
+
 _FUNCTIONS: dict[str, Callable[[arb], Any]] = {
     "sqrt": _sqrt,
     "exp": _exp,
@@ -321,4 +386,13 @@ _FUNCTIONS: dict[str, Callable[[arb], Any]] = {
     "tanh": _monotone("tanh"),
     "erf": _monotone("erf"),
     "abs": _abs,
+    "asinh": _monotone("asinh"),
+    "acosh": _acosh,
+    "atanh": _atanh,
+    "cbrt": _cbrt,
+    "erfc": _monotone("erfc"),
+    "sign": _sign,
+    "step": _step,
+    "gamma": _gamma,
+    "lgamma": _lgamma,
 }

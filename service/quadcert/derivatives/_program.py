@@ -15,7 +15,9 @@ from ..arithmetic import Arithmetic
 from ..errors import InvalidInput
 from ..formula import Binary, Call, Constant, Formula, Negate, Node, Number, Parameter, Variable
 from ..formula._nodes import distinct_arguments
+from ..formula._catalogue import spelled_out
 from . import _series as series
+from . import _special_series as special
 from ._series import E, Series
 
 _UNARY: dict[str, Callable[[Arithmetic[Any], Series[Any]], Series[Any]]] = {
@@ -34,6 +36,17 @@ _UNARY: dict[str, Callable[[Arithmetic[Any], Series[Any]], Series[Any]]] = {
     "tanh": series.tanh,
     "erf": series.erf,
     "abs": series.abs_,
+    "asinh": special.asinh,
+    "acosh": special.acosh,
+    "atanh": special.atanh,
+    "cbrt": special.cbrt,
+    "erfc": special.erfc,
+    "sign": lambda ar, u: special.piecewise_constant("sign", ar, u),
+    "step": lambda ar, u: special.piecewise_constant("step", ar, u),
+    "gamma": special.gamma,
+    "lgamma": special.lgamma,
+    "j0": lambda ar, u: special.bessel(0, ar, u),
+    "j1": lambda ar, u: special.bessel(1, ar, u),
 }
 
 # A compiled node is either ("const", enclosure) or ("series", function of (x series) -> series).
@@ -101,6 +114,9 @@ class Program(Generic[E]):
         return self._binary(node)
 
     def _call(self, node: Call) -> Compiled:
+        written_out = spelled_out(node.function, node.args)
+        if written_out is not None:
+            return self._compile(written_out)
         args = [self._compile(a) for a in (distinct_arguments(node) if node.function in ("min", "max") else node.args)]
         if all(kind == "const" for kind, _ in args):
             values = [[payload] for _, payload in args]
@@ -112,6 +128,8 @@ class Program(Generic[E]):
     def _apply(self, function: str, values: list[Series[E]]) -> Series[E]:
         if function in ("min", "max"):
             return series.extremum(self.ar, values, largest=function == "max")
+        if function == "atan2":
+            return special.atan2(self.ar, values[0], values[1])
         return _UNARY[function](self.ar, values[0])
 
     def _lift(self, compiled: Compiled) -> Callable[[Series[E]], Series[E]]:

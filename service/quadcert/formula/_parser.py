@@ -18,35 +18,12 @@ from typing import Any
 
 from ..errors import FormulaError
 from . import _limits
+from ._catalogue import ALIASES, CATALOGUE
 from ._nodes import Binary, Call, Constant, Negate, Node, Number, Parameter, Variable, canonical_text
 from ._tokenizer import Kind, Token, tokenize
 
 #: function name -> (minimum, maximum) number of arguments
-FUNCTIONS: dict[str, tuple[int, int]] = {
-    **{
-        name: (1, 1)
-        for name in (
-            "sqrt",
-            "exp",
-            "log",
-            "log10",
-            "sin",
-            "cos",
-            "tan",
-            "asin",
-            "acos",
-            "atan",
-            "sinh",
-            "cosh",
-            "tanh",
-            "abs",
-            "erf",
-        )
-    },
-    "min": (2, _limits.MAX_ARGUMENTS),
-    "max": (2, _limits.MAX_ARGUMENTS),
-}
-ALIASES = {"ln": "log", "arcsin": "asin", "arccos": "acos", "arctan": "atan"}
+FUNCTIONS: dict[str, tuple[int, int]] = {f.name: f.arguments for f in CATALOGUE}
 CONSTANTS = ("pi", "e")
 RESERVED = frozenset(FUNCTIONS) | frozenset(ALIASES) | frozenset(CONSTANTS)
 
@@ -81,21 +58,15 @@ class Formula:
 #: functions people reach for that the language does not have, with how to write them today; a spelling
 #: suggestion there would name a different function (sign is not sin, cot is not cos)
 REWRITES = {
-    "sign": "write x/abs(x) away from 0, or split the interval at 0",
-    "sgn": "write x/abs(x) away from 0, or split the interval at 0",
-    "cot": "write 1/tan(x)",
-    "sec": "write 1/cos(x)",
-    "csc": "write 1/sin(x)",
-    "asinh": "write log(x + sqrt(x^2 + 1))",
-    "acosh": "write log(x + sqrt(x^2 - 1))",
-    "atanh": "write log((1 + x)/(1 - x))/2",
-    "cbrt": "write x^(1/3) for x > 0",
-    "log2": "write log(x)/log(2)",
-    "erfc": "write 1 - erf(x)",
+    "sgn": "write sign(x)",
+    "heaviside": "write step(x)",
     "pow": "write a^b",
     "sqr": "write x^2",
     "exp10": "write 10^x",
     "ln10": "write log(10)",
+    "tgamma": "write gamma(x)",
+    "besselj0": "write j0(x)",
+    "besselj1": "write j1(x)",
 }
 
 
@@ -104,10 +75,12 @@ def _suggest(name: str, candidates: list[str]) -> str:
     name is not a function of another kind (see REWRITES)."""
     if name in REWRITES:
         return f"; the language has no {name}(): {REWRITES[name]}"
-    for candidate in candidates:
-        if _one_edit(name.lower(), candidate):
-            return f"; did you mean {candidate!r}?"
-    return ""
+    close = [candidate for candidate in candidates if _one_edit(name.lower(), candidate)]
+    if not close:
+        return ""
+    # a doubled or dropped last letter (sinn, exx) is likelier than a changed one (sinn is not sign)
+    best = min(close, key=lambda c: not (name.lower().startswith(c) or c.startswith(name.lower())))
+    return f"; did you mean {best!r}?"
 
 
 def _one_edit(a: str, b: str) -> bool:

@@ -81,6 +81,13 @@ _SPECIAL_VALUES: dict[tuple[str, Fraction | int], Fraction] = {
     ("acos", 1): Fraction(0),
     ("erf", 0): Fraction(0),
     ("log10", 1): Fraction(0),
+    ("asinh", 0): Fraction(0),
+    ("acosh", 1): Fraction(0),
+    ("atanh", 0): Fraction(0),
+    ("cbrt", 0): Fraction(0),
+    ("erfc", 0): Fraction(1),
+    ("lgamma", 1): Fraction(0),
+    ("lgamma", 2): Fraction(0),
 }
 
 
@@ -144,10 +151,22 @@ class ExactArithmetic:
             root_n, root_d = math.isqrt(a.numerator), math.isqrt(a.denominator)
             if root_n * root_n == a.numerator and root_d * root_d == a.denominator:
                 return Fraction(root_n, root_d)
+        if name == "sign":
+            return Fraction((a > 0) - (a < 0))
+        if name == "step":
+            return Fraction(int(a >= 0))
+        if name == "gamma" and a.denominator == 1 and 0 < a <= 1000:
+            return Fraction(math.factorial(a.numerator - 1))
         known = _SPECIAL_VALUES.get((name, a))
         if known is not None:
             return known
         raise Unsupported(f"{name}({a}) is not known to be rational")
+
+    def polygamma(self, order: int, a: Fraction) -> Fraction:
+        raise Unsupported("the polygamma function is not rational")
+
+    def bessel_j(self, order: int, a: Fraction) -> Fraction:
+        raise Unsupported("Bessel functions are not rational")
 
     def minimum(self, a: Fraction, b: Fraction) -> Fraction:
         return min(a, b)

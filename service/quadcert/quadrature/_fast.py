@@ -25,6 +25,7 @@ from ..arithmetic import MpmathArithmetic, fraction_down, fraction_up
 from ..derivatives import Program
 from ..errors import ArithmeticFault
 from ..formula import Binary, Call, Constant, Formula, Negate, Node, Number, Parameter, Variable
+from ..formula._catalogue import spelled_out
 from ..formula._nodes import distinct_arguments
 from ..results import StopReason
 from ._native_tables import BINARY, EFFECT, FUNCTION_CODES, MAX_POWER, Op, Status, disagreement
@@ -126,6 +127,10 @@ class _Compiler:
         elif isinstance(node, Negate):
             self.node(node.operand)
             self.emit(Op.NEG)
+        elif isinstance(node, Call) and spelled_out(node.function, node.args) is not None:
+            self.node(spelled_out(node.function, node.args))  # type: ignore[arg-type]
+        elif isinstance(node, Call) and node.function not in FUNCTION_CODES and node.function not in ("min", "max"):
+            raise _NotCompiled(node.function)
         elif isinstance(node, Call):
             args = distinct_arguments(node) if node.function in ("min", "max") else node.args
             self.node(args[0])
@@ -167,6 +172,10 @@ class _Compiler:
         return self.ar.is_exact_integer(program.value(self.ar.zero))
 
 
+class _NotCompiled(Exception):
+    """A function the C engine does not evaluate: the formula goes to the precise engine, whole."""
+
+
 def compile_formula(formula: Formula, values: Mapping[str, Fraction]) -> Compiled | None:
     """Instructions for the native engine, or None where a constant does not fit in float64."""
     return _compile_cached(formula, tuple(sorted(values.items())))
@@ -178,7 +187,7 @@ def _compile_cached(formula: Formula, items: tuple[tuple[str, Fraction], ...]) -
     compiler = _Compiler(formula, values)
     try:
         compiler.node(formula.root)
-    except ArithmeticFault:
+    except (ArithmeticFault, _NotCompiled):
         return None
     if any(
         not (math.isfinite(lo) and math.isfinite(hi) and abs(lo) < 1e300 and abs(hi) < 1e300)

@@ -1,0 +1,170 @@
+"""Outward-rounded kernels for the language's further functions, on the reference backend.
+
+Every value comes from :func:`_kernels._guarded` (libmp at extra precision, widened by a guard), and ranges
+come from monotonicity on stated intervals: the reasons are in docs/functions.md, one paragraph per function.
+Precision is an argument, as everywhere in the kernels: nothing here touches a global context.
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+
+from mpmath import libmp
+
+from ..errors import DomainViolation, MagnitudeExceeded, Unbounded
+from . import _kernels as k
+from ._interval import ONE, ZERO, Interval
+
+_MINUS_ONE = libmp.from_int(-1)
+_TWO = libmp.from_int(2)
+_ERFC_FAR = libmp.from_int(100)
+_GAMMA_LIMIT = libmp.from_int(5000)  # Γ(5000) < 2^54000, inside the magnitude cap  # erfc(100) < 1e-4346: past it, [0, erfc(100)] is the value
+
+#: Gamma's minimum on (0, ∞) is at x₀ = 1.46163214496836… with Γ(x₀) = 0.88560319441088…; the bracket
+#: and the lower bounds below are checked against 60-digit mpmath in tests/arithmetic/test_special.py
+GAMMA_ARGMIN_LOW = Fraction(146163, 100000)
+GAMMA_ARGMIN_HIGH = Fraction(146164, 100000)
+GAMMA_MIN_LOW = Fraction(885603194410, 10**12)
+LGAMMA_MIN_LOW = Fraction(-121486290536, 10**12)
+
+
+def _raw(value: Fraction, prec: int, up: bool) -> tuple[int, int, int, int]:
+    raw: tuple[int, int, int, int] = libmp.from_rational(
+        value.numerator, value.denominator, prec, k.CEILING if up else k.FLOOR
+    )
+    return raw
+
+
+def asinh(a: Interval, prec: int) -> Interval:
+    return k._increasing(libmp.mpf_asinh, a, prec)
+
+
+def acosh(a: Interval, prec: int) -> Interval:
+    if k._lt(a.hi, ONE):
+        raise DomainViolation(f"acosh is undefined on {k._text(a)}", certain=True)
+    if k._lt(a.lo, ONE):
+        raise DomainViolation(f"acosh may be undefined: its argument reaches {k._text(a)}", certain=False)
+    result = k._increasing(libmp.mpf_acosh, a, prec)
+    return Interval(k._max(result.lo, ZERO), result.hi)
+
+
+def atanh(a: Interval, prec: int) -> Interval:
+    if k._le(a.hi, _MINUS_ONE) or k._ge(a.lo, ONE):
+        raise DomainViolation(f"atanh is undefined on {k._text(a)}", certain=True)
+    if k._le(a.lo, _MINUS_ONE) or k._ge(a.hi, ONE):
+        raise Unbounded(f"atanh has a pole at ±1, and its argument reaches {k._text(a)}", certain=False)
+    return k._increasing(libmp.mpf_atanh, a, prec)
+
+
+def _odd_cbrt(x: tuple[int, int, int, int], wp: int, rnd: str) -> tuple[int, int, int, int]:
+    """libmp's cube root takes no negative number: cbrt is odd."""
+    if x[0]:
+        root: tuple[int, int, int, int] = k._neg(libmp.mpf_cbrt(k._neg(x), wp, rnd))
+        return root
+    value: tuple[int, int, int, int] = libmp.mpf_cbrt(x, wp, rnd)
+    return value
+
+
+def cbrt(a: Interval, prec: int) -> Interval:
+    return k._increasing(_odd_cbrt, a, prec)
+
+
+def erfc(a: Interval, prec: int) -> Interval:
+    """Decreasing from 2 to 0; far out the value is clamped to [0, erfc(100)] or [2 − erfc(100), 2]."""
+
+    def at(x: tuple[int, int, int, int]) -> Interval:
+        if k._gt(x, _ERFC_FAR):
+            return Interval(ZERO, k._guarded(libmp.mpf_erfc, _ERFC_FAR, prec).hi)
+        if k._lt(x, k._neg(_ERFC_FAR)):
+            return Interval(k._guarded(libmp.mpf_erfc, k._neg(_ERFC_FAR), prec).lo, _TWO)
+        return k._guarded(libmp.mpf_erfc, x, prec)
+
+    low, high = at(a.hi), at(a.lo)
+    return Interval(k._max(low.lo, ZERO), k._min(high.hi, _TWO))
+
+
+def sign(a: Interval) -> Interval:
+    """−1, 0 or 1; an interval reaching 0 gets the hull of the signs it holds."""
+    low = _MINUS_ONE if k._lt(a.lo, ZERO) else (ZERO if a.lo == ZERO else ONE)
+    high = ONE if k._gt(a.hi, ZERO) else (ZERO if a.hi == ZERO else _MINUS_ONE)
+    return Interval(low, high)
+
+
+def step(a: Interval) -> Interval:
+    """The unit step, 1 from 0 on (step(0) = 1) and 0 below."""
+    low = ONE if k._ge(a.lo, ZERO) else ZERO
+    high = ONE if k._ge(a.hi, ZERO) else ZERO
+    return Interval(low, high)
+
+
+def gamma(a: Interval, prec: int) -> Interval:
+    """Γ on (0, ∞) from its one minimum; below 0, between poles, by reflection Γ(a) = π/(sin(πa)·Γ(1 − a))."""
+    if k._gt(a.lo, ZERO):
+        return _gamma_positive(a, prec, libmp.mpf_gamma, GAMMA_MIN_LOW)
+    if k._lt(a.hi, ZERO):
+        whole = libmp.mpf_floor(a.hi)
+        if k._le(a.lo, whole) or a.hi == whole:
+            raise Unbounded(f"gamma has a pole in {k._text(a)}", certain=a.is_point)
+        wp = prec + 16
+        pi = k.pi(wp)
+        sine = k.sin(k.mul(a, pi, wp), wp)
+        reflected = gamma(k.sub(k.from_int(1), a, wp), wp)
+        return k.div(pi, k.mul(sine, reflected, wp), prec)
+    raise Unbounded(f"gamma has a pole at 0, and its argument reaches {k._text(a)}", certain=a.is_point)
+
+
+def lgamma(a: Interval, prec: int) -> Interval:
+    """log Γ on (0, ∞), the one domain where it is the logarithm of Γ itself."""
+    if not k._gt(a.lo, ZERO):
+        certain = not k._gt(a.hi, ZERO)
+        raise DomainViolation(f"lgamma needs a positive argument, got {k._text(a)}", certain=certain)
+    return _gamma_positive(a, prec, libmp.mpf_loggamma, LGAMMA_MIN_LOW)
+
+
+def _gamma_positive(a: Interval, prec: int, fn: k.PointFunction, floor: Fraction) -> Interval:
+    """Γ and log Γ fall on (0, x₀] and rise on [x₀, ∞); x₀ lies in the bracket, where the minimum is ≥ floor."""
+    if fn is libmp.mpf_gamma and k._gt(a.hi, _GAMMA_LIMIT):
+        raise MagnitudeExceeded(f"gamma of {k._text(a)} is too large to compute with")
+    if k._le(a.hi, _raw(GAMMA_ARGMIN_LOW, 64, up=False)):
+        return _falling(fn, a, prec)
+    if k._ge(a.lo, _raw(GAMMA_ARGMIN_HIGH, 64, up=True)):
+        return k._increasing(fn, a, prec)
+    top = k._max(k._guarded(fn, a.lo, prec).hi, k._guarded(fn, a.hi, prec).hi)
+    return Interval(_raw(floor, prec, up=False), top)
+
+
+def _falling(fn: k.PointFunction, a: Interval, prec: int) -> Interval:
+    high = k._guarded(fn, a.lo, prec)
+    low = high if a.is_point else k._guarded(fn, a.hi, prec)
+    return Interval(low.lo, high.hi)
+
+
+def polygamma(order: int, a: Interval, prec: int) -> Interval:
+    """ψ⁽ᵐ⁾ on (0, ∞): ψ rises, and each ψ⁽ᵐ⁾ with m ≥ 1 is monotone (its derivative keeps one sign)."""
+    if not k._gt(a.lo, ZERO):
+        raise DomainViolation(f"the polygamma function needs a positive argument, got {k._text(a)}", certain=False)
+
+    def fn(x: tuple[int, int, int, int], wp: int, rnd: str) -> tuple[int, int, int, int]:
+        value: tuple[int, int, int, int] = libmp.mpf_psi(order, x, wp, rnd)
+        return value
+
+    first = k._guarded(fn, a.lo, prec)
+    if a.is_point:
+        return first
+    return k.hull(first, k._guarded(fn, a.hi, prec))
+
+
+def bessel_j(order: int, a: Interval, prec: int) -> Interval:
+    """J_n over a from its value at the midpoint and the slope bound |J_n′| ≤ 1 on the real line (A&S 9.1.60
+    gives |J_n| ≤ 1, and J_n′ = (J_{n−1} − J_{n+1})/2), clamped to [−1, 1]."""
+    wp = prec + 8
+    middle = libmp.mpf_shift(libmp.mpf_add(a.lo, a.hi, wp, k.NEAREST), -1)
+    radius = k._max(libmp.mpf_sub(a.hi, middle, 53, k.CEILING), libmp.mpf_sub(middle, a.lo, 53, k.CEILING))
+
+    def fn(x: tuple[int, int, int, int], wp: int, rnd: str) -> tuple[int, int, int, int]:
+        value: tuple[int, int, int, int] = libmp.mpf_besseljn(order, x, wp, rnd)
+        return value
+
+    centre = k._guarded(fn, middle, prec)
+    lo, hi = libmp.mpf_sub(centre.lo, radius, prec, k.FLOOR), libmp.mpf_add(centre.hi, radius, prec, k.CEILING)
+    return Interval(k._max(lo, _MINUS_ONE), k._min(hi, ONE))
