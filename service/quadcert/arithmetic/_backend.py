@@ -87,6 +87,8 @@ _FUNCTIONS: dict[str, Callable[[Interval, int], Interval]] = {
     "step": lambda a, _prec: special.step(a),
     "gamma": special.gamma,
     "lgamma": special.lgamma,
+    "j0": lambda a, prec: special.bessel_j(0, a, prec),
+    "j1": lambda a, prec: special.bessel_j(1, a, prec),
 }
 _CONSTANTS = {"pi": kernels.pi, "e": kernels.e}
 

@@ -187,13 +187,17 @@ class FlintArithmetic:
     def polygamma(self, order: int, a: arb) -> arb:
         """ψ⁽ᵒʳᵈᵉʳ⁾ over a positive ball: digamma, or (−1)^(m+1)·m!·ζ(m + 1, a) for m ≥ 1."""
         _positive("the polygamma function", a, allow_zero=False)
-        if order == 0:
-            return _finite(a.digamma(), "digamma")
         sign = 1 if order % 2 else -1
-        return _finite(sign * math.factorial(order) * arb(order + 1).zeta(a), "polygamma")
+
+        def at(t: arb) -> arb:
+            value: arb = t.digamma() if order == 0 else sign * math.factorial(order) * arb(order + 1).zeta(t)
+            return _finite(value, "the polygamma function")
+
+        # each ψ⁽ᵐ⁾ is monotone on (0, ∞): its ends bound it, where arb would give up on a wide ball
+        return at(a) if a.is_exact() else at(arb(a.lower())).union(at(arb(a.upper())))
 
     def bessel_j(self, order: int, a: arb) -> arb:
-        return _finite(a.bessel_j(order), "the Bessel function")
+        return _bessel(order, a)
 
     def minimum(self, a: arb, b: arb) -> arb:
         return a.min(b)
@@ -325,8 +329,10 @@ def _acosh(a: arb) -> arb:
 
 
 def _atanh(a: arb) -> arb:
-    if a <= -1 or a >= 1:
+    if a < -1 or a > 1:
         raise DomainViolation(f"atanh is undefined on {_text(a)}", certain=True)
+    if a.is_exact() and abs(a) == 1:
+        raise Unbounded(f"atanh has a pole at {_text(a)}", certain=True)
     if not abs(a) < 1:
         raise Unbounded(f"atanh has a pole at ±1, and its argument reaches {_text(a)}", certain=False)
     return _monotone("atanh")(a)
@@ -365,6 +371,12 @@ def _gamma(a: arb) -> arb:
     return a.gamma()
 
 
+def _bessel(order: int, a: arb) -> arb:
+    if abs(a).upper() > 100000:
+        raise MagnitudeExceeded(f"j0 and j1 take arguments up to 100000 in size, got {_text(a)}")
+    return _finite(a.bessel_j(order), "the Bessel function")
+
+
 def _lgamma(a: arb) -> arb:
     _positive("lgamma", a, allow_zero=False)
     return a.lgamma()
@@ -395,4 +407,6 @@ _FUNCTIONS: dict[str, Callable[[arb], Any]] = {
     "step": _step,
     "gamma": _gamma,
     "lgamma": _lgamma,
+    "j0": lambda a: _bessel(0, a),
+    "j1": lambda a: _bessel(1, a),
 }

@@ -9,6 +9,9 @@ from __future__ import annotations
 
 from fractions import Fraction
 
+import threading
+
+import mpmath
 from mpmath import libmp
 
 from ..errors import DomainViolation, MagnitudeExceeded, Unbounded
@@ -17,8 +20,14 @@ from ._interval import ONE, ZERO, Interval
 
 _MINUS_ONE = libmp.from_int(-1)
 _TWO = libmp.from_int(2)
+_HALF = libmp.from_rational(1, 2, 53, libmp.round_nearest)
 _ERFC_FAR = libmp.from_int(100)
-_GAMMA_LIMIT = libmp.from_int(5000)  # Γ(5000) < 2^54000, inside the magnitude cap  # erfc(100) < 1e-4346: past it, [0, erfc(100)] is the value
+_BESSEL_LIMIT = libmp.from_int(100000)
+_BESSEL_SERIES_LIMIT = libmp.from_int(500)
+_PRIVATE = threading.local()
+_GAMMA_LIMIT = libmp.from_int(
+    5000
+)  # Γ(5000) < 2^54000, inside the magnitude cap  # erfc(100) < 1e-4346: past it, [0, erfc(100)] is the value
 
 #: Gamma's minimum on (0, ∞) is at x₀ = 1.46163214496836… with Γ(x₀) = 0.88560319441088…; the bracket
 #: and the lower bounds below are checked against 60-digit mpmath in tests/arithmetic/test_special.py
@@ -35,8 +44,37 @@ def _raw(value: Fraction, prec: int, up: bool) -> tuple[int, int, int, int]:
     return raw
 
 
+def _asinh_point(x: tuple[int, int, int, int], prec: int) -> Interval:
+    """asinh at one point from log and sqrt by interval arithmetic (libmp's own asinh and acosh lose digits
+    to cancellation next to 0 and 1): below 1/2 the alternating series gives x − x³/6 ≤ asinh x ≤ x for
+    x ≥ 0; from 1/2 on, asinh x = log x + log(1 + sqrt(1 + 1/x²)), with nothing cancelling."""
+    if x[0]:
+        return k.neg(_asinh_point(k._neg(x), prec))
+    if x == ZERO:
+        return Interval(ZERO, ZERO)
+    wp = prec + 16
+    point = Interval(x, x)
+    if k._lt(x, _HALF):
+        cube = k.mul_fraction(k.pow_int(point, 3, wp), Fraction(1, 6), wp)
+        return Interval(libmp.mpf_sub(x, cube.hi, prec, k.FLOOR), x)
+    inverse = k.div(k.from_int(1), point, wp)
+    root = k.sqrt(k.add(k.from_int(1), k.sqr(inverse, wp), wp), wp)
+    total = k.add(k.log(point, wp), k.log(k.add(k.from_int(1), root, wp), wp), wp)
+    return Interval(libmp.mpf_pos(total.lo, prec, k.FLOOR), libmp.mpf_pos(total.hi, prec, k.CEILING))
+
+
 def asinh(a: Interval, prec: int) -> Interval:
-    return k._increasing(libmp.mpf_asinh, a, prec)
+    low = _asinh_point(a.lo, prec)
+    return low if a.is_point else Interval(low.lo, _asinh_point(a.hi, prec).hi)
+
+
+def _acosh_point(x: tuple[int, int, int, int], prec: int) -> Interval:
+    """acosh x = asinh(sqrt((x − 1)(x + 1))) for x ≥ 1: x − 1 is exact, so nothing cancels next to 1."""
+    wp = prec + 16
+    point = Interval(x, x)
+    product = k.mul(k.sub(point, k.from_int(1), wp), k.add(point, k.from_int(1), wp), wp)
+    root = k.sqrt(Interval(k._max(product.lo, ZERO), product.hi), wp)
+    return Interval(_asinh_point(root.lo, prec).lo, _asinh_point(root.hi, prec).hi)
 
 
 def acosh(a: Interval, prec: int) -> Interval:
@@ -44,29 +82,66 @@ def acosh(a: Interval, prec: int) -> Interval:
         raise DomainViolation(f"acosh is undefined on {k._text(a)}", certain=True)
     if k._lt(a.lo, ONE):
         raise DomainViolation(f"acosh may be undefined: its argument reaches {k._text(a)}", certain=False)
-    result = k._increasing(libmp.mpf_acosh, a, prec)
-    return Interval(k._max(result.lo, ZERO), result.hi)
+    low = _acosh_point(a.lo, prec)
+    high = low if a.is_point else _acosh_point(a.hi, prec)
+    return Interval(k._max(low.lo, ZERO), high.hi)
+
+
+def _atanh_point(x: tuple[int, int, int, int], prec: int) -> Interval:
+    """Below 1/2 the series x + x³/3 + x⁵/5 + … lies between x + x³/3 and x + x³/(3(1 − x²)) for x ≥ 0;
+    from 1/2 on, atanh x = log((1 + x)/(1 − x))/2, where 1 − x is exact and the quotient is at least 3."""
+    if x[0]:
+        return k.neg(_atanh_point(k._neg(x), prec))
+    if x == ZERO:
+        return Interval(ZERO, ZERO)
+    wp = prec + 16
+    point = Interval(x, x)
+    one = k.from_int(1)
+    if k._lt(x, _HALF):
+        third_cube = k.mul_fraction(k.pow_int(point, 3, wp), Fraction(1, 3), wp)
+        top = k.div(third_cube, k.sub(one, k.sqr(point, wp), wp), wp)
+        return Interval(libmp.mpf_add(x, third_cube.lo, prec, k.FLOOR), libmp.mpf_add(x, top.hi, prec, k.CEILING))
+    ratio = k.div(k.add(one, point, wp), k.sub(one, point, wp), wp)
+    value = k.mul_fraction(k.log(ratio, wp), Fraction(1, 2), wp)
+    return Interval(libmp.mpf_pos(value.lo, prec, k.FLOOR), libmp.mpf_pos(value.hi, prec, k.CEILING))
 
 
 def atanh(a: Interval, prec: int) -> Interval:
-    if k._le(a.hi, _MINUS_ONE) or k._ge(a.lo, ONE):
+    if k._lt(a.hi, _MINUS_ONE) or k._gt(a.lo, ONE):
         raise DomainViolation(f"atanh is undefined on {k._text(a)}", certain=True)
+    if a.is_point and (a.lo == ONE or a.lo == _MINUS_ONE):
+        raise Unbounded(f"atanh has a pole at {k._text(a)}", certain=True)
     if k._le(a.lo, _MINUS_ONE) or k._ge(a.hi, ONE):
         raise Unbounded(f"atanh has a pole at ±1, and its argument reaches {k._text(a)}", certain=False)
-    return k._increasing(libmp.mpf_atanh, a, prec)
+    low = _atanh_point(a.lo, prec)
+    return low if a.is_point else Interval(low.lo, _atanh_point(a.hi, prec).hi)
 
 
-def _odd_cbrt(x: tuple[int, int, int, int], wp: int, rnd: str) -> tuple[int, int, int, int]:
-    """libmp's cube root takes no negative number: cbrt is odd."""
+def _cbrt_point(x: tuple[int, int, int, int], prec: int) -> Interval:
+    """The cube root certified by cubing: libmp's root is only a candidate, and lo³ ≤ x ≤ hi³ is checked
+    exactly (products without rounding), widening until it holds."""
     if x[0]:
-        root: tuple[int, int, int, int] = k._neg(libmp.mpf_cbrt(k._neg(x), wp, rnd))
-        return root
-    value: tuple[int, int, int, int] = libmp.mpf_cbrt(x, wp, rnd)
-    return value
+        return k.neg(_cbrt_point(k._neg(x), prec))
+    if x == ZERO:
+        return Interval(ZERO, ZERO)
+    guess = libmp.mpf_cbrt(x, prec + 8, k.NEAREST)
+    slack = libmp.mpf_shift(guess, -prec)
+    while True:
+        lo = libmp.mpf_sub(guess, slack, prec, k.FLOOR)
+        hi = libmp.mpf_add(guess, slack, prec, k.CEILING)
+        if k._le(_cube(lo), x) and k._ge(_cube(hi), x):
+            return Interval(lo, hi)
+        slack = libmp.mpf_shift(slack, 4)
+
+
+def _cube(y: tuple[int, int, int, int]) -> tuple[int, int, int, int]:
+    cube: tuple[int, int, int, int] = k._mul(k._mul(y, y), y)  # no precision given: exact
+    return cube
 
 
 def cbrt(a: Interval, prec: int) -> Interval:
-    return k._increasing(_odd_cbrt, a, prec)
+    low = _cbrt_point(a.lo, prec)
+    return low if a.is_point else Interval(low.lo, _cbrt_point(a.hi, prec).hi)
 
 
 def erfc(a: Interval, prec: int) -> Interval:
@@ -154,14 +229,29 @@ def polygamma(order: int, a: Interval, prec: int) -> Interval:
     return k.hull(first, k._guarded(fn, a.hi, prec))
 
 
+def _private_context() -> mpmath.MPContext:
+    """An mpmath context of this thread's own: its precision is set per call, and no other code sees it."""
+    ctx: mpmath.MPContext | None = getattr(_PRIVATE, "context", None)
+    if ctx is None:
+        ctx = _PRIVATE.context = mpmath.MPContext()
+    return ctx
+
+
 def bessel_j(order: int, a: Interval, prec: int) -> Interval:
     """J_n over a from its value at the midpoint and the slope bound |J_n′| ≤ 1 on the real line (A&S 9.1.60
     gives |J_n| ≤ 1, and J_n′ = (J_{n−1} − J_{n+1})/2), clamped to [−1, 1]."""
+    if k._gt(k.magnitude(a), _BESSEL_LIMIT):
+        raise MagnitudeExceeded(f"j0 and j1 take arguments up to 100000 in size, got {k._text(a)}")
     wp = prec + 8
     middle = libmp.mpf_shift(libmp.mpf_add(a.lo, a.hi, wp, k.NEAREST), -1)
     radius = k._max(libmp.mpf_sub(a.hi, middle, 53, k.CEILING), libmp.mpf_sub(middle, a.lo, 53, k.CEILING))
 
     def fn(x: tuple[int, int, int, int], wp: int, rnd: str) -> tuple[int, int, int, int]:
+        if k._gt(k._abs(x), _BESSEL_SERIES_LIMIT):  # libmp's power series slows down with the size of x
+            ctx = _private_context()
+            ctx.prec = wp
+            far: tuple[int, int, int, int] = ctx.besselj(order, ctx.make_mpf(x))._mpf_
+            return far
         value: tuple[int, int, int, int] = libmp.mpf_besseljn(order, x, wp, rnd)
         return value
 

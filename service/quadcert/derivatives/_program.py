@@ -18,6 +18,7 @@ from ..formula._nodes import distinct_arguments
 from ..formula._catalogue import spelled_out
 from . import _series as series
 from . import _special_series as special
+from ._piecewise import compile_cases
 from ._series import E, Series
 
 _UNARY: dict[str, Callable[[Arithmetic[Any], Series[Any]], Series[Any]]] = {
@@ -114,6 +115,8 @@ class Program(Generic[E]):
         return self._binary(node)
 
     def _call(self, node: Call) -> Compiled:
+        if node.function == "cases":
+            return compile_cases(self, node)
         written_out = spelled_out(node.function, node.args)
         if written_out is not None:
             return self._compile(written_out)

@@ -157,7 +157,8 @@ def gamma(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
 
 
 def bessel(order: int, ar: Arithmetic[E], u: Series[E]) -> Series[E]:
-    """J₀(u) or J₁(u): J_n⁽ᵏ⁾ = 2⁻ᵏ Σⱼ (−1)ʲ C(k, j) J_{n+k−2j}, with J_{−m} = (−1)ᵐ J_m."""
+    """J₀(u) or J₁(u): J_n⁽ᵏ⁾ = 2⁻ᵏ Σᵢ (−1)ᵏ⁻ⁱ C(k, i) J_{n+k−2i} (from J_n′ = (J_{n−1} − J_{n+1})/2), with
+    J_{−m} = (−1)ᵐ J_m."""
     n = len(u)
     values: dict[int, E] = {}
 
@@ -172,7 +173,7 @@ def bessel(order: int, ar: Arithmetic[E], u: Series[E]) -> Series[E]:
         for i in range(k + 1):
             m = order + k - 2 * i
             term = j(abs(m))
-            sign = (-1) ** i * ((-1) ** abs(m) if m < 0 else 1)
+            sign = (-1) ** (k - i) * ((-1) ** abs(m) if m < 0 else 1)
             term = ar.scale(term, Fraction(sign * comb(k, i)))
             total = ar.add(total, term)
         outer.append(ar.scale(total, Fraction(1, 2**k * factorial(k))))

@@ -37,17 +37,13 @@ CATALOGUE: tuple[Function, ...] = (
     Function("exp", (1, 1), "all real u (|u| ≤ 40000)", "exponential"),
     Function("log", (1, 1), "u > 0", "natural logarithm (also ln)"),
     Function("log10", (1, 1), "u > 0", "logarithm to base 10"),
-    Function(
-        "log2", (1, 1), "u > 0", "logarithm to base 2", lambda a: _ratio(Call("log", a), Call("log", (_TWO,)))
-    ),
+    Function("log2", (1, 1), "u > 0", "logarithm to base 2", lambda a: _ratio(Call("log", a), Call("log", (_TWO,)))),
     Function("sin", (1, 1), "all real u", "sine, u in radians"),
     Function("cos", (1, 1), "all real u", "cosine"),
     Function("tan", (1, 1), "u ≠ π/2 + kπ", "tangent"),
     Function("sec", (1, 1), "u ≠ π/2 + kπ", "secant, 1/cos(u)", lambda a: _ratio(_ONE, Call("cos", a))),
     Function("csc", (1, 1), "u ≠ kπ", "cosecant, 1/sin(u)", lambda a: _ratio(_ONE, Call("sin", a))),
-    Function(
-        "cot", (1, 1), "u ≠ kπ", "cotangent, cos(u)/sin(u)", lambda a: _ratio(Call("cos", a), Call("sin", a))
-    ),
+    Function("cot", (1, 1), "u ≠ kπ", "cotangent, cos(u)/sin(u)", lambda a: _ratio(Call("cos", a), Call("sin", a))),
     Function("asin", (1, 1), "−1 ≤ u ≤ 1", "inverse sine (also arcsin)"),
     Function("acos", (1, 1), "−1 ≤ u ≤ 1", "inverse cosine (also arccos)"),
     Function("atan", (1, 1), "all real u", "inverse tangent (also arctan)"),
@@ -55,8 +51,7 @@ CATALOGUE: tuple[Function, ...] = (
         "atan2",
         (2, 2),
         "(y, x) ≠ (0, 0)",
-        "angle of the point (x, y) in (−π, π]: atan2(y, x), y first; it jumps from π to −π where x < 0 and y "
-        "crosses 0",
+        "angle of the point (x, y) in (−π, π]: atan2(y, x), y first; it jumps from π to −π where x < 0 and y crosses 0",
     ),
     Function(
         "hypot",

@@ -101,6 +101,24 @@ def decimal_text(value: Fraction) -> str:
     return f"{sign}{digits}e{exponent}"
 
 
+#: the internal calls of piecewise definitions (see the grammar in ``_parser``); no one can write them as calls
+CONDITION_FUNCTIONS = ("<", "<=", "and", "or")
+
+
+def _piecewise_text(node: Call) -> str:
+    """{v if c; …; w otherwise}, with conditions joined by and/or (and binds tighter)."""
+    if node.function == "cases":
+        args = node.args
+        pieces = [f"{canonical_text(args[i])} if {canonical_text(args[i + 1])}" for i in range(0, len(args) - 1, 2)]
+        if len(args) % 2:
+            pieces.append(f"{canonical_text(args[-1])} otherwise")
+        return "{" + "; ".join(pieces) + "}"
+    if node.function in ("<", "<="):
+        return f"{canonical_text(node.args[0])} {node.function} {canonical_text(node.args[1])}"
+    parts = [canonical_text(arg) for arg in node.args]  # the parser nests and inside or, never the reverse
+    return f" {node.function} ".join(parts)
+
+
 def _precedence(node: Node) -> int:
     if isinstance(node, Binary):
         return _PRECEDENCE[node.op]
@@ -126,6 +144,8 @@ def canonical_text(node: Node) -> str:
             inner = f"({inner})"
         return f"-{inner}"
     if isinstance(node, Call):
+        if node.function in CONDITION_FUNCTIONS or node.function == "cases":
+            return _piecewise_text(node)
         return f"{node.function}({', '.join(canonical_text(a) for a in node.args)})"
     level = _PRECEDENCE[node.op]
     left, right = canonical_text(node.left), canonical_text(node.right)

@@ -6,7 +6,16 @@ Grammar (``^`` binds tightest and is right-associative; ``-x^2`` is ``-(x^2)``):
     term       := unary (("*" | "/") unary)*
     unary      := ("+" | "-") unary | power
     power      := primary ("^" unary)?
-    primary    := NUMBER | NAME | NAME "(" expression ("," expression)* ")" | "(" expression ")"
+    primary    := NUMBER | NAME | NAME "(" expression ("," expression)* ")" | "(" expression ")" | cases
+    cases      := "{" case (";" case)* "}"          the first case whose condition holds gives the value
+    case       := expression "if" condition | expression "otherwise"      (otherwise: the last case only)
+    condition  := conjunction ("or" conjunction)*
+    conjunction:= comparison ("and" comparison)*
+    comparison := expression (("<" | "<=" | ">" | ">=") expression)+    (chains: 0 < x <= 1)
+
+A piecewise definition is a ``Call`` of ``cases`` whose arguments alternate value and condition (an odd count
+ends with the ``otherwise`` value); conditions are calls of ``<``, ``<=``, ``and`` and ``or``, names no one
+can write as functions. ``a > b`` is kept as ``b < a``, and a chain as the ``and`` of its links.
 """
 
 from __future__ import annotations
@@ -25,7 +34,8 @@ from ._tokenizer import Kind, Token, tokenize
 #: function name -> (minimum, maximum) number of arguments
 FUNCTIONS: dict[str, tuple[int, int]] = {f.name: f.arguments for f in CATALOGUE}
 CONSTANTS = ("pi", "e")
-RESERVED = frozenset(FUNCTIONS) | frozenset(ALIASES) | frozenset(CONSTANTS)
+KEYWORDS = ("if", "otherwise", "and", "or", "not")
+RESERVED = frozenset(FUNCTIONS) | frozenset(ALIASES) | frozenset(CONSTANTS) | frozenset(KEYWORDS)
 
 
 @dataclass(frozen=True)
@@ -195,6 +205,13 @@ class _Parser:
             )
         if token.kind is Kind.RPAREN:
             raise FormulaError("')' has no matching '('", code="unbalanced_parenthesis", column=token.column)
+        if token.kind is Kind.COMPARISON or (token.kind is Kind.NAME and token.text in KEYWORDS):
+            raise FormulaError(
+                f"{token.text!r} belongs to a condition, which lives in a piecewise definition: "
+                "{ x^2 if x < 1; 2*x - 1 otherwise }",
+                code="misplaced_condition",
+                column=token.column,
+            )
         raise self.unexpected("an operator")
 
     def expression(self) -> Node:
@@ -269,7 +286,88 @@ class _Parser:
             if self.current.kind is Kind.LPAREN:
                 return self.call(token)
             return self.count(self.name(token), token.column)
-        raise self.unexpected("a number, a name or '('")
+        if token.kind is Kind.LBRACE:
+            return self.cases()
+        raise self.unexpected("a number, a name, '(' or '{'")
+
+    # -- piecewise definitions ------------------------------------------------------------------
+    def cases(self) -> Node:
+        opening = self.advance()
+        self.enter(opening.column)
+        args: list[Node] = []
+        while True:
+            value = self.expression()
+            keyword = self.current
+            if keyword.kind is Kind.NAME and keyword.text == "otherwise":
+                self.advance()
+                args.append(value)
+                if self.current.kind is not Kind.RBRACE:
+                    raise FormulaError(
+                        "'otherwise' is the last case; close the definition with '}'",
+                        code="misplaced_condition",
+                        column=self.current.column,
+                    )
+                if not args[:-1]:
+                    raise FormulaError(
+                        "a piecewise definition needs a case with 'if' before 'otherwise'",
+                        code="misplaced_condition",
+                        column=keyword.column,
+                    )
+                break
+            if not (keyword.kind is Kind.NAME and keyword.text == "if"):
+                raise self.unexpected("'if' and a condition, or 'otherwise', after the value of a case")
+            self.advance()
+            args += [value, self.condition()]
+            if self.current.kind is Kind.SEMICOLON:
+                self.advance()
+                if self.current.kind is Kind.RBRACE:  # a trailing ';' is fine
+                    break
+                continue
+            if self.current.kind is Kind.RBRACE:
+                break
+            if self.current.kind is Kind.END:
+                raise FormulaError("'{' is never closed", code="unbalanced_parenthesis", column=opening.column)
+            raise self.unexpected("';' and the next case, or '}'")
+        self.advance()
+        self.depth -= 1
+        return self.count(Call("cases", tuple(args)), opening.column)
+
+    def condition(self) -> Node:
+        node = self.conjunction()
+        parts = [node]
+        while self.current.kind is Kind.NAME and self.current.text == "or":
+            self.advance()
+            parts.append(self.conjunction())
+        return node if len(parts) == 1 else self.count(Call("or", tuple(parts)), self.current.column)
+
+    def conjunction(self) -> Node:
+        parts = [self.negation()]
+        while self.current.kind is Kind.NAME and self.current.text == "and":
+            self.advance()
+            parts.append(self.negation())
+        return parts[0] if len(parts) == 1 else self.count(Call("and", tuple(parts)), self.current.column)
+
+    def negation(self) -> Node:
+        token = self.current
+        if token.kind is Kind.NAME and token.text == "not":
+            raise FormulaError(
+                "conditions have no 'not': write the opposite comparison, x >= 1 for 'not x < 1'",
+                code="misplaced_condition",
+                column=token.column,
+            )
+        left = self.expression()
+        if self.current.kind is not Kind.COMPARISON:
+            raise self.unexpected("a comparison: <, <=, > or >=")
+        comparisons: list[Node] = []
+        while self.current.kind is Kind.COMPARISON:
+            operator = self.advance()
+            right = self.expression()
+            a, b = (left, right) if operator.text.startswith("<") else (right, left)  # only < and <= are kept
+            comparisons.append(self.count(Call(operator.text.replace(">", "<"), (a, b)), operator.column))
+            left = right
+        if len(comparisons) == 1:
+            return comparisons[0]
+        return self.count(Call("and", tuple(comparisons)), token.column)
 
     def call(self, name: Token) -> Node:
         function = ALIASES.get(name.text, name.text)
@@ -308,6 +406,12 @@ class _Parser:
             return Parameter(text)
         if text in CONSTANTS:
             return Constant(text)
+        if text in KEYWORDS:
+            raise FormulaError(
+                f"{text!r} belongs to a piecewise definition: {{ x^2 if x < 1; 2*x - 1 otherwise }}",
+                code="misplaced_condition",
+                column=token.column,
+            )
         if text in FUNCTIONS or text in ALIASES:
             raise FormulaError(
                 f"{text!r} is a function; write {text}(...)", code="missing_arguments", column=token.column

@@ -18,6 +18,10 @@ class Kind(Enum):
     LPAREN = "("
     RPAREN = ")"
     COMMA = ","
+    LBRACE = "{"
+    RBRACE = "}"
+    SEMICOLON = ";"
+    COMPARISON = "comparison"
     END = "end of formula"
 
 
@@ -39,6 +43,11 @@ _SINGLE = {
     "(": Kind.LPAREN,
     ")": Kind.RPAREN,
     ",": Kind.COMMA,
+    "{": Kind.LBRACE,
+    "}": Kind.RBRACE,
+    ";": Kind.SEMICOLON,
+    "<": Kind.COMPARISON,
+    ">": Kind.COMPARISON,
 }
 _LOOKALIKES = {
     "×": "*",
@@ -51,6 +60,8 @@ _LOOKALIKES = {
     "²": "^2",
     "³": "^3",
     "√": "sqrt(...)",
+    "≤": "<=",
+    "≥": ">=",
 }
 
 
@@ -60,7 +71,7 @@ def _describe_character(char: str) -> str:
     if char in _LOOKALIKES:
         text += f"; write {_LOOKALIKES[char]!r} instead"
     elif not char.isascii():
-        text += "; formulas use ASCII letters, digits, spaces and + - * / ^ ( ) ,"
+        text += "; formulas use ASCII letters, digits, spaces and + - * / ^ ( ) , { } ; < >"
     return text
 
 
@@ -104,6 +115,16 @@ def tokenize(text: str) -> list[Token]:
         if char == "*" and text.startswith("**", position):
             raise FormulaError(
                 "'**' is not an operator here; write powers with '^', as in x^2",
+                code="unsupported_operator",
+                column=column,
+            )
+        if char in "<>" and text.startswith("=", position + 1):
+            tokens.append(Token(Kind.COMPARISON, char + "=", column))
+            position += 2
+            continue
+        if char in "=!":
+            raise FormulaError(
+                "a condition compares with <, <=, > or >=; equality of real numbers is not tested",
                 code="unsupported_operator",
                 column=column,
             )

@@ -15,12 +15,36 @@ from typing import Any, Generic, TypeVar
 from ..arithmetic import Arithmetic, Interval
 from ..derivatives import Program
 from ..errors import ArithmeticFault
-from ..formula import Binary, Call, Formula, Negate, Node, Variable
+from ..formula import Binary, Call, Formula, Negate, Node, Number, Variable
+from ..formula._catalogue import spelled_out
 from ._scalars import ExactArithmetic, Scalars, Unsupported
 
 Form = TypeVar("Form")
 
 ODD_BOUNDED = ("sin", "atan", "tanh", "erf")
+BOUNDED_BY_ONE = ("j0", "j1", "sign", "step")
+_ONE, _TWO = Number(Fraction(1)), Number(Fraction(2))
+
+
+def _identity(node: Call) -> Node | None:
+    """A call the envelope rules read through an identity: the spelled-out functions (sec is 1/cos), and
+    atanh and acosh, whose singular points are those of the logarithms they are made of."""
+    written = spelled_out(node.function, node.args)
+    if written is not None:
+        return written
+    (u,) = node.args if len(node.args) == 1 else (None,)
+    if u is None:
+        return None
+    if node.function == "atanh":  # (log(1 + u) − log(1 − u))/2
+        logs = Binary("-", Call("log", (Binary("+", _ONE, u),)), Call("log", (Binary("-", _ONE, u),)))
+        return Binary("/", logs, _TWO)
+    if node.function == "acosh":  # log(u + sqrt(u² − 1)), u ≥ 1
+        return Call("log", (Binary("+", u, Call("sqrt", (Binary("-", Binary("^", u, _TWO), _ONE),))),))
+    return None
+
+
+def _gauss(u: Node) -> Node:
+    return Call("exp", (Negate(Binary("^", u, _TWO)),))
 
 
 @dataclass(frozen=True)
@@ -89,7 +113,8 @@ class Rules(Generic[Form]):
                 return self.quotient_rule(self.envelope(node.left), self.envelope(node.right))
             return self.power_rule(node)
         if isinstance(node, Call):
-            return self.call(node)
+            identity = _identity(node)
+            return self.envelope(identity) if identity is not None else self.call(node)
         raise Unsupported(f"no rule for {type(node).__name__}")
 
     def sum_rule(self, node: Binary) -> Envelope[Form]:
@@ -148,7 +173,7 @@ class Rules(Generic[Form]):
         sign = 1 if r.denominator != 1 or r.numerator % 2 == 0 else base.sign
         return Envelope(self.raised(up, r, upper=True), lower, sign)
 
-    def common_call(self, name: str, g: Envelope[Form]) -> Envelope[Form] | None:
+    def common_call(self, name: str, g: Envelope[Form], argument: Node) -> Envelope[Form] | None:
         """The function rules that read the same for both kinds of piece; None leaves the call to the caller."""
         s, ar = self.s, self.s.ar
         bound = self.small_bound(g.upper)
@@ -175,6 +200,10 @@ class Rules(Generic[Form]):
                 if s.positive(least):
                     return Envelope(self.constant(ar.one), self.constant(least), 1)
             return Envelope(self.constant(ar.one), None, 0)
+        if name in BOUNDED_BY_ONE:  # |J₀|, |J₁| ≤ 1 on the real line (A&S 9.1.60); sign and step by definition
+            return Envelope(self.constant(ar.one), None, 1 if name == "step" else 0)
+        if name == "erfc" and g.sign == 1:  # 0 < erfc(y) ≤ e^(−y²) for y ≥ 0 (from A&S 7.1.13)
+            return Envelope(self.envelope(_gauss(argument)).upper, None, 1)
         if name in ("sinh", "cosh") and bound is not None:
             grow = ar.function("cosh", bound)
             if name == "cosh":  # cosh y ∈ [1, cosh B]

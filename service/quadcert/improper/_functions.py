@@ -22,7 +22,7 @@ def near_call(near: NearPoint, node: Call) -> Envelope[Power]:
     if name in ("min", "max") or len(node.args) != 1:
         raise Unsupported(f"{name} of a subexpression that is unbounded at the point")
     g = near.envelope(node.args[0])
-    common = near.common_call(name, g)
+    common = near.common_call(name, g, node.args[0])
     if common is not None:
         return common
     s, ar = near.s, near.s.ar

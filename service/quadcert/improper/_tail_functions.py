@@ -21,7 +21,7 @@ def tail_call(tail: InTail, node: Call) -> TailEnvelope[Growth]:
     if name in ("min", "max") or len(node.args) != 1:
         raise Unsupported(f"{name} in a tail")
     g = tail.envelope(node.args[0])
-    common = tail.common_call(name, g)
+    common = tail.common_call(name, g, node.args[0])
     if common is not None:
         return common
     bound = tail.small_bound(g.upper)
