@@ -69,7 +69,7 @@ def test_other_variable_name_and_parameters() -> None:
         ("   ", "empty_formula", 1),
         ("2*", "unexpected_end", 3),
         ("x.real", "unexpected_character", 2),
-        ("x; 1", "unexpected_character", 2),
+        ("x @ 1", "unexpected_character", 3),
         ("sin", "missing_arguments", 1),
         ("atan(x, 1)", "wrong_argument_count", 1),
         ("max(x)", "wrong_argument_count", 1),

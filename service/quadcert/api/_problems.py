@@ -110,6 +110,11 @@ PROBLEM_TYPES: dict[str, tuple[int | None, str, str]] = {
     "wrong_argument_count": (422, _FORMULA, "A function got the wrong number of arguments."),
     "missing_arguments": (422, _FORMULA, "A function was written without its arguments."),
     "unsupported_operator": (422, _FORMULA, "An operator the language does not have."),
+    "misplaced_condition": (
+        422,
+        _FORMULA,
+        "A condition, or a word of one (if, otherwise, and, or), outside the cases of a piecewise definition.",
+    ),
     "literal_too_long": (422, _FORMULA, "A number has more than 60 significant digits."),
     "literal_out_of_range": (422, _FORMULA, "A number's exponent is beyond ±1000."),
     "power_too_large": (422, _FORMULA, "A literal exponent in x^n is beyond ±1000."),

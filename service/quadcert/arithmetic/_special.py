@@ -7,9 +7,8 @@ Precision is an argument, as everywhere in the kernels: nothing here touches a g
 
 from __future__ import annotations
 
-from fractions import Fraction
-
 import threading
+from fractions import Fraction
 
 import mpmath
 from mpmath import libmp
@@ -21,13 +20,11 @@ from ._interval import ONE, ZERO, Interval
 _MINUS_ONE = libmp.from_int(-1)
 _TWO = libmp.from_int(2)
 _HALF = libmp.from_rational(1, 2, 53, libmp.round_nearest)
-_ERFC_FAR = libmp.from_int(100)
+_ERFC_FAR = libmp.from_int(100)  # erfc(100) < 1e-4346: past it, [0, erfc(100)] is the value
 _BESSEL_LIMIT = libmp.from_int(100000)
 _BESSEL_SERIES_LIMIT = libmp.from_int(500)
 _PRIVATE = threading.local()
-_GAMMA_LIMIT = libmp.from_int(
-    5000
-)  # Γ(5000) < 2^54000, inside the magnitude cap  # erfc(100) < 1e-4346: past it, [0, erfc(100)] is the value
+_GAMMA_LIMIT = libmp.from_int(5000)  # Γ(5000) < 2^54000, inside the magnitude cap
 
 #: Gamma's minimum on (0, ∞) is at x₀ = 1.46163214496836… with Γ(x₀) = 0.88560319441088…; the bracket
 #: and the lower bounds below are checked against 60-digit mpmath in tests/arithmetic/test_special.py

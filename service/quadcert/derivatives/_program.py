@@ -14,8 +14,8 @@ from typing import Any, Generic
 from ..arithmetic import Arithmetic
 from ..errors import InvalidInput
 from ..formula import Binary, Call, Constant, Formula, Negate, Node, Number, Parameter, Variable
-from ..formula._nodes import distinct_arguments
 from ..formula._catalogue import spelled_out
+from ..formula._nodes import distinct_arguments
 from . import _series as series
 from . import _special_series as special
 from ._piecewise import compile_cases

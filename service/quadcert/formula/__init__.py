@@ -1,7 +1,8 @@
 """Formula language: text in, a checked tree out. No Python evaluation anywhere."""
 
+from ._catalogue import ALIASES
 from ._nodes import Binary, Call, Constant, Negate, Node, Number, Parameter, Variable, canonical_text, decimal_text
-from ._parser import ALIASES, CONSTANTS, FUNCTIONS, Formula, parse
+from ._parser import CONSTANTS, FUNCTIONS, Formula, parse
 from ._tokenizer import Kind, Token, tokenize
 
 __all__ = [

@@ -189,6 +189,13 @@ class _Parser:
         token = self.current
         if token.kind is Kind.END:
             return node
+        if token.kind is Kind.COMPARISON or (token.kind is Kind.NAME and token.text in KEYWORDS):
+            raise FormulaError(
+                f"{token.text!r} belongs to a condition, which lives in a piecewise definition: "
+                "{ x^2 if x < 1; 2*x - 1 otherwise }",
+                code="misplaced_condition",
+                column=token.column,
+            )
         if token.kind in (Kind.NUMBER, Kind.NAME, Kind.LPAREN):
             previous = self.tokens[self.index - 1].text
             if token.kind is Kind.NUMBER and token.text.startswith(".") and "." in previous:
@@ -205,13 +212,6 @@ class _Parser:
             )
         if token.kind is Kind.RPAREN:
             raise FormulaError("')' has no matching '('", code="unbalanced_parenthesis", column=token.column)
-        if token.kind is Kind.COMPARISON or (token.kind is Kind.NAME and token.text in KEYWORDS):
-            raise FormulaError(
-                f"{token.text!r} belongs to a condition, which lives in a piecewise definition: "
-                "{ x^2 if x < 1; 2*x - 1 otherwise }",
-                code="misplaced_condition",
-                column=token.column,
-            )
         raise self.unexpected("an operator")
 
     def expression(self) -> Node:
@@ -320,7 +320,7 @@ class _Parser:
             args += [value, self.condition()]
             if self.current.kind is Kind.SEMICOLON:
                 self.advance()
-                if self.current.kind is Kind.RBRACE:  # a trailing ';' is fine
+                if self.peek(0).kind is Kind.RBRACE:  # a trailing ';' is fine
                     break
                 continue
             if self.current.kind is Kind.RBRACE:
