@@ -258,3 +258,31 @@ def test_jumps_and_unbounded_slopes_cut_the_series(text: str, where, length: int
     ar = MpmathArithmetic(64)
     x = ar.hull(ar.exact(Fraction(where[0])), ar.exact(Fraction(where[1])))
     assert len(Program(parse(text), ar).taylor(x, 4)) == length
+
+
+@pytest.mark.parametrize("name", sorted(set(FUNCTIONS) - {"sign", "step", "j0", "j1"}))
+@given(data=st.data())
+def test_point_enclosures_are_tight(name: str, data) -> None:
+    """Containment alone would pass a loose enclosure: at a point, the width is a few units in the last place
+    (Bessel values, bounded through their slope, are checked in absolute terms below)."""
+    _, (low, high) = FUNCTIONS[name]
+    a, _, _, prec = data.draw(_interval_and_point(low, high))
+    a = Fraction(float(a))  # a float: exact at every precision drawn, so the width is the function's alone
+    for ar in (MpmathArithmetic(prec), FlintArithmetic(prec)):
+        try:
+            enclosure = ar.function(name, ar.exact(a))
+        except ArithmeticFault:
+            assume(False)
+            return
+        width = ar.width(enclosure)
+        size = max(abs(x) for x in ar.bounds(enclosure))
+        slack = 12 if isinstance(ar, MpmathArithmetic) else 30  # arb's own algorithms lose a few bits near poles
+        assert width <= 2.0 ** (slack - min(prec, 53)) * max(size, 2.0**-1000), (name, type(ar).__name__, a, prec)
+
+
+@pytest.mark.parametrize("order", [0, 1])
+@given(st.integers(-(10**6), 10**6))
+def test_bessel_point_enclosures_are_tight(order: int, hundredths: int) -> None:
+    ar = MpmathArithmetic(64)
+    enclosure = ar.bessel_j(order, ar.exact(Fraction(hundredths / 100)))  # a float, exact at 64 bits
+    assert ar.width(enclosure) <= 2.0**-50

@@ -28,6 +28,15 @@ def test_seed_inputs_pass_the_target() -> None:
         b"4^4^04e404^00^04e4",
         b"2^-" * 30 + b"x",
         b"x" + b"+x" * 400,
+        # piecewise definitions and the further functions
+        b"{x if x < 1; 2 if 1 <= x < k; a otherwise}",
+        b"{x if x < 1 or x > 2 and x <= 3;}",
+        b"{{x if x<0; 1 otherwise} if x > a; -x otherwise}",
+        b"{x otherwise}",
+        b"x < 1",
+        b"{x if not x < 1}",
+        b"atan2(x, a) + hypot(x, 1) + gamma(x) + j0(x) + step(x - k)",
+        b"{" * 70,
     ]:  # the last once overflowed the stack
         check_one(seed)
 

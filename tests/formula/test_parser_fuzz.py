@@ -6,7 +6,10 @@ from hypothesis import strategies as st
 from quadcert.errors import FormulaError
 from quadcert.formula import parse
 
-ALPHABET = st.sampled_from(list("x0123456789.e+-*/^(), ") + ["sin", "exp", "pi", "log", "abs", "min", "\u0445"])
+ALPHABET = st.sampled_from(
+    list("x0123456789.e+-*/^(), {};<>=")
+    + ["sin", "exp", "pi", "log", "abs", "min", "\u0445", " if ", " otherwise", " and ", " or ", "atan2", "step"]
+)
 
 
 @given(st.lists(ALPHABET, max_size=40).map("".join))

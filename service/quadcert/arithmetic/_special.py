@@ -43,21 +43,34 @@ def _raw(value: Fraction, prec: int, up: bool) -> tuple[int, int, int, int]:
 
 def _asinh_point(x: tuple[int, int, int, int], prec: int) -> Interval:
     """asinh at one point from log and sqrt by interval arithmetic (libmp's own asinh and acosh lose digits
-    to cancellation next to 0 and 1): below 1/2 the alternating series gives x − x³/6 ≤ asinh x ≤ x for
-    x ≥ 0; from 1/2 on, asinh x = log x + log(1 + sqrt(1 + 1/x²)), with nothing cancelling."""
+    to cancellation next to 0 and 1): asinh x = log x + log(1 + sqrt(1 + 1/x²)) with nothing cancelling from
+    1/2 on; below, log(x + sqrt(x² + 1)) with as many extra bits as x has leading zeros, intersected with the
+    alternating series' x − x³/6 ≤ asinh x ≤ x (x ≥ 0), which alone is tight once x is tiny."""
     if x[0]:
         return k.neg(_asinh_point(k._neg(x), prec))
     if x == ZERO:
         return Interval(ZERO, ZERO)
-    wp = prec + 16
     point = Interval(x, x)
+    one = k.from_int(1)
     if k._lt(x, _HALF):
+        wp = prec + 16 + min(_leading_zeros(x), 2 * prec)
         cube = k.mul_fraction(k.pow_int(point, 3, wp), Fraction(1, 6), wp)
-        return Interval(libmp.mpf_sub(x, cube.hi, prec, k.FLOOR), x)
-    inverse = k.div(k.from_int(1), point, wp)
-    root = k.sqrt(k.add(k.from_int(1), k.sqr(inverse, wp), wp), wp)
-    total = k.add(k.log(point, wp), k.log(k.add(k.from_int(1), root, wp), wp), wp)
-    return Interval(libmp.mpf_pos(total.lo, prec, k.FLOOR), libmp.mpf_pos(total.hi, prec, k.CEILING))
+        series = Interval(libmp.mpf_sub(x, cube.hi, wp, k.FLOOR), x)
+        logarithm = k.log(k.add(point, k.sqrt(k.add(one, k.sqr(point, wp), wp), wp), wp), wp)
+        return _rounded(k.intersect(series, logarithm), prec)
+    wp = prec + 16
+    inverse = k.div(one, point, wp)
+    root = k.sqrt(k.add(one, k.sqr(inverse, wp), wp), wp)
+    return _rounded(k.add(k.log(point, wp), k.log(k.add(one, root, wp), wp), wp), prec)
+
+
+def _leading_zeros(x: tuple[int, int, int, int]) -> int:
+    """How far below 1 the magnitude of x is, in bits (0 from 1/2 on)."""
+    return max(0, -(x[2] + x[3]))
+
+
+def _rounded(a: Interval, prec: int) -> Interval:
+    return Interval(libmp.mpf_pos(a.lo, prec, k.FLOOR), libmp.mpf_pos(a.hi, prec, k.CEILING))
 
 
 def asinh(a: Interval, prec: int) -> Interval:
@@ -85,22 +98,23 @@ def acosh(a: Interval, prec: int) -> Interval:
 
 
 def _atanh_point(x: tuple[int, int, int, int], prec: int) -> Interval:
-    """Below 1/2 the series x + x³/3 + x⁵/5 + … lies between x + x³/3 and x + x³/(3(1 − x²)) for x ≥ 0;
-    from 1/2 on, atanh x = log((1 + x)/(1 − x))/2, where 1 − x is exact and the quotient is at least 3."""
+    """atanh x = log((1 + x)/(1 − x))/2, where 1 − x is exact; below 1/2 with as many extra bits as x has
+    leading zeros, intersected with the series' bounds x + x³/3 ≤ atanh x ≤ x + x³/(3(1 − x²)) (x ≥ 0)."""
     if x[0]:
         return k.neg(_atanh_point(k._neg(x), prec))
     if x == ZERO:
         return Interval(ZERO, ZERO)
-    wp = prec + 16
     point = Interval(x, x)
     one = k.from_int(1)
+    wp = prec + 16 + (min(_leading_zeros(x), 2 * prec) if k._lt(x, _HALF) else 0)
+    ratio = k.div(k.add(one, point, wp), k.sub(one, point, wp), wp)
+    value = k.mul_fraction(k.log(ratio, wp), Fraction(1, 2), wp)
     if k._lt(x, _HALF):
         third_cube = k.mul_fraction(k.pow_int(point, 3, wp), Fraction(1, 3), wp)
         top = k.div(third_cube, k.sub(one, k.sqr(point, wp), wp), wp)
-        return Interval(libmp.mpf_add(x, third_cube.lo, prec, k.FLOOR), libmp.mpf_add(x, top.hi, prec, k.CEILING))
-    ratio = k.div(k.add(one, point, wp), k.sub(one, point, wp), wp)
-    value = k.mul_fraction(k.log(ratio, wp), Fraction(1, 2), wp)
-    return Interval(libmp.mpf_pos(value.lo, prec, k.FLOOR), libmp.mpf_pos(value.hi, prec, k.CEILING))
+        series = Interval(libmp.mpf_add(x, third_cube.lo, wp, k.FLOOR), libmp.mpf_add(x, top.hi, wp, k.CEILING))
+        value = k.intersect(series, value)
+    return _rounded(value, prec)
 
 
 def atanh(a: Interval, prec: int) -> Interval:
