@@ -3,8 +3,8 @@
     python -m benchmarks.redteam --minutes 30                  # the documented long run
     python -m benchmarks.redteam --cases 40 --seed 7           # a short smoke run (the tests run one)
 
-Formulas are random sums and products of analytic factors (exp, sin, cos, atan, tanh, erf, rational and
-shifted sqrt/log terms) with random rates, offsets and magnitudes, near underflow (1e-300, exp(-x) past 745,
+Formulas are random sums and products of factors (exp, sin, cos, atan, tanh, erf, asinh, erfc, gamma, j0,
+atanh, rational and shifted sqrt/log terms, a unit step and a piecewise definition with a jump) with random rates, offsets and magnitudes, near underflow (1e-300, exp(-x) past 745,
 e^-1000 scales) and near overflow (1e300, exp(x) up to 709) included, on random limits. Each case goes through:
 
 * ``default``: ``integrate()`` as a library caller gets it (compiled engine, then the reference backend);
@@ -67,7 +67,7 @@ def _factor(rng: random.Random) -> tuple[str, Callable[[Any, bool], Any]]:
     flint's ``analytic`` flag, without which acb.integral may integrate across a cut and return a wrong ball."""
     k = rng.choice([1, 2, 3, 5, 10, 50]) * rng.choice([1, -1])
     c = rng.choice([1, 2, 3, 7])
-    kind = rng.randrange(11)
+    kind = rng.randrange(18)
     if kind == 0:
         return f"exp({k}/10*x)", lambda x, _a: (A(k) / 10 * x).exp()
     if kind == 1:
@@ -86,6 +86,23 @@ def _factor(rng: random.Random) -> tuple[str, Callable[[Any, bool], Any]]:
         return f"sqrt({c} + x^2)", lambda x, analytic: (c + x * x).sqrt(analytic=analytic)
     if kind == 8:
         return f"log({c} + x^2)", lambda x, analytic: (c + x * x).log(analytic=analytic)
+    if kind == 11:
+        return f"asinh({k}/10*x)", lambda x, _a: (A(k) / 10 * x).asinh()
+    if kind == 12:
+        return f"erfc({k}/10*x)", lambda x, _a: (A(k) / 10 * x).erfc()
+    if kind == 13:
+        return f"gamma(1 + x^2/{50 * c})", lambda x, _a: (1 + x * x / (50 * c)).gamma()
+    if kind == 14:
+        return f"j0({k}/10*x)", lambda x, _a: (A(k) / 10 * x).bessel_j(0)
+    if kind == 15:
+        return f"atanh(x/{40 * c})", lambda x, _a: (x / (40 * c)).atanh()
+    if kind == 16:  # a jump: flint's analytic flag makes acb.integral split where the step is undecided
+        return f"step(x - {c})", lambda x, analytic: (x - c).real_heaviside(analytic=analytic)
+    if kind == 17:
+        return (
+            f"{{1 if x < {c}; 2 + x otherwise}}",
+            lambda x, analytic: 1 + (x - c).real_heaviside(analytic=analytic) * (1 + x),
+        )
     if kind == 9:
         n = rng.randrange(1, 7)
         return f"x^{n}", lambda x, _a: x**n

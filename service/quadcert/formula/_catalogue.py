@@ -13,7 +13,7 @@ from dataclasses import dataclass
 from fractions import Fraction
 
 from . import _limits
-from ._nodes import Binary, Call, Node, Number
+from ._nodes import Binary, Call, Node, Number, Variable, canonical_text
 
 
 @dataclass(frozen=True)
@@ -34,7 +34,7 @@ _ONE, _TWO = Number(Fraction(1)), Number(Fraction(2))
 CATALOGUE: tuple[Function, ...] = (
     Function("sqrt", (1, 1), "u ≥ 0", "square root"),
     Function("cbrt", (1, 1), "all real u", "real cube root, odd: cbrt(−8) = −2"),
-    Function("exp", (1, 1), "all real u (|u| ≤ 40000)", "exponential"),
+    Function("exp", (1, 1), "u ≤ 40000", "exponential"),
     Function("log", (1, 1), "u > 0", "natural logarithm (also ln)"),
     Function("log10", (1, 1), "u > 0", "logarithm to base 10"),
     Function("log2", (1, 1), "u > 0", "logarithm to base 2", lambda a: _ratio(Call("log", a), Call("log", (_TWO,)))),
@@ -60,8 +60,8 @@ CATALOGUE: tuple[Function, ...] = (
         "length sqrt(u² + v²)",
         lambda a: Call("sqrt", (Binary("+", Binary("^", a[0], _TWO), Binary("^", a[1], _TWO)),)),
     ),
-    Function("sinh", (1, 1), "all real u (|u| ≤ 40000)", "hyperbolic sine"),
-    Function("cosh", (1, 1), "all real u (|u| ≤ 40000)", "hyperbolic cosine"),
+    Function("sinh", (1, 1), "−40000 ≤ u ≤ 40000", "hyperbolic sine"),
+    Function("cosh", (1, 1), "−40000 ≤ u ≤ 40000", "hyperbolic cosine"),
     Function("tanh", (1, 1), "all real u", "hyperbolic tangent"),
     Function("asinh", (1, 1), "all real u", "inverse hyperbolic sine (also arsinh)"),
     Function("acosh", (1, 1), "u ≥ 1", "inverse hyperbolic cosine (also arcosh)"),
@@ -70,8 +70,8 @@ CATALOGUE: tuple[Function, ...] = (
     Function("erfc", (1, 1), "all real u", "complementary error function, 1 − erf(u), accurate where it is tiny"),
     Function("gamma", (1, 1), "u not 0, −1, −2, … (u ≤ 5000)", "Gamma function; gamma(n + 1) = n!"),
     Function("lgamma", (1, 1), "u > 0", "natural logarithm of the Gamma function"),
-    Function("j0", (1, 1), "all real u", "Bessel function of the first kind, order 0"),
-    Function("j1", (1, 1), "all real u", "Bessel function of the first kind, order 1"),
+    Function("j0", (1, 1), "−100000 ≤ u ≤ 100000", "Bessel function of the first kind, order 0"),
+    Function("j1", (1, 1), "−100000 ≤ u ≤ 100000", "Bessel function of the first kind, order 1"),
     Function("abs", (1, 1), "all real u", "absolute value"),
     Function("sign", (1, 1), "all real u", "−1 below 0, 0 at 0, 1 above 0"),
     Function("step", (1, 1), "all real u", "unit step: 0 below 0, 1 from 0 on (step(0) = 1)"),
@@ -90,6 +90,20 @@ ALIASES = {
     "arcosh": "acosh",
     "artanh": "atanh",
 }
+
+
+def reference_table() -> str:
+    """The functions as the Markdown table of docs/language.md (a test keeps the page equal to it)."""
+    rows = ["| function | arguments | domain | meaning | spelled out |", "| --- | --- | --- | --- | --- |"]
+    for f in CATALOGUE:
+        low, high = f.arguments
+        count = str(low) if low == high else f"{low} to {high}"
+        written = canonical_text(f.spelled_out(_SAMPLE[:high])) if f.spelled_out else ""
+        rows.append(f"| `{f.name}` | {count} | {f.domain} | {f.meaning} | {f'`{written}`' if written else ''} |")
+    return "\n".join(rows)
+
+
+_SAMPLE = (Variable("u"), Variable("v"))
 
 
 def spelled_out(name: str, args: tuple[Node, ...]) -> Node | None:
