@@ -4,8 +4,9 @@
     python -m benchmarks.redteam --cases 40 --seed 7           # a short smoke run (the tests run one)
 
 Formulas are random sums and products of factors (exp, sin, cos, atan, tanh, erf, asinh, erfc, gamma, j0,
-atanh, rational and shifted sqrt/log terms, a unit step and a piecewise definition with a jump) with random rates, offsets and magnitudes, near underflow (1e-300, exp(-x) past 745,
-e^-1000 scales) and near overflow (1e300, exp(x) up to 709) included, on random limits. Each case goes through:
+atanh, rational and shifted sqrt/log terms, a unit step and a piecewise definition with a jump) with random
+rates, offsets and magnitudes, near underflow (1e-300, exp(-x) past 745, e^-1000 scales) and near overflow
+(1e300, exp(x) up to 709) included, on random limits. Each case goes through:
 
 * ``default``: ``integrate()`` as a library caller gets it (compiled engine, then the reference backend);
 * ``mpmath`` and ``flint``: the arbitrary-precision engine alone on each backend;
