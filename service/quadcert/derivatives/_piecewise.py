@@ -118,7 +118,21 @@ def compile_cases(program: Program[E], node: Call) -> Compiled:
         assert value is not None
         return [value]
 
+    if not _has_variable(node):  # a constant definition (in a limit, say): decided once, here
+        return ("const", evaluate([ar.zero])[0])
     return ("series", evaluate)
+
+
+def _has_variable(node: Node) -> bool:
+    stack = [node]
+    while stack:
+        item = stack.pop()
+        if isinstance(item, Variable):
+            return True
+        stack.extend(getattr(item, "args", ()))
+        stack.extend(child for child in (getattr(item, "operand", None),) if child is not None)
+        stack.extend(getattr(item, name) for name in ("left", "right") if hasattr(item, name))
+    return False
 
 
 def _branch_value(
