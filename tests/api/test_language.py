@@ -16,7 +16,9 @@ def test_a_piecewise_load_is_certified_by_post_and_by_get(client: TestClient) ->
     result = answer.json()
     assert result["tolerance_met"] and encloses(tuple(result["enclosure"]), 45)
     assert result["integrand"] == "{5*x if x < 2; 10 if x < 5; 10*(6 - x) otherwise}"
-    cell = client.get("/v1/integral", params={"integrand": integrand, "lower_limit": 0, "upper_limit": 6, "tolerance": 1e-9})
+    cell = client.get(
+        "/v1/integral", params={"integrand": integrand, "lower_limit": 0, "upper_limit": 6, "tolerance": 1e-9}
+    )
     assert cell.status_code == 200, cell.text
     assert abs(float(cell.text) - 45) < 1e-8
 

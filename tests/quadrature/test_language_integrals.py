@@ -45,6 +45,9 @@ CLOSED_FORMS = [
     ("{sqrt(x) if x >= 0; sqrt(-x) otherwise}", -1, 1, R.mpf(4) / 3, "each branch only where its case holds"),
     ("{1 if sin(x) > 0; -1 otherwise}", 0, 7, 7 - 2 * R.pi, "π − π + (7 − 2π): jumps the engine finds itself"),
     ("{x^2 if x < 1/3; 1 - x otherwise}", 0, 1, R.mpf(1) / 81 + R.mpf(2) / 9, "jump at 1/3, not a float"),
+    ("{exp(-x) if x > 1; 1 otherwise}", 0, "inf", 1 + 1 / R.e, "1 + ∫₁^∞ e^(−x); the tail settles on one case"),
+    ("{0 if x < 2; 5*exp(2 - x) otherwise}", 0, "inf", R.mpf(5), "a load from x = 2 on, decaying"),
+    ("{exp(x) if x < -3; 0 otherwise}", "-inf", 0, R.exp(-3), "the left tail"),
 ]
 
 
@@ -89,6 +92,7 @@ def test_the_ball_backend_agrees(text: str, lower, upper, exact) -> None:
         ("gamma(x)", -1, 1, "gamma has a pole"),
         ("{x if x < 0}", -1, 1, "no case of the piecewise definition holds"),
         ("atan2(0, x)", -1, 1, "atan2 is undefined at (0, 0)"),
+        ("{exp(-x) if sin(x) > 0; exp(-2*x) otherwise}", 0, "inf", "does not settle"),
     ],
 )
 def test_refusals_say_why_and_where(text: str, lower, upper, words: str) -> None:

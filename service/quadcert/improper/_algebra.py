@@ -61,6 +61,8 @@ class Rules(Generic[Form]):
     """Sums, products, quotients, powers and the function rules common to both kinds of piece."""
 
     s: Scalars
+    formula: Formula
+    values: dict[str, Fraction]
 
     # -- supplied by the kind of piece -----------------------------------------------------------------
     def envelope(self, node: Node) -> Envelope[Form]:
@@ -112,10 +114,62 @@ class Rules(Generic[Form]):
             if node.op == "/":
                 return self.quotient_rule(self.envelope(node.left), self.envelope(node.right))
             return self.power_rule(node)
+        if isinstance(node, Call) and node.function == "cases":
+            return self.envelope(self.settled_case(node))
         if isinstance(node, Call):
             identity = _identity(node)
             return self.envelope(identity) if identity is not None else self.call(node)
         raise Unsupported(f"no rule for {type(node).__name__}")
+
+    # -- piecewise definitions: the case that holds on the whole piece ----------------------------------
+    def span(self) -> tuple[Fraction | None, Fraction | None]:
+        """The piece's x range (None for an infinite end); both ends count as open, since a singular point
+        itself and a tail's start are measure zero for the envelope."""
+        raise NotImplementedError
+
+    def settled_case(self, node: Call) -> Node:
+        """The branch of a piecewise definition that holds on the whole piece, found from conditions that
+        compare the variable with a constant; any other condition leaves the piece unsupported."""
+        args = node.args
+        for i in range(0, len(args), 2):
+            if i + 1 == len(args):
+                return args[i]  # otherwise
+            verdict = self.decide(args[i + 1])
+            if verdict is True:
+                return args[i]
+            if verdict is None:
+                raise Unsupported("a condition of a piecewise definition does not settle on this piece")
+        raise Unsupported("no case of a piecewise definition holds on this piece")
+
+    def decide(self, condition: Node) -> bool | None:
+        assert isinstance(condition, Call)
+        if condition.function in ("and", "or"):
+            verdicts = [self.decide(part) for part in condition.args]
+            if condition.function == "and":
+                return False if False in verdicts else (True if all(verdicts) else None)
+            return True if True in verdicts else (False if all(v is False for v in verdicts) else None)
+        left, right = condition.args  # < and <= settle alike on an open range
+        low, high = self.span()
+        for variable_side, other in ((left, right), (right, left)):
+            if not isinstance(variable_side, Variable) or _has_variable(other):
+                continue
+            try:
+                value = Program(Formula(other, self.formula.variable, self.formula.parameters), self.s.ar, self.values)
+                c_low, c_high = self.s.ar.bounds_exact(value.value(self.s.ar.zero))
+            except ArithmeticFault:
+                return None
+            if variable_side is left:  # x < c (or <=) on the open range (low, high)
+                if high is not None and high <= c_low:
+                    return True
+                if low is not None and low >= c_high:
+                    return False
+            else:  # c < x (or <=)
+                if low is not None and low >= c_high:
+                    return True
+                if high is not None and high <= c_low:
+                    return False
+            return None
+        return None
 
     def sum_rule(self, node: Binary) -> Envelope[Form]:
         left, right = self.envelope(node.left), self.envelope(node.right)
@@ -158,7 +212,7 @@ class Rules(Generic[Form]):
     def power_rule(self, node: Binary) -> Envelope[Form]:
         if _has_variable(node.right):  # g^h = exp(h·log g), defined for g > 0 only
             return self.envelope(Call("exp", (Binary("*", node.right, Call("log", (node.left,))),)))
-        return self.raise_to(self.envelope(node.left), _rational(node.right, self.values))  # type: ignore[attr-defined]
+        return self.raise_to(self.envelope(node.left), _rational(node.right, self.values))
 
     def raise_to(self, base: Envelope[Form], r: Fraction) -> Envelope[Form]:
         if r.denominator != 1 and (base.sign != 1 or (r < 0 and base.lower is None)):

@@ -94,6 +94,9 @@ class InTail(Rules[Growth]):
         s = self.s
         return s.ceiling_fraction(s.ar.mul(a.k, s.power(self.start_iv, a.p - 1)))
 
+    def span(self) -> tuple[Fraction | None, Fraction | None]:
+        return (self.start, None) if self.side > 0 else (None, -self.start)
+
     # -- rules ---------------------------------------------------------------------------------------
     def envelope(self, node: Node) -> TailEnvelope[Growth]:
         cached = self._memo.get(node)

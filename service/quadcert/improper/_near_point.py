@@ -145,6 +145,10 @@ class NearPoint(Rules[Power]):
         return ar.mul(a.k, ar.mul(s.power(self.delta_iv, a.p), s.power(self.log_delta, Fraction(a.q))))
 
     # -- rules ---------------------------------------------------------------------------------------
+    def span(self) -> tuple[Fraction | None, Fraction | None]:
+        ends = sorted((self.point, self.point + self.side * self.delta))
+        return ends[0], ends[1]
+
     def envelope(self, node: Node) -> Envelope[Power]:
         cached = self._memo.get(node)
         if cached is None:
