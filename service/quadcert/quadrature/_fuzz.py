@@ -4,8 +4,9 @@
 
 Each input that parses as a formula in x is compiled and run by the C engine over [0, 1] (and its Taylor
 enclosures over a small interval); the arbitrary-precision engine on the reference backend does the same
-work. Both are rigorous, so their enclosures must meet; a crash, an exception other than a coded one, or two
-disjoint enclosures is a finding.
+work. A formula the C engine hands over (a function it lacks, a piecewise definition) is integrated on both
+arbitrary-precision backends instead. Both sides are rigorous, so their enclosures must meet; a crash, an
+exception other than a coded one, or two disjoint enclosures is a finding.
 """
 
 from __future__ import annotations
@@ -32,7 +33,8 @@ def check_one(data: bytes) -> None:
         compiled = _fast.compile_formula(formula, {})
     except QuadcertError:
         return
-    if compiled is None:
+    if compiled is None:  # a formula the C engine hands over: the two arbitrary-precision backends must agree
+        _backends_meet(formula, text)
         return
     # Taylor enclosures over [0.25, 0.25 + 2^-10] against the reference backend at the interval's start
     assert _fast.AVAILABLE
@@ -57,6 +59,25 @@ def check_one(data: bytes) -> None:
         return
     if not _meet(outcome.enclosure, precise.enclosure):
         raise AssertionError(f"disjoint certificates for {text!r}: {outcome.enclosure} vs {precise.enclosure}")
+
+
+def _backends_meet(formula: object, text: str) -> None:
+    from ..arithmetic import FlintArithmetic, MpmathArithmetic, claim_flint_context, release_flint_context
+    from ..errors import QuadcertError
+    from ._request import integrate
+
+    results = []
+    claim_flint_context()  # the fuzz process, like a test, runs on one thread
+    try:
+        for backend in (MpmathArithmetic, FlintArithmetic):
+            try:
+                results.append(integrate(formula, 0, 1, 1e-6, max_nodes=801, deadline_seconds=2, arithmetic=backend))
+            except QuadcertError:
+                return
+    finally:
+        release_flint_context()
+    if not _meet(results[0].enclosure, results[1].enclosure):
+        raise AssertionError(f"backends disagree on {text!r}: {results[0].enclosure} vs {results[1].enclosure}")
 
 
 def main(argv: list[str]) -> None:
