@@ -69,3 +69,40 @@ def test_bounded_fuzz_run_finds_nothing(tmp_path) -> None:
     )
     assert done.returncode == 0, done.stderr[-3000:]
     assert "Done 3000 runs" in done.stderr
+
+
+def test_spelled_out_functions_compile_to_the_formula_itself() -> None:
+    """Found by the fuzz target: the compiler remembered which nodes involve x by their id, and the temporary
+    trees of spelled-out functions (hypot, log2, sec, ...) could hand their ids to later nodes, so log(x + 1)
+    was once compiled as a constant. Reference: the reference backend at 113 bits, and 60-digit mpmath."""
+    from fractions import Fraction
+
+    import mpmath
+
+    from quadcert import integrate
+    from quadcert.arithmetic import MpmathArithmetic
+    from quadcert.derivatives import Program
+    from quadcert.formula import parse
+    from quadcert.quadrature import _native
+    from tests.conftest import encloses
+
+    text = "hypot(x, 0.1)*log2(x + 1) + sec(x/3)*cot(x + 1) + csc(x + 2)*hypot(x, x + 1)"
+    ar = MpmathArithmetic(113)
+    for _ in range(100):  # id reuse depends on the allocator: the old code failed in most of these
+        formula = parse(text)
+        compiled = _fast._compile_cached.__wrapped__(formula, ())
+        ours = _native.taylor(compiled.code, compiled.constants, compiled.stack, 0.25, 0.25 + 2.0**-10, 2)
+        box = ar.hull(ar.exact(Fraction(1, 4)), ar.exact(Fraction(1, 4) + Fraction(1, 1024)))
+        reference = Program(formula, ar).taylor(box, 2)
+        for k, (low, high) in enumerate(ours):
+            ref_low, ref_high = ar.bounds(reference[k])
+            assert low <= ref_high and ref_low <= high, (k, (low, high), (ref_low, ref_high))
+    exact = mpmath.MPContext()
+    exact.dps = 60
+    f = lambda t: (
+        exact.hypot(t, exact.mpf("0.1")) * exact.log(t + 1, 2)
+        + exact.sec(t / 3) * exact.cot(t + 1)
+        + exact.csc(t + 2) * exact.hypot(t, t + 1)
+    )
+    result = integrate(text, 0, 1, 1e-9)
+    assert result.precision_bits == 53 and encloses(result.enclosure, exact.quad(f, [0, 1]))

@@ -86,7 +86,9 @@ class _Compiler:
         self.code: list[int] = []
         self.constants: list[tuple[float, float]] = []
         self.depth = self.most = 0
-        self.dependent: dict[int, bool] = {}  # id(node) -> does it involve the variable (computed once per node)
+        #: id(node) -> (node, does it involve the variable), computed once per node; the node is held so that a
+        #: spelled-out tree built during compilation cannot hand its id to a later one
+        self.dependent: dict[int, tuple[Node, bool]] = {}
 
     def emit(self, op: Op, arg: int = 0) -> None:
         self.code += [op, arg]
@@ -103,7 +105,8 @@ class _Compiler:
         self.emit(Op.CONST, len(self.constants) - 1)
 
     def depends(self, node: Node) -> bool:
-        known = self.dependent.get(id(node))
+        entry = self.dependent.get(id(node))
+        known = entry[1] if entry is not None and entry[0] is node else None  # an id is only unique while alive
         if known is None:
             if isinstance(node, Variable):
                 known = True
@@ -116,7 +119,7 @@ class _Compiler:
             else:
                 assert isinstance(node, Binary)
                 known = self.depends(node.left) | self.depends(node.right)
-            self.dependent[id(node)] = known
+            self.dependent[id(node)] = (node, known)  # holding the node keeps its id from being reused
         return known
 
     def node(self, node: Node) -> None:
@@ -127,8 +130,8 @@ class _Compiler:
         elif isinstance(node, Negate):
             self.node(node.operand)
             self.emit(Op.NEG)
-        elif isinstance(node, Call) and spelled_out(node.function, node.args) is not None:
-            self.node(spelled_out(node.function, node.args))  # type: ignore[arg-type]
+        elif isinstance(node, Call) and (written := spelled_out(node.function, node.args)) is not None:
+            self.node(written)
         elif isinstance(node, Call) and node.function not in FUNCTION_CODES and node.function not in ("min", "max"):
             raise _NotCompiled(node.function)
         elif isinstance(node, Call):

@@ -13,6 +13,10 @@ from __future__ import annotations
 
 import sys
 from fractions import Fraction
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from ..formula import Formula
 
 
 def _meet(a: tuple[float, float], b: tuple[float, float]) -> bool:
@@ -61,7 +65,7 @@ def check_one(data: bytes) -> None:
         raise AssertionError(f"disjoint certificates for {text!r}: {outcome.enclosure} vs {precise.enclosure}")
 
 
-def _backends_meet(formula: object, text: str) -> None:
+def _backends_meet(formula: Formula, text: str) -> None:
     from ..arithmetic import FlintArithmetic, MpmathArithmetic, claim_flint_context, release_flint_context
     from ..errors import QuadcertError
     from ._request import integrate
