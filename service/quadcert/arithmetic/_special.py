@@ -8,6 +8,7 @@ Precision is an argument, as everywhere in the kernels: nothing here touches a g
 from __future__ import annotations
 
 import threading
+from collections.abc import Callable
 from fractions import Fraction
 
 import mpmath
@@ -15,7 +16,7 @@ from mpmath import libmp
 
 from ..errors import DomainViolation, MagnitudeExceeded, Unbounded
 from . import _kernels as k
-from ._interval import ONE, ZERO, Interval
+from ._interval import ONE, ZERO, Interval, Raw
 
 _MINUS_ONE = libmp.from_int(-1)
 _TWO = libmp.from_int(2)
@@ -41,15 +42,33 @@ def _raw(value: Fraction, prec: int, up: bool) -> tuple[int, int, int, int]:
     return raw
 
 
-def _asinh_point(x: tuple[int, int, int, int], prec: int) -> Interval:
+PointEnclosure = Callable[[Raw, int], Interval]
+
+
+def _odd(positive: PointEnclosure) -> PointEnclosure:
+    """An odd function's enclosure at any point from the one at positive points: f(−x) = −f(x), f(0) = 0."""
+
+    def at(x: Raw, prec: int) -> Interval:
+        if x == ZERO:
+            return Interval(ZERO, ZERO)
+        if x[0]:
+            return k.neg(positive(k._neg(x), prec))
+        return positive(x, prec)
+
+    return at
+
+
+def _rising(at: PointEnclosure, a: Interval, prec: int) -> Interval:
+    """An increasing function over an interval, from enclosures at its two ends."""
+    low = at(a.lo, prec)
+    return low if a.is_point else Interval(low.lo, at(a.hi, prec).hi)
+
+
+def _asinh_positive(x: tuple[int, int, int, int], prec: int) -> Interval:
     """asinh at one point from log and sqrt by interval arithmetic (libmp's own asinh and acosh lose digits
     to cancellation next to 0 and 1): asinh x = log x + log(1 + sqrt(1 + 1/x²)) with nothing cancelling from
     1/2 on; below, log(x + sqrt(x² + 1)) with as many extra bits as x has leading zeros, intersected with the
     alternating series' x − x³/6 ≤ asinh x ≤ x (x ≥ 0), which alone is tight once x is tiny."""
-    if x[0]:
-        return k.neg(_asinh_point(k._neg(x), prec))
-    if x == ZERO:
-        return Interval(ZERO, ZERO)
     point = Interval(x, x)
     one = k.from_int(1)
     if k._lt(x, _HALF):
@@ -64,6 +83,9 @@ def _asinh_point(x: tuple[int, int, int, int], prec: int) -> Interval:
     return _rounded(k.add(k.log(point, wp), k.log(k.add(one, root, wp), wp), wp), prec)
 
 
+_asinh_point = _odd(_asinh_positive)
+
+
 def _leading_zeros(x: tuple[int, int, int, int]) -> int:
     """How far below 1 the magnitude of x is, in bits (0 from 1/2 on)."""
     return max(0, -(x[2] + x[3]))
@@ -74,8 +96,7 @@ def _rounded(a: Interval, prec: int) -> Interval:
 
 
 def asinh(a: Interval, prec: int) -> Interval:
-    low = _asinh_point(a.lo, prec)
-    return low if a.is_point else Interval(low.lo, _asinh_point(a.hi, prec).hi)
+    return _rising(_asinh_point, a, prec)
 
 
 def _acosh_point(x: tuple[int, int, int, int], prec: int) -> Interval:
@@ -97,13 +118,9 @@ def acosh(a: Interval, prec: int) -> Interval:
     return Interval(k._max(low.lo, ZERO), high.hi)
 
 
-def _atanh_point(x: tuple[int, int, int, int], prec: int) -> Interval:
+def _atanh_positive(x: tuple[int, int, int, int], prec: int) -> Interval:
     """atanh x = log((1 + x)/(1 − x))/2, where 1 − x is exact; below 1/2 with as many extra bits as x has
     leading zeros, intersected with the series' bounds x + x³/3 ≤ atanh x ≤ x + x³/(3(1 − x²)) (x ≥ 0)."""
-    if x[0]:
-        return k.neg(_atanh_point(k._neg(x), prec))
-    if x == ZERO:
-        return Interval(ZERO, ZERO)
     point = Interval(x, x)
     one = k.from_int(1)
     wp = prec + 16 + (min(_leading_zeros(x), 2 * prec) if k._lt(x, _HALF) else 0)
@@ -117,6 +134,9 @@ def _atanh_point(x: tuple[int, int, int, int], prec: int) -> Interval:
     return _rounded(value, prec)
 
 
+_atanh_point = _odd(_atanh_positive)
+
+
 def atanh(a: Interval, prec: int) -> Interval:
     if k._lt(a.hi, _MINUS_ONE) or k._gt(a.lo, ONE):
         raise DomainViolation(f"atanh is undefined on {k._text(a)}", certain=True)
@@ -124,17 +144,12 @@ def atanh(a: Interval, prec: int) -> Interval:
         raise Unbounded(f"atanh has a pole at {k._text(a)}", certain=True)
     if k._le(a.lo, _MINUS_ONE) or k._ge(a.hi, ONE):
         raise Unbounded(f"atanh has a pole at ±1, and its argument reaches {k._text(a)}", certain=False)
-    low = _atanh_point(a.lo, prec)
-    return low if a.is_point else Interval(low.lo, _atanh_point(a.hi, prec).hi)
+    return _rising(_atanh_point, a, prec)
 
 
-def _cbrt_point(x: tuple[int, int, int, int], prec: int) -> Interval:
+def _cbrt_positive(x: tuple[int, int, int, int], prec: int) -> Interval:
     """The cube root certified by cubing: libmp's root is only a candidate, and lo³ ≤ x ≤ hi³ is checked
     exactly (products without rounding), widening until it holds."""
-    if x[0]:
-        return k.neg(_cbrt_point(k._neg(x), prec))
-    if x == ZERO:
-        return Interval(ZERO, ZERO)
     guess = libmp.mpf_cbrt(x, prec + 8, k.NEAREST)
     slack = libmp.mpf_shift(guess, -prec)
     while True:
@@ -145,14 +160,16 @@ def _cbrt_point(x: tuple[int, int, int, int], prec: int) -> Interval:
         slack = libmp.mpf_shift(slack, 4)
 
 
+_cbrt_point = _odd(_cbrt_positive)
+
+
 def _cube(y: tuple[int, int, int, int]) -> tuple[int, int, int, int]:
     cube: tuple[int, int, int, int] = k._mul(k._mul(y, y), y)  # no precision given: exact
     return cube
 
 
 def cbrt(a: Interval, prec: int) -> Interval:
-    low = _cbrt_point(a.lo, prec)
-    return low if a.is_point else Interval(low.lo, _cbrt_point(a.hi, prec).hi)
+    return _rising(_cbrt_point, a, prec)
 
 
 def erfc(a: Interval, prec: int) -> Interval:
