@@ -41,9 +41,9 @@ class _Condition:
         self.kind = node.function
         self.parts = [_Condition(program, a) for a in node.args] if self.kind in ("and", "or") else []
         if not self.parts:
-            self.sides = [program._lift(program._compile(a)) for a in node.args]
-            self.on_variable = [isinstance(a, Variable) for a in node.args]
             self.constants = [program._compile(a) for a in node.args]
+            self.sides = [program._lift(compiled) for compiled in self.constants]
+            self.on_variable = [isinstance(a, Variable) for a in node.args]
 
     def verdict(self, ar: Arithmetic[Any], x: Any) -> Verdict:
         if self.kind == "and":

@@ -17,6 +17,7 @@ from fractions import Fraction
 from math import comb, factorial
 
 from ..arithmetic import Arithmetic
+from ..errors import DomainViolation
 from . import _series as s
 from ._series import E, Series
 
@@ -110,8 +111,6 @@ def atan2(ar: Arithmetic[E], y: Series[E], x: Series[E]) -> Series[E]:
 
 def atan2_value(ar: Arithmetic[E], y: E, x: E) -> tuple[E, bool]:
     """atan2(y, x) over a box, and whether the box misses the jump on the negative x axis."""
-    from ..errors import DomainViolation
-
     half_pi = ar.scale(ar.constant("pi"), Fraction(1, 2))
     if ar.sign(x) > 0:
         return ar.function("atan", ar.div(y, x)), True
