@@ -224,10 +224,14 @@ def erf(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
     value = ar.function("erf", u[0])
     if len(u) == 1:
         return [value]
+    return integrate(ar, value, erf_slope(ar, u), len(u))
+
+
+def erf_slope(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
+    """The series of erf(u)′ = (2/√π)·e^(−u²)·u′ (erfc's is its negative)."""
     two_over_root_pi = ar.div(ar.exact(Fraction(2)), ar.function("sqrt", ar.constant("pi")))
     gauss = exp(ar, neg(ar, square(ar, u[:-1])))
-    slope = mul_constant(ar, mul(ar, gauss, derivative(ar, u)), two_over_root_pi)
-    return integrate(ar, value, slope, len(u))
+    return mul_constant(ar, mul(ar, gauss, derivative(ar, u)), two_over_root_pi)
 
 
 def _lipschitz_cut(ar: Arithmetic[E], value: E, slopes: list[E], length: int) -> Series[E]:

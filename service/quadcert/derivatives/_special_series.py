@@ -85,7 +85,7 @@ def erfc(ar: Arithmetic[E], u: Series[E]) -> Series[E]:
     value = ar.function("erfc", u[0])
     if len(u) == 1:
         return [value]
-    return [value, *s.neg(ar, s.erf(ar, u)[1:])]
+    return s.integrate(ar, value, s.neg(ar, s.erf_slope(ar, u)), len(u))
 
 
 def piecewise_constant(name: str, ar: Arithmetic[E], u: Series[E]) -> Series[E]:
