@@ -26,6 +26,7 @@ _LAZY = {
     "integrate": "quadrature",
     "plan": "quadrature",
     "Request": "quadrature",
+    "Within": "arithmetic",
 }
 
 
@@ -53,6 +54,7 @@ __all__ = [
     "QuadcertError",
     "Request",
     "RulePlan",
+    "Within",
     "__version__",
     "check",
     "integrate",

@@ -57,6 +57,12 @@ class IntegralResult:
     bounds_used: dict[str, int] = field(default_factory=dict)
     applied_tolerance: float | None = None  # the absolute bound the error bound was held to: the tolerance,
     # or relative_tolerance × |integral| where that is larger
+    #: with parameters known within bounds (else None): the part of the enclosure's width their spread
+    #: accounts for, and half of the rest, which the tolerance applies to (docs/parameters.md)
+    parameter_spread: float | None = None
+    discretisation_bound: float | None = None
+    #: on request: parameter name -> an enclosure of ∂(integral)/∂(parameter) over the whole box
+    sensitivities: dict[str, tuple[float, float]] | None = None
 
 
 @dataclass(frozen=True)

@@ -9,6 +9,7 @@ from typing import TYPE_CHECKING, Any
 from ._backend import MAX_PRECISION, MIN_PRECISION, Arithmetic, Backend, MpmathArithmetic
 from ._interval import Interval, fraction_down, fraction_up, interval_text, shown, to_fraction
 from ._ownership import claim_flint_context, flint_context_claimed, release_flint_context
+from ._within import ParameterValue, Within, centre_of, spread_in, value_text
 
 if TYPE_CHECKING:
     from ._flint_backend import FlintArithmetic
@@ -31,6 +32,9 @@ __all__ = [
     "FlintArithmetic",
     "Interval",
     "MpmathArithmetic",
+    "ParameterValue",
+    "Within",
+    "centre_of",
     "claim_flint_context",
     "flint_context_claimed",
     "fraction_down",
@@ -38,5 +42,7 @@ __all__ = [
     "interval_text",
     "release_flint_context",
     "shown",
+    "spread_in",
     "to_fraction",
+    "value_text",
 ]

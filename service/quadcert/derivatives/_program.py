@@ -11,11 +11,11 @@ from collections.abc import Callable, Mapping
 from fractions import Fraction
 from typing import Any, Generic
 
-from ..arithmetic import Arithmetic
+from ..arithmetic import Arithmetic, ParameterValue, Within
 from ..errors import InvalidInput
 from ..formula import Binary, Call, Constant, Formula, Negate, Node, Number, Parameter, Variable
 from ..formula._catalogue import spelled_out
-from ..formula._nodes import distinct_arguments
+from ..formula._nodes import distinct_arguments, parameters_used
 from . import _series as series
 from . import _special_series as special
 from ._piecewise import compile_cases
@@ -65,7 +65,9 @@ class Program(Generic[E]):
     [(8.0, 8.0), (12.0, 12.0), (6.0, 6.0), (1.0, 1.0)]
     """
 
-    def __init__(self, formula: Formula, ar: Arithmetic[E], parameters: Mapping[str, Fraction] | None = None) -> None:
+    def __init__(
+        self, formula: Formula, ar: Arithmetic[E], parameters: Mapping[str, ParameterValue] | None = None
+    ) -> None:
         self.formula = formula
         self.ar = ar
         values = dict(parameters or {})
@@ -74,8 +76,15 @@ class Program(Generic[E]):
             raise InvalidInput(
                 f"no value given for parameter {missing[0]!r}", code="missing_parameter", field="parameters"
             )
-        self._parameters = {name: ar.exact(Fraction(value)) for name, value in values.items()}
+        # a parameter known within bounds is the interval of all its values: every enclosure then holds for
+        # the whole box at once
+        self._parameters = {
+            name: ar.hull(ar.exact(v.low), ar.exact(v.high)) if isinstance(v, Within) else ar.exact(Fraction(v))
+            for name, v in values.items()
+        }
         self._root = self._compile(formula.root)
+        #: whether the formula uses a parameter known only within bounds (its enclosures then carry that spread)
+        self.spread = any(isinstance(values.get(name), Within) for name in parameters_used(formula.root))
 
     @property
     def is_constant(self) -> bool:

@@ -65,6 +65,23 @@ def distinct_arguments(node: Call) -> tuple[Node, ...]:
     return tuple(dict.fromkeys(node.args))
 
 
+def parameters_used(node: Node) -> frozenset[str]:
+    """The names of the parameters a tree mentions.
+
+    >>> sorted(parameters_used(Binary("*", Parameter("k"), Call("sin", (Parameter("w"),)))))
+    ['k', 'w']
+    """
+    if isinstance(node, Parameter):
+        return frozenset((node.name,))
+    if isinstance(node, Negate):
+        return parameters_used(node.operand)
+    if isinstance(node, Binary):
+        return parameters_used(node.left) | parameters_used(node.right)
+    if isinstance(node, Call):
+        return frozenset().union(*(parameters_used(a) for a in node.args))
+    return frozenset()
+
+
 _PRECEDENCE = {"+": 1, "-": 1, "*": 2, "/": 2, "neg": 3, "^": 4}
 _ATOM = 5
 

@@ -12,7 +12,7 @@ from dataclasses import dataclass, replace
 from fractions import Fraction
 from typing import Any, Generic, TypeVar
 
-from ..arithmetic import Arithmetic, Interval
+from ..arithmetic import Arithmetic, Interval, ParameterValue
 from ..derivatives import Program
 from ..errors import ArithmeticFault
 from ..formula import Binary, Call, Formula, Negate, Node, Number, Variable
@@ -62,7 +62,7 @@ class Rules(Generic[Form]):
 
     s: Scalars
     formula: Formula
-    values: dict[str, Fraction]
+    values: dict[str, ParameterValue]
 
     # -- supplied by the kind of piece -----------------------------------------------------------------
     def envelope(self, node: Node) -> Envelope[Form]:
@@ -310,7 +310,7 @@ def _has_variable(node: Node) -> bool:
     return False
 
 
-def _rational(node: Node, values: Mapping[str, Fraction]) -> Fraction:
+def _rational(node: Node, values: Mapping[str, ParameterValue]) -> Fraction:
     """The exact value of a constant exponent (a rational is needed for the power algebra)."""
     try:
         exact: Program[Fraction] = Program(Formula(node, "_", tuple(values)), ExactArithmetic(), values)

@@ -13,7 +13,7 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 from fractions import Fraction
 
-from ..arithmetic import Interval
+from ..arithmetic import Interval, ParameterValue
 from ..derivatives import Program
 from ..errors import ArithmeticFault
 from ..formula import Call, Formula, Node, Variable
@@ -43,7 +43,7 @@ class InTail(Rules[Growth]):
     (Fraction(2, 1), Fraction(1, 1), 1)
     """
 
-    def __init__(self, formula: Formula, values: Mapping[str, Fraction], side: int, start: Fraction) -> None:
+    def __init__(self, formula: Formula, values: Mapping[str, ParameterValue], side: int, start: Fraction) -> None:
         if start < 1:
             raise ValueError("a tail starts at T ≥ 1")
         self.formula, self.values, self.side, self.start = formula, dict(values), side, start

@@ -23,7 +23,7 @@ from fractions import Fraction
 from math import ceil, floor
 from typing import Any
 
-from ..arithmetic import Interval
+from ..arithmetic import Interval, ParameterValue
 from ..derivatives import Program
 from ..errors import ArithmeticFault
 from ..formula import Binary, Call, Formula, Negate, Node
@@ -55,7 +55,7 @@ class NearPoint(Rules[Power]):
     def __init__(
         self,
         formula: Formula,
-        values: Mapping[str, Fraction],
+        values: Mapping[str, ParameterValue],
         point: Fraction,
         side: int,
         delta: Fraction,

@@ -18,7 +18,7 @@ from dataclasses import dataclass
 from fractions import Fraction
 from math import factorial
 
-from ..arithmetic import Interval
+from ..arithmetic import Interval, ParameterValue
 from ..arithmetic._interval import raw_down, raw_up
 from ..errors import ArithmeticFault, NotCertifiable
 from ..formula import Formula
@@ -101,7 +101,7 @@ def _near_integral(near: NearPoint, power: Power, delta: Fraction) -> Interval:
 
 
 def end_piece(
-    formula: Formula, values: Mapping[str, Fraction], point: Fraction, side: int, budget: Fraction, room: Fraction
+    formula: Formula, values: Mapping[str, ParameterValue], point: Fraction, side: int, budget: Fraction, room: Fraction
 ) -> Piece:
     """The piece (point, point + side·δ] with an enclosure no wider than budget, or a refusal.
 
@@ -196,7 +196,9 @@ def _tail_integral(tail: InTail, growth: Growth, T: Fraction) -> Interval | None
     return None
 
 
-def tail_piece(formula: Formula, values: Mapping[str, Fraction], side: int, start: Fraction, budget: Fraction) -> Piece:
+def tail_piece(
+    formula: Formula, values: Mapping[str, ParameterValue], side: int, start: Fraction, budget: Fraction
+) -> Piece:
     """The tail beyond side·T (T ≥ start) with an enclosure no wider than budget, or a refusal."""
     T = Fraction(1)
     while T < start:

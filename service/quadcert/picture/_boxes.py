@@ -13,7 +13,7 @@ from dataclasses import dataclass
 from fractions import Fraction
 from functools import partial
 
-from ..arithmetic import MpmathArithmetic
+from ..arithmetic import MpmathArithmetic, ParameterValue
 from ..derivatives import Program
 from ..errors import QuadcertError
 from ..formula import Formula
@@ -37,7 +37,7 @@ class Box:
     bound: str
 
 
-def boxes(formula: Formula, values: Mapping[str, Fraction], mesh: Sequence[PanelReport]) -> list[Box]:
+def boxes(formula: Formula, values: Mapping[str, ParameterValue], mesh: Sequence[PanelReport]) -> list[Box]:
     """A box per panel, in the mesh's order."""
     enclose = _enclosure(formula, values)
     result = []
@@ -86,7 +86,7 @@ def y_range(drawn: Sequence[Box]) -> tuple[float, float]:
     return low, high
 
 
-def _enclosure(formula: Formula, values: Mapping[str, Fraction]) -> Callable[[float, float], Range]:
+def _enclosure(formula: Formula, values: Mapping[str, ParameterValue]) -> Callable[[float, float], Range]:
     """f over [a, b] as two floats, or None; the compiled engine when the formula compiles."""
     compiled = _fast.compile_formula(formula, values) if _fast.AVAILABLE and _fast.trusted() else None
     if compiled is not None:

@@ -15,7 +15,7 @@ from dataclasses import replace
 from fractions import Fraction
 from typing import Any
 
-from ..arithmetic import MpmathArithmetic, fraction_down, fraction_up
+from ..arithmetic import MpmathArithmetic, ParameterValue, fraction_down, fraction_up
 from ..derivatives import Program
 from ..errors import ArithmeticFault, NotCertifiable
 from ..formula import Formula
@@ -60,7 +60,7 @@ def simplest_between(low: Fraction, high: Fraction) -> Fraction:
 class _Ends:
     """Order, exactness and singularity of the points that bound the stretches."""
 
-    def __init__(self, formula: Formula, values: Mapping[str, Fraction]) -> None:
+    def __init__(self, formula: Formula, values: Mapping[str, ParameterValue]) -> None:
         self.formula, self.values = formula, values
         self.ar = MpmathArithmetic(128)
         self.program = Program(formula, self.ar, values)
@@ -100,7 +100,7 @@ class _Ends:
 
 def integrate_pieces(
     formula: Formula,
-    values: Mapping[str, Fraction],
+    values: Mapping[str, ParameterValue],
     lower: Formula,
     upper: Formula,
     tolerance: float,
@@ -167,7 +167,7 @@ def _add_point(ends: _Ends, a: End, b: End, points: list[Fraction], refusal: Not
 
 def _assemble(
     formula: Formula,
-    values: Mapping[str, Fraction],
+    values: Mapping[str, ParameterValue],
     ends: _Ends,
     chain: list[End],
     tolerance: float,
@@ -206,6 +206,7 @@ def _assemble(
     mesh: list[PanelReport] = []
     bounds_used: dict[str, int] = {}
     precision = 53
+    spread = Fraction(0)
     for (start, stop), share, origin in zip(cuts, shares, origins):
         if origin is None:
             part = segment(
@@ -236,6 +237,7 @@ def _assemble(
         stops.append(part.stop)
         mesh.extend(part.mesh)
         precision = max(precision, part.precision_bits)
+        spread += part.spread
         for name, n in part.bounds_used.items():
             bounds_used[name] = bounds_used.get(name, 0) + n
     for piece in pieces:
@@ -256,6 +258,7 @@ def _assemble(
         tuple(mesh) if settings.include_mesh else (),
         bounds_used,
         precision,
+        spread,
     )
 
 
@@ -367,7 +370,13 @@ def _graded(ends: _Ends, start: Any, stop: Any, u: End, v: End, left: bool, righ
 
 
 def _piece(
-    formula: Formula, values: Mapping[str, Fraction], ends: _Ends, end: End, other: End, side: int, budget: Fraction
+    formula: Formula,
+    values: Mapping[str, ParameterValue],
+    ends: _Ends,
+    end: End,
+    other: End,
+    side: int,
+    budget: Fraction,
 ) -> Piece:
     if isinstance(end, int):  # a tail: it must start beyond the other end of its stretch
         other_bounds = ends.numeric(other) if not isinstance(other, int) else (Fraction(0), Fraction(0))

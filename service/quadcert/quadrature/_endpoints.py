@@ -4,12 +4,13 @@ from __future__ import annotations
 
 import math
 import re
+from collections.abc import Mapping
 from decimal import Decimal
 from fractions import Fraction
 from functools import lru_cache
 from typing import Any
 
-from ..arithmetic import Arithmetic
+from ..arithmetic import Arithmetic, ParameterValue
 from ..derivatives import Program
 from ..errors import FormulaError, InvalidInput, QuadcertError
 from ..formula import Constant, Formula, Negate, Number, parse
@@ -100,7 +101,7 @@ def exact_limit(formula: Formula) -> Fraction | None:
 _LIMIT_RANGE = Fraction(1e300)
 
 
-def check_limit(formula: Formula, parameters: dict[str, Fraction], field: str, ar: Arithmetic[Any]) -> None:
+def check_limit(formula: Formula, parameters: dict[str, ParameterValue], field: str, ar: Arithmetic[Any]) -> None:
     """Refuse a finite limit that does not evaluate, or lies beyond ±1e300, before any work is done. A plain
     numeral is checked by its exact value; anything else is enclosed once with ``ar``."""
     value = exact_limit(formula)
@@ -116,7 +117,7 @@ def _out_of_range(field: str) -> InvalidInput:
     )
 
 
-def enclose_limit(formula: Formula, ar: Arithmetic[Any], parameters: dict[str, Fraction], field: str) -> Any:
+def enclose_limit(formula: Formula, ar: Arithmetic[Any], parameters: Mapping[str, ParameterValue], field: str) -> Any:
     if infinite_side(formula):
         raise InvalidInput(
             f"{field} is infinite; this operation needs finite limits", code="infinite_limit", field=field

@@ -21,12 +21,12 @@ from dataclasses import dataclass
 from fractions import Fraction
 from functools import cache, lru_cache
 
-from ..arithmetic import MpmathArithmetic, fraction_down, fraction_up
+from ..arithmetic import MpmathArithmetic, ParameterValue, Within, fraction_down, fraction_up
 from ..derivatives import Program
 from ..errors import ArithmeticFault
 from ..formula import Binary, Call, Constant, Formula, Negate, Node, Number, Parameter, Variable
 from ..formula._catalogue import spelled_out
-from ..formula._nodes import distinct_arguments
+from ..formula._nodes import distinct_arguments, parameters_used
 from ..results import StopReason
 from ._native_tables import BINARY, EFFECT, FUNCTION_CODES, MAX_POWER, Op, Status, disagreement
 from ._peano import BOUND_NAMES
@@ -79,7 +79,7 @@ class FastOutcome:
 
 
 class _Compiler:
-    def __init__(self, formula: Formula, values: Mapping[str, Fraction]) -> None:
+    def __init__(self, formula: Formula, values: Mapping[str, ParameterValue]) -> None:
         self.formula = formula
         self.values = values
         self.ar = MpmathArithmetic(_FOLD_PRECISION)
@@ -179,8 +179,11 @@ class _NotCompiled(Exception):
     """A function the C engine does not evaluate: the formula goes to the precise engine, whole."""
 
 
-def compile_formula(formula: Formula, values: Mapping[str, Fraction]) -> Compiled | None:
-    """Instructions for the native engine, or None where a constant does not fit in float64."""
+def compile_formula(formula: Formula, values: Mapping[str, ParameterValue]) -> Compiled | None:
+    """Instructions for the native engine, or None where a constant does not fit in float64, or where a
+    parameter the formula uses is known only within bounds (the native stop rule reads the whole width)."""
+    if any(isinstance(values.get(name), Within) for name in parameters_used(formula.root)):
+        return None
     return _compile_cached(formula, tuple(sorted(values.items())))
 
 

@@ -4,6 +4,9 @@ from __future__ import annotations
 
 import math
 from decimal import ROUND_FLOOR, Decimal
+from fractions import Fraction
+
+from ..arithmetic import fraction_up
 
 
 def difference_up(x: float, y: float) -> float:
@@ -23,6 +26,18 @@ def error_bound(low: float, high: float) -> tuple[float, float]:
     value = low / 2 + high / 2
     value = min(max(value, low), high)
     return value, max(difference_up(value, low), difference_up(high, value))
+
+
+def discretisation_bound(low: float, high: float, spread: Fraction) -> float:
+    """Half of the enclosure's width left once the parameters' spread is taken out, rounded up: the part
+    that finer panels can still remove (the accounting of docs/parameters.md).
+
+    >>> discretisation_bound(1.0, 1.5, Fraction(1, 4))
+    0.125
+    """
+    if not (math.isfinite(low) and math.isfinite(high)):
+        return math.inf
+    return max(fraction_up((Fraction(high) - Fraction(low) - spread) / 2), 0.0)
 
 
 def certified_digits(low: float, high: float) -> str | None:

@@ -8,7 +8,7 @@ from collections.abc import Mapping
 from decimal import Decimal
 from fractions import Fraction
 
-from ..arithmetic import fraction_down
+from ..arithmetic import ParameterValue, Within, fraction_down
 from ..errors import InvalidInput
 from ..formula._limits import MAX_LITERAL_DIGITS, MAX_LITERAL_EXPONENT
 
@@ -132,9 +132,59 @@ def check_max_nodes(value: int) -> int:
     return value
 
 
-def check_parameters(parameters: Mapping[str, object] | None) -> dict[str, Fraction]:
+def check_parameters(parameters: Mapping[str, object] | None) -> dict[str, ParameterValue]:
+    """Each parameter's exact value, or its bounds when it is known only within them (see :func:`parameter_value`)."""
     if not parameters:
         return {}
     if len(parameters) > MAX_PARAMETERS:
         raise InvalidInput(f"at most {MAX_PARAMETERS} parameters", code="too_many_parameters", field="parameters")
-    return {str(name): exact_number(value, f"parameters.{name}") for name, value in parameters.items()}
+    return {str(name): parameter_value(value, f"parameters.{name}") for name, value in parameters.items()}
+
+
+#: ``1.99..2.01`` (low..high) and ``2±0.01`` or ``2+-0.01`` (centre ± radius), in text fields
+_BETWEEN = re.compile(r"(.+?)\.\.(.+)")
+_PLUS_MINUS = re.compile(r"(.+?)(?:±|\+-|\+/-)(.+)")
+
+
+def parameter_value(value: object, field: str) -> ParameterValue:
+    """A parameter's value: a number, or bounds it is known within.
+
+    Bounds come as a :class:`Within`, a mapping with exactly the keys ``low`` and ``high``, or text
+    ``low..high`` or ``centre±radius`` (``+-`` also reads as ±). Equal bounds are that one number.
+
+    >>> parameter_value("1.99..2.01", "k") == Within(Fraction("1.99"), Fraction("2.01"))
+    True
+    >>> parameter_value("2 ± 0.01", "k") == parameter_value({"low": "1.99", "high": 2.01}, "k")
+    True
+    >>> parameter_value("3..3", "k"), parameter_value(0.5, "k")
+    (Fraction(3, 1), Fraction(1, 2))
+    """
+    if isinstance(value, Within):
+        return value
+    if isinstance(value, Mapping):
+        if set(value) != {"low", "high"}:
+            raise InvalidInput(
+                f"{field} must be a number or an object with exactly the keys low and high",
+                code="invalid_parameter",
+                field=field,
+            )
+        return _bounds(exact_number(value["low"], f"{field}.low"), exact_number(value["high"], f"{field}.high"), field)
+    if isinstance(value, str) and len(value) <= 200:
+        between = _BETWEEN.fullmatch(value.strip())
+        if between:
+            low = exact_number(between.group(1), f"{field}.low")
+            return _bounds(low, exact_number(between.group(2), f"{field}.high"), field)
+        plus_minus = _PLUS_MINUS.fullmatch(value.strip())
+        if plus_minus:
+            centre = exact_number(plus_minus.group(1), field)
+            radius = exact_number(plus_minus.group(2), f"{field}.radius")
+            if radius < 0:
+                raise InvalidInput(f"{field}: the radius after ± must be >= 0", code="invalid_parameter", field=field)
+            return _bounds(centre - radius, centre + radius, field)
+    return exact_number(value, field)
+
+
+def _bounds(low: Fraction, high: Fraction, field: str) -> ParameterValue:
+    if low > high:
+        raise InvalidInput(f"{field}: the low bound is above the high one", code="invalid_parameter", field=field)
+    return low if low == high else Within(low, high)

@@ -9,14 +9,14 @@ from dataclasses import dataclass
 from fractions import Fraction
 from typing import TYPE_CHECKING, Any
 
-from ..arithmetic import Arithmetic, MpmathArithmetic, flint_context_claimed, fraction_down
+from ..arithmetic import Arithmetic, MpmathArithmetic, ParameterValue, flint_context_claimed, fraction_down, fraction_up
 from ..derivatives import Program
 from ..errors import ArithmeticFault, InvalidInput, NotCertifiable
 from ..formula import Formula
 from ..results import StopReason
-from . import _composite, _fast
+from . import _composite, _fast, _spread
 from ._endpoints import enclose_limit, exact_limit
-from ._finish import error_bound
+from ._finish import discretisation_bound, error_bound
 from ._result import IntegralResult, PanelReport
 from ._simpson import Refiner
 
@@ -56,6 +56,13 @@ def run(
     tolerance, relative = request.tolerance, request.relative_tolerance
     formula, values = request.formula, dict(request.values)
     lower_formula, upper_formula = request.lower, request.upper
+    spread_mode = _spread.spread_used(formula, (lower_formula, upper_formula), values)
+    edges: list[_spread.Edge] = []
+    lower, upper = lower_formula, upper_formula  # the limits integrated to: one number each
+    if spread_mode:
+        lower, lower_edge = _spread.fixed_limit(formula, lower_formula, values, "lower_limit", -1)
+        upper, upper_edge = _spread.fixed_limit(formula, upper_formula, values, "upper_limit", +1)
+        edges = [e for e in (lower_edge, upper_edge) if e is not None]
     if deadline_seconds is not None and not (math.isfinite(deadline_seconds) and deadline_seconds > 0):
         raise InvalidInput(
             "deadline_seconds must be a positive number", code="invalid_deadline", field="deadline_seconds"
@@ -71,11 +78,18 @@ def run(
         return max(tolerance, fraction_down(Fraction(relative) * Fraction(min(abs(low), abs(high)))))
 
     def finish(segment: Segment) -> IntegralResult:
-        low, high = segment.low, segment.high
+        low, high = _spread.widened(segment.low, segment.high, edges)
         value, bound = error_bound(low, high)
         if not math.isfinite(bound):
             raise NotCertifiable("the integral is beyond the float64 range", code="result_out_of_range")
-        met = bound <= target(low, high)
+        spread = discretisation = None
+        if spread_mode:  # the tolerance applies to what refinement can remove, not to the parameters' spread
+            edge_low, edge_high = _spread.edge_bounds(edges)
+            exact_spread = min(segment.spread + (edge_high - edge_low), Fraction(high) - Fraction(low))
+            spread, discretisation = fraction_up(exact_spread), discretisation_bound(low, high, exact_spread)
+            met = discretisation <= target(low, high)
+        else:
+            met = bound <= target(low, high)
         stop = _reported(segment.stop, met)
         return IntegralResult(
             value=value,
@@ -93,22 +107,20 @@ def run(
             precision_bits=segment.precision_bits,
             compute_seconds=time.perf_counter() - started,
             mesh=segment.mesh if include_mesh else None,
-            bounds_used=segment.bounds_used,
+            bounds_used=segment.bounds_used if not edges else {**segment.bounds_used, "limit_edge": len(edges)},
+            parameter_spread=spread,
+            discretisation_bound=discretisation,
         )
 
-    if lower_formula.text != upper_formula.text and _composite.needs_pieces(lower_formula, upper_formula):
-        return finish(
-            _composite.integrate_pieces(formula, values, lower_formula, upper_formula, tolerance, settings, segment)
-        )
+    if lower.text != upper.text and _composite.needs_pieces(lower, upper):
+        return finish(_composite.integrate_pieces(formula, values, lower, upper, tolerance, settings, segment))
     try:
-        return finish(segment(formula, values, lower_formula, upper_formula, target, tolerance, settings, relative))
+        return finish(segment(formula, values, lower, upper, target, tolerance, settings, relative))
     except NotCertifiable as refusal:
         if refusal.code not in _composite.INTERIOR_CODES or refusal.location is None:
             raise
         return finish(
-            _composite.integrate_pieces(
-                formula, values, lower_formula, upper_formula, tolerance, settings, segment, refusal=refusal
-            )
+            _composite.integrate_pieces(formula, values, lower, upper, tolerance, settings, segment, refusal=refusal)
         )
 
 
@@ -135,11 +147,12 @@ class Segment:
     mesh: tuple[PanelReport, ...]
     bounds_used: dict[str, int]
     precision_bits: int
+    spread: Fraction = Fraction(0)  # the width that parameters known within bounds account for
 
 
 def segment(
     formula: Formula,
-    values: dict[str, Fraction],
+    values: dict[str, ParameterValue],
     lower: Limit,
     upper: Limit,
     target: Callable[[float, float], float],
@@ -205,9 +218,9 @@ def segment(
         if outcome[1] != "resolution_limit" or attempts >= 3 or prec * 2 > 4096:
             break
         prec *= 2
-    enclosure, stop, nodes, panels, mesh, bounds_used = outcome
+    enclosure, stop, nodes, panels, mesh, bounds_used, spread = outcome
     low, high = ar.bounds(enclosure)
-    return Segment(low, high, stop, nodes, panels, mesh, bounds_used, prec)
+    return Segment(low, high, stop, nodes, panels, mesh, bounds_used, prec, spread)
 
 
 def _reported(stop: str, met: bool) -> StopReason:
@@ -225,7 +238,7 @@ def _same(lower: Limit, upper: Limit) -> bool:
     return isinstance(lower, Fraction) and isinstance(upper, Fraction) and lower == upper
 
 
-def _enclosure(limit: Limit, ar: Arithmetic[Any], values: dict[str, Fraction], field: str) -> object:
+def _enclosure(limit: Limit, ar: Arithmetic[Any], values: dict[str, ParameterValue], field: str) -> object:
     if isinstance(limit, Fraction):
         return ar.exact(limit)
     return enclose_limit(limit, ar, values, field)
@@ -233,7 +246,7 @@ def _enclosure(limit: Limit, ar: Arithmetic[Any], values: dict[str, Fraction], f
 
 def _try_fast(
     formula: Formula,
-    values: dict[str, Fraction],
+    values: dict[str, ParameterValue],
     lower: Limit,
     upper: Limit,
     tolerance: float,
@@ -278,7 +291,7 @@ def _try_fast(
     return outcome, low, high
 
 
-def _exact_bounds(limit: Limit, values: dict[str, Fraction], field: str) -> tuple[Fraction, Fraction]:
+def _exact_bounds(limit: Limit, values: dict[str, ParameterValue], field: str) -> tuple[Fraction, Fraction]:
     if isinstance(limit, Fraction):
         return limit, limit
     exact = exact_limit(limit)
@@ -298,11 +311,11 @@ def _run(
     deadline: float | None,
     target: Callable[[float, float], float],
     arithmetic: ArithmeticFactory,
-    values: dict[str, Fraction],
+    values: dict[str, ParameterValue],
     formula: Formula,
-) -> tuple[object, str, int, int, tuple[PanelReport, ...], dict[str, int]]:
+) -> tuple[object, str, int, int, tuple[PanelReport, ...], dict[str, int], Fraction]:
     if same_text:
-        return ar.zero, "tolerance_met", 0, 0, (), {}
+        return ar.zero, "tolerance_met", 0, 0, (), {}, Fraction(0)
     a_lo, a_hi = ar.bounds_exact(a)
     b_lo, b_hi = ar.bounds_exact(b)
     if a_hi < b_lo:
@@ -319,7 +332,9 @@ def _run(
                 code="unbounded_near",
                 location=ar.bounds(region),
             ) from None
-        return ar.mul(ar.sub(b, a), values_on), "tolerance_met", 0, 1, (), {"range": 1}
+        enclosure = ar.mul(ar.sub(b, a), values_on)
+        spread = Fraction(ar.width(enclosure)) if program.spread else Fraction(0)
+        return enclosure, "tolerance_met", 0, 1, (), {"range": 1}, spread
     fallback = None if isinstance(ar, MpmathArithmetic) else Program(formula, MpmathArithmetic(ar.prec), values)
     refiner = Refiner(
         program,
@@ -338,4 +353,5 @@ def _run(
         len(outcome.panels),
         refiner.mesh(outcome.panels, sign),
         refiner.bounds_used,
+        outcome.spread,
     )

@@ -14,10 +14,9 @@ from __future__ import annotations
 
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
-from fractions import Fraction
 from typing import Any
 
-from ..arithmetic import Arithmetic, MpmathArithmetic
+from ..arithmetic import Arithmetic, MpmathArithmetic, ParameterValue, value_text
 from ..formula import Formula, parse
 from . import _inputs
 from ._check import decide
@@ -44,7 +43,7 @@ class Request:
     tolerance: float  # the largest float64 not above the tolerance as typed
     relative_tolerance: float | None = None
     max_nodes: int = _inputs.DEFAULT_MAX_NODES
-    values: Mapping[str, Fraction] = field(default_factory=dict)  # parameter name -> its exact value
+    values: Mapping[str, ParameterValue] = field(default_factory=dict)  # name -> its exact value or bounds
 
     @classmethod
     def build(
@@ -83,7 +82,7 @@ class Request:
             "variable": self.formula.variable,
             "lower": self.lower.text,
             "upper": self.upper.text,
-            "parameters": {k: f"{v.numerator}/{v.denominator}" for k, v in sorted(self.values.items())},
+            "parameters": {k: value_text(v) for k, v in sorted(self.values.items())},
         }
 
     def integrate(

@@ -24,7 +24,7 @@ from ..arithmetic import Arithmetic, interval_text, shown
 from ..derivatives import Program
 from ..errors import ArithmeticFault, MagnitudeExceeded, NotCertifiable
 from . import _peano
-from ._finish import error_bound
+from ._finish import discretisation_bound, error_bound
 from ._result import PanelReport
 
 MAX_DEPTH = 60
@@ -47,6 +47,7 @@ class _Panel:
     width: float = math.inf
     centre: float = 0.0  # float midpoint of the enclosure, for the running estimate only
     fault: str = ""
+    spread: float = 0.0  # with parameters known within bounds: the width their spread accounts for
 
 
 @dataclass
@@ -55,10 +56,12 @@ class Outcome:
     panels: list[_Panel]
     nodes: int
     stop_reason: str
+    spread: Fraction = Fraction(0)  # the panels' spreads, summed exactly
 
 
-def _enclose(program: Program[Any], ar: Arithmetic[Any], panel: _Panel) -> tuple[Any, int]:
-    """Rigorous enclosure of the panel's integral: every available bound, intersected."""
+def _enclose(program: Program[Any], ar: Arithmetic[Any], panel: _Panel) -> tuple[Any, int, float]:
+    """Rigorous enclosure of the panel's integral: every available bound, intersected; with the width of
+    Simpson's sum itself (what parameters known within bounds, and rounding, put into the enclosure)."""
     series = program.taylor(ar.hull(panel.p, panel.q), 4)
     width = ar.sub(panel.q, panel.p)
     simpson = ar.scale(ar.mul(width, ar.add(ar.add(panel.fp, panel.fq), ar.scale(panel.fm, Fraction(4)))), _SIXTH)
@@ -75,7 +78,7 @@ def _enclose(program: Program[Any], ar: Arithmetic[Any], panel: _Panel) -> tuple
     enclosure = best
     for _, other in candidates:
         enclosure = ar.intersect(enclosure, other)
-    return enclosure, best_order
+    return enclosure, best_order, ar.width(simpson)
 
 
 class ExactSum:
@@ -113,6 +116,10 @@ class ExactSum:
         else:
             self.units -= units
 
+    def exact(self) -> Fraction:
+        """The sum as an exact rational (infinite terms are left out)."""
+        return Fraction(self.units, 1 << self._SCALE)
+
     def value(self) -> float:
         """The sum, correctly rounded (inf while an infinite term is in it, ±inf past the float range).
 
@@ -149,6 +156,8 @@ class Refiner:
         self.fallback = fallback  # a program on the reference backend, whose panels have exact endpoints
         self.values: dict[int, tuple[Any, Any]] = {}  # id(node) -> (node, value); nodes are shared objects
         self.bounds_used: dict[str, int] = {}
+        #: parameters known within bounds: refine and stop on the width bisection can remove, not the whole
+        self.spread = program.spread
 
     # -- function values at nodes --------------------------------------------------------------
     def value_at(self, node: Any) -> Any:
@@ -195,11 +204,11 @@ class Refiner:
         ar = self.ar
         try:
             try:
-                enclosure, order = _enclose(self.program, ar, panel)
+                enclosure, order, spread = _enclose(self.program, ar, panel)
             except ArithmeticFault as fault:
                 if fault.certain or self.fallback is None or isinstance(fault, MagnitudeExceeded):
                     raise
-                enclosure, order = self._enclose_on_fallback(panel)
+                enclosure, order, spread = self._enclose_on_fallback(panel)
         except MagnitudeExceeded as fault:
             panel.fault = fault.message
             return
@@ -214,8 +223,11 @@ class Refiner:
             panel.fault = fault.message
             return
         panel.enclosure, panel.order, panel.width = enclosure, order, ar.width(enclosure)
+        if self.spread:  # the heap and the stop rule see only what bisection can still remove
+            panel.spread = min(spread, panel.width)
+            panel.width -= panel.spread
 
-    def _enclose_on_fallback(self, panel: _Panel) -> tuple[Any, int]:
+    def _enclose_on_fallback(self, panel: _Panel) -> tuple[Any, int, float]:
         """The same panel on the reference backend (exact endpoints), converted back exactly."""
         assert self.fallback is not None
         ar, ref = self.ar, self.fallback.ar
@@ -223,8 +235,8 @@ class Refiner:
             ref.from_bounds(*ar.bounds_exact(v)) for v in (panel.p, panel.m, panel.q, panel.fp, panel.fm, panel.fq)
         )
         moved = _Panel(p, m, q, fp, fm, fq, panel.depth)
-        enclosure, order = _enclose(self.fallback, ref, moved)
-        return ar.from_bounds(*ref.bounds_exact(enclosure)), order
+        enclosure, order, spread = _enclose(self.fallback, ref, moved)
+        return ar.from_bounds(*ref.bounds_exact(enclosure)), order, spread
 
     def split(self, panel: _Panel) -> tuple[_Panel, _Panel]:
         return (
@@ -242,7 +254,7 @@ class Refiner:
         # running sums kept exactly: a float sum that loses a dominant first panel (1e10 wide where the
         # rest is 1e-10) would keep its rounding error of about 1e-6 for good, and the loop would refine
         # far past the tolerance before its estimate came down
-        width_sum, centre_sum = ExactSum(), ExactSum()
+        width_sum, centre_sum, spread_sum = ExactSum(), ExactSum(), ExactSum()
         next_check = math.inf  # check exactly once the estimate drops below this
 
         def push(panel: _Panel) -> None:
@@ -253,6 +265,7 @@ class Refiner:
                 unresolved += 1
             else:
                 width_sum.add(panel.width)
+                spread_sum.add(panel.spread)
                 panel.centre = sum(self.ar.bounds(panel.enclosure)) / 2
                 centre_sum.add(panel.centre)
 
@@ -263,6 +276,7 @@ class Refiner:
                 unresolved -= 1
             else:
                 width_sum.remove(panel.width)
+                spread_sum.remove(panel.spread)
                 centre_sum.remove(panel.centre)
             return panel
 
@@ -274,7 +288,12 @@ class Refiner:
                 half = widths / 2
                 near_target = half <= target(centre - half, centre + half) * 1.01
                 at_float_floor = widths <= _FLOOR_ULPS * math.ulp(centre)
-                if (near_target or at_float_floor) and widths < next_check:
+                if self.spread and near_target and widths < next_check:
+                    low, high = self.ar.bounds(self.total(p for _, _, p in heap))
+                    if discretisation_bound(low, high, spread_sum.exact()) <= target(low, high):
+                        break
+                    next_check = widths * 0.95
+                elif not self.spread and (near_target or at_float_floor) and widths < next_check:
                     low, high = self.ar.bounds(self.total(p for _, _, p in heap))
                     if error_bound(low, high)[1] <= target(low, high):
                         break
@@ -306,7 +325,7 @@ class Refiner:
         for panel in panels:
             name = _peano.BOUND_NAMES[panel.order]
             self.bounds_used[name] = self.bounds_used.get(name, 0) + 1
-        return Outcome(self.total(panels), panels, len(self.values), stop)
+        return Outcome(self.total(panels), panels, len(self.values), stop, spread_sum.exact())
 
     def _unbounded(self, panel: _Panel, budget: bool = False) -> NotCertifiable:
         lo, hi = self.ar.bounds(self.ar.hull(panel.p, panel.q))
