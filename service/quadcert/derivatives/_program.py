@@ -78,13 +78,15 @@ class Program(Generic[E]):
             )
         # a parameter known within bounds is the interval of all its values: every enclosure then holds for
         # the whole box at once
+        used = parameters_used(formula.root)  # only these are enclosed: an exact-only backend takes no bounds
         self._parameters = {
             name: ar.hull(ar.exact(v.low), ar.exact(v.high)) if isinstance(v, Within) else ar.exact(Fraction(v))
             for name, v in values.items()
+            if name in used
         }
         self._root = self._compile(formula.root)
         #: whether the formula uses a parameter known only within bounds (its enclosures then carry that spread)
-        self.spread = any(isinstance(values.get(name), Within) for name in parameters_used(formula.root))
+        self.spread = any(isinstance(values.get(name), Within) for name in used)
 
     @property
     def is_constant(self) -> bool:

@@ -50,8 +50,32 @@ def run(
     include_mesh: bool = False,
     precision_bits: int | None = None,
     arithmetic: ArithmeticFactory | None = None,
+    sensitivities: bool = False,
 ) -> IntegralResult:
     """The certified integral of a validated request (see :func:`quadcert.integrate` for the options)."""
+    result = _integral(request, deadline_seconds, include_mesh, precision_bits, arithmetic)
+    if not sensitivities:
+        return result
+    from dataclasses import replace
+
+    from ._sensitivity import sensitivities as enclose_sensitivities
+
+    deadline = None if deadline_seconds is None else time.monotonic() + deadline_seconds - result.compute_seconds
+
+    def integral(derivative: Request) -> IntegralResult:
+        remaining = None if deadline is None else max(1e-3, deadline - time.monotonic())
+        return _integral(derivative, remaining, False, precision_bits, arithmetic)
+
+    return replace(result, sensitivities=enclose_sensitivities(request, integral))
+
+
+def _integral(
+    request: Request,
+    deadline_seconds: float | None,
+    include_mesh: bool,
+    precision_bits: int | None,
+    arithmetic: ArithmeticFactory | None,
+) -> IntegralResult:
     started = time.perf_counter()
     tolerance, relative = request.tolerance, request.relative_tolerance
     formula, values = request.formula, dict(request.values)

@@ -92,6 +92,7 @@ class Request:
         include_mesh: bool = False,
         precision_bits: int | None = None,
         arithmetic: ArithmeticFactory | None = None,
+        sensitivities: bool = False,
     ) -> IntegralResult:
         """The certified integral; see :func:`integrate` for the options."""
         return run(
@@ -100,6 +101,7 @@ class Request:
             include_mesh=include_mesh,
             precision_bits=precision_bits,
             arithmetic=arithmetic,
+            sensitivities=sensitivities,
         )
 
     def check(
@@ -127,6 +129,7 @@ def integrate(
     include_mesh: bool = False,
     precision_bits: int | None = None,
     arithmetic: ArithmeticFactory | None = None,
+    sensitivities: bool = False,
 ) -> IntegralResult:
     """Certified ∫ integrand d(variable) from lower_limit to upper_limit.
 
@@ -136,13 +139,18 @@ def integrate(
             read exactly, a float as the shortest decimal that prints it. The limits may be in either order.
         tolerance: absolute target for the error bound (in [1e-60, 1e300]; text is read exactly).
         variable: the integration variable's name.
-        parameters: name → number (or text) for the formula's other names.
+        parameters: name → number (or text) for the formula's other names; a parameter known only within
+            bounds is a :class:`Within`, ``{"low": …, "high": …}`` or text ``"1.99..2.01"`` / ``"2±0.01"``.
+            The enclosure then holds for every value in the box; the tolerance applies to the
+            ``discretisation_bound``, and ``parameter_spread`` gives the width the bounds account for.
         relative_tolerance: also accept a bound ≤ this × |integral| (below 1).
         max_nodes: evaluation budget; past it the rigorous enclosure so far is returned, not met.
         deadline_seconds: wall-clock budget; past it, likewise.
         include_mesh: also return every panel with its contribution and the bound that certified it.
         precision_bits: force this working precision of the arbitrary-precision engine (53 to 4096).
         arithmetic: force a backend class (``MpmathArithmetic`` or ``FlintArithmetic``).
+        sensitivities: also enclose ∂(integral)/∂(parameter) over the box, for every parameter; each is one
+            more certified integral (of the formula's derivative), with the same tolerance and budget.
 
     Returns an :class:`IntegralResult`; raises :class:`FormulaError`, :class:`InvalidInput` or
     :class:`NotCertifiable` (each with a ``code``) when it cannot answer.
@@ -166,6 +174,7 @@ def integrate(
         include_mesh=include_mesh,
         precision_bits=precision_bits,
         arithmetic=arithmetic,
+        sensitivities=sensitivities,
     )
 
 
