@@ -178,8 +178,22 @@ def integral_body(result: IntegralResult | dict[str, Any], request: dict[str, An
         "compute_seconds": data["compute_seconds"],
         "engine_version": ENGINE_VERSION,
         "bounds_used": data["bounds_used"],
+        "parameter_spread": _up(data.get("parameter_spread")),
+        "discretisation_bound": _up(data.get("discretisation_bound")),
+        "sensitivities": _pairs(data.get("sensitivities")),
         "mesh": [_panel(p) for p in mesh] if mesh else None,
     }
+
+
+def _up(value: float | None) -> Any:
+    return None if value is None else bound_decimal(value, up=True)
+
+
+def _pairs(pairs: Mapping[str, Any] | None) -> dict[str, list[Any]] | None:
+    """Enclosures by name, printed outward."""
+    if pairs is None:
+        return None
+    return {name: [outward(low, up=False), outward(high, up=True)] for name, (low, high) in pairs.items()}
 
 
 def _fields(result: Any) -> dict[str, Any]:
@@ -264,7 +278,14 @@ def integral_from(body: Mapping[str, Any]) -> IntegralResult:
     return _read(
         IntegralResult,
         body,
-        {"enclosure": tuple, "bounds_used": dict, "mesh": lambda mesh: tuple(_panel_from(p) for p in mesh) or None},
+        {
+            "enclosure": tuple,
+            "bounds_used": dict,
+            "mesh": lambda mesh: tuple(_panel_from(p) for p in mesh) or None,
+            "parameter_spread": float,
+            "discretisation_bound": float,
+            "sensitivities": lambda pairs: {k: (float(v[0]), float(v[1])) for k, v in pairs.items()},
+        },
     )
 
 

@@ -77,7 +77,14 @@ class Computation:
             **request.canonical(),
             **{
                 k: _exact_text(body.get(k))
-                for k in ("tolerance", "relative_tolerance", "max_nodes", "include_mesh", "claimed_value")
+                for k in (
+                    "tolerance",
+                    "relative_tolerance",
+                    "max_nodes",
+                    "include_mesh",
+                    "claimed_value",
+                    "sensitivities",
+                )
                 if k in body
             },
         }
@@ -108,6 +115,7 @@ class Computation:
             claimed_value=body.get("claimed_value"),
             deadline_seconds=None if kind == "plan" else deadline * 0.8,
             picture="svg" if kind == "picture-svg" else "json",
+            options={"sensitivities": True} if body.get("sensitivities") and kind in ("integral", "check") else {},
         )
 
     async def _run(

@@ -57,7 +57,9 @@ def run_integral(job: Job, left: float | None) -> dict[str, Any]:
 
 
 def run_check(job: Job, left: float | None) -> dict[str, Any]:
-    result = job.request.check(job.claimed_value, deadline_seconds=job.seconds(left), include_mesh=job.include_mesh)
+    result = job.request.check(
+        job.claimed_value, deadline_seconds=job.seconds(left), include_mesh=job.include_mesh, **job.options
+    )
     return check_body(result, job.echo)
 
 

@@ -145,6 +145,11 @@ PROBLEM_TYPES: dict[str, tuple[int | None, str, str]] = {
     "mesh_too_large": (422, "The mesh is too large to send", "Ask without include_mesh, or with a looser tolerance."),
     # certification
     "not_certifiable": (422, _CERTIFY, "The engine cannot certify this integral; 'detail' says why."),
+    "sensitivity_unavailable": (
+        422,
+        "No certified sensitivity for a parameter",
+        "A jump moves with the parameter, or its derivative needs a function the language lacks; ask without them.",
+    ),
     "unbounded_near": (
         422,
         "The integrand may be unbounded or undefined near a point",

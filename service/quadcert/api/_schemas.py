@@ -51,6 +51,25 @@ class _Strict(BaseModel):
     model_config = ConfigDict(extra="forbid")
 
 
+class ParameterBounds(_Strict):
+    """A parameter known only within [low, high]: the answer holds for every value between."""
+
+    low: Number
+    high: Number
+
+
+#: a parameter's value: a number, text (an exact decimal, "1.99..2.01" or "2±0.01"), or bounds
+ParameterValue = Number | Annotated[StrictStr, Field(max_length=80)] | ParameterBounds
+Parameters = Annotated[
+    dict[Annotated[str, Field(max_length=64)], ParameterValue],
+    Field(
+        max_length=32,
+        description="Values of the formula's other names. A value known only within bounds is "
+        '{"low": …, "high": …} or text "1.99..2.01" / "2±0.01"; the enclosure then holds for every value in the box.',
+    ),
+]
+
+
 class IntegralRequest(_Strict):
     integrand: Annotated[
         StrictStr,
@@ -67,11 +86,14 @@ class IntegralRequest(_Strict):
         ),
     ] = Decimal("1e-8")
     relative_tolerance: Number | None = Field(None, description="Also accept error <= this × |integral|")
-    parameters: dict[Annotated[str, Field(max_length=64)], Number | Annotated[StrictStr, Field(max_length=80)]] = Field(
-        default_factory=dict, max_length=32
-    )
+    parameters: Parameters = Field(default_factory=dict)
     max_nodes: StrictInt | None = Field(None, description="Evaluation budget; the server default applies if absent")
     include_mesh: StrictBool = False
+    sensitivities: StrictBool = Field(
+        False,
+        description="Also enclose ∂(integral)/∂(parameter) over the box, for every parameter: one more certified "
+        "integral each, with the same tolerance and budget",
+    )
 
 
 class CheckRequest(IntegralRequest):
@@ -84,9 +106,7 @@ class PlanRequest(_Strict):
     lower_limit: Limit
     upper_limit: Limit
     tolerance: Annotated[Number, Field(json_schema_extra={"default": 1e-8})] = Decimal("1e-8")
-    parameters: dict[Annotated[str, Field(max_length=64)], Number | Annotated[StrictStr, Field(max_length=80)]] = Field(
-        default_factory=dict, max_length=32
-    )
+    parameters: Parameters = Field(default_factory=dict)
 
 
 class BatchRequest(_Strict):
@@ -123,6 +143,19 @@ class IntegralResponse(BaseModel):
     cached: bool
     engine_version: str
     bounds_used: dict[str, int]
+    parameter_spread: float | None = Field(
+        None,
+        description="With parameters known within bounds: the part of the enclosure's width that their spread "
+        "accounts for (rounded up)",
+    )
+    discretisation_bound: float | None = Field(
+        None,
+        description="With parameters known within bounds: half of the rest of the width, which finer panels can "
+        "remove; the tolerance applies to this (rounded up)",
+    )
+    sensitivities: dict[str, Pair] | None = Field(
+        None, description="On request: an enclosure of ∂(integral)/∂(parameter) over the whole box, per parameter"
+    )
     mesh: list[Panel] | None = None
 
 

@@ -71,7 +71,13 @@ def _common(parser: argparse.ArgumentParser, tolerance_required: bool = False) -
         help="absolute tolerance, read as the exact decimal typed" + ("" if tolerance_required else " (default 1e-8)"),
     )
     parser.add_argument("--var", default="x", help="name of the integration variable (default x)")
-    parser.add_argument("--param", action="append", default=[], metavar="NAME=VALUE", help="a named parameter")
+    parser.add_argument(
+        "--param",
+        action="append",
+        default=[],
+        metavar="NAME=VALUE",
+        help="a named parameter: a number, or bounds it is known within (k=1.99..2.01 or k=2±0.01)",
+    )
     parser.add_argument("--url", help="use the service at this URL (http://host:port) instead of computing in-process")
     _timeout(parser)
 
@@ -123,6 +129,8 @@ def _integrate(args: argparse.Namespace) -> int:
     options = _engine_options(args)
     if args.mesh:
         options["include_mesh"] = True
+    if args.sensitivities:
+        options["sensitivities"] = True
     if args.plot:
         result = _plot(args, options)
     elif args.url:
@@ -186,6 +194,15 @@ def _describe(result: IntegralResult) -> str:
         f"error bound  {shown(result.error_bound, 6, 'up')}  (tolerance {target}: {status})",
         f"nodes        {result.nodes}  panels {result.panels}",
     ]
+    if result.parameter_spread is not None and result.discretisation_bound is not None:
+        lines[3] = f"error bound  {shown(result.error_bound, 6, 'up')}  (for every parameter value in the box)"
+        lines.insert(
+            4,
+            f"of which     parameter spread {shown(result.parameter_spread, 6, 'up')} wide, discretisation "
+            f"{shown(result.discretisation_bound, 6, 'up')}  (tolerance {target}: {status})",
+        )
+    for name, (low, high) in (result.sensitivities or {}).items():
+        lines.append(f"d/d{name:<9} [{bound_text(low, up=False)}, {bound_text(high, up=True)}]")
     if result.mesh:
         lines.append("mesh:")
         lines.extend(
@@ -461,6 +478,11 @@ def build_parser() -> argparse.ArgumentParser:
         help="evaluation budget (default 200001); past it the enclosure is returned, not certified",
     )
     one.add_argument("--mesh", action="store_true", help="also print every panel")
+    one.add_argument(
+        "--sensitivities",
+        action="store_true",
+        help="also enclose the integral's derivative in every parameter, over the parameters' bounds",
+    )
     one.add_argument(
         "--plot", metavar="FILE.svg", help="also draw how the certificate was earned, as an SVG picture for reports"
     )

@@ -41,5 +41,8 @@ def decide(
         if near > allowed:
             return CheckResult("fail", claimed_value, allowed, (near, far), result)
         engine_tolerance /= 64
-        if result.stop_reason != "tolerance_met" or engine_tolerance < _inputs.MIN_TOLERANCE:
+        spread_decides = result.parameter_spread is not None and result.parameter_spread > allowed
+        # with parameters known within bounds, finer panels cannot narrow their spread: once it alone is wider
+        # than the tolerance the claim fits some values in the box and not others, for good
+        if result.stop_reason != "tolerance_met" or engine_tolerance < _inputs.MIN_TOLERANCE or spread_decides:
             return CheckResult("undecided", claimed_value, allowed, (near, far), result)

@@ -219,6 +219,10 @@ def segment(
             )
     prec = settings.precision_bits or min(max(choose_precision(tolerance), precision_floor), 4096)
     arithmetic = settings.arithmetic or default_arithmetic()
+    if settings.arithmetic is None and _spread.spread_used(formula, (), values):
+        # a ball's radius is kept to 30 bits: with a parameter's spread in it, that rounding alone would
+        # outgrow the discretisation part the stop rule reads; intervals keep both ends at full precision
+        arithmetic = MpmathArithmetic
     attempts = 0
     while True:
         ar = arithmetic(prec)
