@@ -137,3 +137,16 @@ def test_batch_reads_spreadsheet_exports_and_parameter_columns(tmp_path, capsys)
         row = dict(zip(header, line.split(";")))
         assert float(row["low"]) <= k / 2 <= float(row["high"])
         assert row["status"] == "certified" and row["detail"] == ""  # success rows leave detail empty
+
+
+def test_integrate_with_bounds_and_sensitivities(capsys) -> None:
+    argv = ["integrate", "P*x*(L - x)", "0", "L", "--param", "P=1.9..2.1", "--param", "L=10±0.05", "--tol", "1e-9"]
+    assert main([*argv, "--sensitivities"]) == 0
+    out = capsys.readouterr().out
+    assert "parameter spread" in out and "d/dP" in out and "d/dL" in out and "certified" in out
+    assert main([*argv, "--json"]) == 0
+    body = json.loads(capsys.readouterr().out)
+    # ∫₀ᴸ P·x·(L − x) dx = P·L³/6 (closed form), at the box's extreme corners
+    assert encloses(body["enclosure"], HP.mpf("1.9") * HP.mpf("9.95") ** 3 / 6)
+    assert encloses(body["enclosure"], HP.mpf("2.1") * HP.mpf("10.05") ** 3 / 6)
+    assert body["discretisation_bound"] is not None and body["sensitivities"] is None
