@@ -131,6 +131,20 @@ def test_sensitivities_contain_a_high_precision_difference_quotient(case, rng) -
     dw = (_reference(name, kk, ww + h, a, b) - _reference(name, kk, ww - h, a, b)) / (2 * h)
     assert _contains(result.sensitivities["k"], dk), (name, k, w, a, b, result.sensitivities, dk)
     assert _contains(result.sensitivities["w"], dw), (name, k, w, a, b, result.sensitivities, dw)
+    # with sensitivities the enclosure is also narrowed by the mean-value form: still every value in the box
+    for kc, wc in [*((_mp(x), _mp(y)) for x, y in itertools.product(k, w)), (kk, ww)]:
+        assert _contains(result.enclosure, _reference(name, kc, wc, a, b)), (name, k, w, a, b, kc, wc)
+
+
+def test_the_mean_value_form_narrows_an_oscillating_family() -> None:
+    # ∫₀¹⁰ sin(kx) dx = (1 − cos 10k)/k (closed form); k within ±0.5 %
+    direct = integrate("sin(k*x)", 0, 10, 1e-10, parameters={"k": "1.99..2.01"})
+    narrowed = integrate("sin(k*x)", 0, 10, 1e-10, parameters={"k": "1.99..2.01"}, sensitivities=True)
+    assert direct.enclosure[0] <= narrowed.enclosure[0] and narrowed.enclosure[1] <= direct.enclosure[1]
+    assert narrowed.enclosure[1] - narrowed.enclosure[0] < 0.3 * (direct.enclosure[1] - direct.enclosure[0])
+    for k in ("1.99", "2", "2.01", "1.995"):
+        kk = REF.mpf(k)
+        assert _contains(narrowed.enclosure, (1 - REF.cos(10 * kk)) / kk)
 
 
 # -- closed forms -----------------------------------------------------------------------------------------

@@ -11,7 +11,7 @@ from typing import TYPE_CHECKING, Any
 
 from ..arithmetic import Arithmetic, MpmathArithmetic, ParameterValue, flint_context_claimed, fraction_down, fraction_up
 from ..derivatives import Program
-from ..errors import ArithmeticFault, InvalidInput, NotCertifiable
+from ..errors import ArithmeticFault, EngineDefect, InvalidInput, NotCertifiable
 from ..formula import Formula
 from ..results import StopReason
 from . import _composite, _fast, _spread
@@ -53,11 +53,13 @@ def run(
     sensitivities: bool = False,
 ) -> IntegralResult:
     """The certified integral of a validated request (see :func:`quadcert.integrate` for the options)."""
+    started = time.perf_counter()
     result = _integral(request, deadline_seconds, include_mesh, precision_bits, arithmetic)
     if not sensitivities:
         return result
     from dataclasses import replace
 
+    from . import _sensitivity
     from ._sensitivity import sensitivities as enclose_sensitivities
 
     deadline = None if deadline_seconds is None else time.monotonic() + deadline_seconds - result.compute_seconds
@@ -66,7 +68,28 @@ def run(
         remaining = None if deadline is None else max(1e-3, deadline - time.monotonic())
         return _integral(derivative, remaining, False, precision_bits, arithmetic)
 
-    return replace(result, sensitivities=enclose_sensitivities(request, integral))
+    found = enclose_sensitivities(request, integral)
+    if result.parameter_spread is not None:
+        result = _narrowed(result, _sensitivity.mean_value_form(request, found, integral))
+    return replace(result, sensitivities=found, compute_seconds=time.perf_counter() - started)
+
+
+def _narrowed(result: IntegralResult, other: tuple[float, float]) -> IntegralResult:
+    """The result with its enclosure intersected with another one of the same integral over the same box.
+
+    The discretisation part stays the one refinement reached; the spread is what the narrower width leaves.
+    """
+    from dataclasses import replace
+
+    low, high = max(result.enclosure[0], other[0]), min(result.enclosure[1], other[1])
+    if low > high:  # two rigorous enclosures of one quantity always meet: this is a defect, not a result
+        raise EngineDefect(f"the mean-value form {other} misses the enclosure {result.enclosure}")
+    if (low, high) == result.enclosure:
+        return result
+    value, bound = error_bound(low, high)
+    assert result.discretisation_bound is not None
+    spread = fraction_up(max(Fraction(high) - Fraction(low) - 2 * Fraction(result.discretisation_bound), Fraction(0)))
+    return replace(result, value=value, enclosure=(low, high), error_bound=bound, parameter_spread=spread)
 
 
 def _integral(
