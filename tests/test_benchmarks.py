@@ -40,3 +40,10 @@ def test_redteam_reference_catches_a_wrong_enclosure() -> None:
     ball = redteam.reference_ball(case)
     assert redteam.verdict((8.999999, 9.000001), ball) == "ok"
     assert redteam.verdict((9.0000001, 9.1), ball) == "miss"
+
+
+def test_parameters_redteam_smoke_run_finds_no_false_certificate(capsys) -> None:
+    from benchmarks import parameters_redteam
+
+    assert parameters_redteam.main(["--cases", "3", "--seed", "3", "--deadline", "1"]) == 0
+    assert "| 3 |" in capsys.readouterr().out
