@@ -37,6 +37,15 @@ def test_seed_inputs_pass_the_target() -> None:
         b"{x if not x < 1}",
         b"atan2(x, a) + hypot(x, 1) + gamma(x) + j0(x) + step(x - k)",
         b"{" * 70,
+        # parameter values known within bounds
+        b"1.99..2.01",
+        b"2\xc2\xb10.01",
+        b"2+-0.01",
+        b"2..1",
+        b"1...2",
+        b"..",
+        b"1e999..2",
+        b"1/3..1/2",
     ]:  # the last once overflowed the stack
         check_one(seed)
 

@@ -39,6 +39,9 @@ SEEDS = [
     b"gamma(x + 1/2) + j1(20*x)",  # handed over: the two arbitrary-precision backends are compared
     b"{asinh(x) if x < 0.3; erfc(x) otherwise}",
     b"atan2(x - 0.5, x^2 - 0.1)",
+    b"exp(-k*x)*sin(10*x)",  # k within [0.9, 1.1] against k = 1 and k = 1.1
+    b"{k if x < 0.5; x/k otherwise}",
+    b"abs(x - k/2)",
 ]
 
 

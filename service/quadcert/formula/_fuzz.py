@@ -4,7 +4,8 @@
     python -m quadcert.formula._fuzz -max_total_time=600        # ten minutes
 
 Any exception other than FormulaError is a finding; so is a canonical text that does not parse back to the
-same tree.
+same tree. The same input is also read as a parameter's value (a number, or bounds such as ``1.99..2.01`` or
+``2±0.01``): anything but a coded InvalidInput or a value with low < high is a finding.
 """
 
 from __future__ import annotations
@@ -17,6 +18,7 @@ def check_one(data: bytes) -> None:
     from . import parse
 
     text = data.decode("utf-8", errors="replace")
+    _check_parameter_text(text)
     try:
         formula = parse(text, parameters=("a", "k"))
     except FormulaError as error:
@@ -26,6 +28,21 @@ def check_one(data: bytes) -> None:
     again = parse(formula.text, parameters=("a", "k"))
     if again.root != formula.root:
         raise AssertionError(f"canonical text {formula.text!r} does not round-trip {text!r}")
+
+
+def _check_parameter_text(text: str) -> None:
+    from ..arithmetic import Within
+    from ..errors import InvalidInput
+    from ..quadrature._inputs import parameter_value
+
+    try:
+        value = parameter_value(text, "parameters.k")
+    except InvalidInput as error:
+        if error.code != "invalid_parameter" or not (error.field or "").startswith("parameters.k"):
+            raise AssertionError(f"bad refusal of parameter text {text!r}: {error.code} {error.field}") from None
+        return
+    if isinstance(value, Within) and not value.low < value.high:
+        raise AssertionError(f"parameter text {text!r} read as an empty box {value}")
 
 
 def main(argv: list[str]) -> None:

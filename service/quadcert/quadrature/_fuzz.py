@@ -5,8 +5,10 @@
 Each input that parses as a formula in x is compiled and run by the C engine over [0, 1] (and its Taylor
 enclosures over a small interval); the arbitrary-precision engine on the reference backend does the same
 work. A formula the C engine hands over (a function it lacks, a piecewise definition) is integrated on both
-arbitrary-precision backends instead. Both sides are rigorous, so their enclosures must meet; a crash, an
-exception other than a coded one, or two disjoint enclosures is a finding.
+arbitrary-precision backends instead. A formula that uses the parameter k is also integrated with k known
+only within [9/10, 11/10]: that enclosure must meet the ones at k = 1 and k = 11/10. Both sides are always
+rigorous, so their enclosures must meet; a crash, an exception other than a coded one, or two disjoint
+enclosures is a finding.
 """
 
 from __future__ import annotations
@@ -32,6 +34,13 @@ def check_one(data: bytes) -> None:
     from ._request import integrate
 
     text = data.decode("utf-8", errors="replace")
+    try:
+        with_k = parse(text, parameters=("k",))
+    except QuadcertError:
+        with_k = None
+    if with_k is not None and "k" in with_k.text:
+        _box_meets_points(with_k, text)
+        return
     try:
         formula = parse(text)
         compiled = _fast.compile_formula(formula, {})
@@ -63,6 +72,28 @@ def check_one(data: bytes) -> None:
         return
     if not _meet(outcome.enclosure, precise.enclosure):
         raise AssertionError(f"disjoint certificates for {text!r}: {outcome.enclosure} vs {precise.enclosure}")
+
+
+def _box_meets_points(formula: Formula, text: str) -> None:
+    from ..arithmetic import Within
+    from ..errors import QuadcertError
+    from ..formula import parameters_used
+    from ._request import integrate
+
+    if "k" not in parameters_used(formula.root):
+        return
+    box_k = Within(Fraction(9, 10), Fraction(11, 10))
+    try:
+        box = integrate(formula, 0, 1, 1e-6, parameters={"k": box_k}, max_nodes=801, deadline_seconds=2)
+    except QuadcertError:
+        return
+    for k in (Fraction(1), Fraction(11, 10)):
+        try:
+            point = integrate(formula, 0, 1, 1e-6, parameters={"k": k}, max_nodes=801, deadline_seconds=2)
+        except QuadcertError:
+            continue
+        if not _meet(box.enclosure, point.enclosure):
+            raise AssertionError(f"box and k = {k} disagree on {text!r}: {box.enclosure} vs {point.enclosure}")
 
 
 def _backends_meet(formula: Formula, text: str) -> None:
