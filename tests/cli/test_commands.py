@@ -150,3 +150,20 @@ def test_integrate_with_bounds_and_sensitivities(capsys) -> None:
     assert encloses(body["enclosure"], HP.mpf("1.9") * HP.mpf("9.95") ** 3 / 6)
     assert encloses(body["enclosure"], HP.mpf("2.1") * HP.mpf("10.05") ** 3 / 6)
     assert body["discretisation_bound"] is not None and body["sensitivities"] is None
+
+
+def test_files_take_bounds_in_parameter_columns_and_tables(tmp_path, capsys) -> None:
+    """CSV text ``low..high`` and a TOML table {low, high}. Closed form: ∫₀¹ k·x dx = k/2."""
+    source = tmp_path / "sweep.csv"
+    source.write_text("integrand,lower_limit,upper_limit,parameter.k\nk*x,0,1,0.9..1.1\n")
+    out = tmp_path / "out.csv"
+    assert main(["batch", str(source), "-o", str(out)]) == 0
+    header, line = out.read_text().splitlines()
+    row = dict(zip(header.split(","), line.split(",")))
+    assert float(row["low"]) <= 0.45 and 0.55 <= float(row["high"]) and row["status"] == "certified"
+    checks = tmp_path / "checks.toml"
+    checks.write_text(
+        '[[check]]\nname = "k within bounds"\nintegrand = "k*x"\nlower_limit = 0\nupper_limit = 1\n'
+        "claimed_value = 0.5\ntolerance = 0.06\nparameters = { k = { low = 0.9, high = 1.1 } }\n"
+    )
+    assert main(["checks", str(checks)]) == 0  # |k/2 − 0.5| <= 0.05 for every k in the box
