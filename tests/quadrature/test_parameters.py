@@ -251,3 +251,14 @@ def test_random_interior_points_of_a_two_parameter_box_use_the_reference_engine_
     for _ in range(10):
         k, w = REF.mpf("0.5") + REF.mpf("0.1") * rng.random(), 3 + REF.mpf("0.2") * rng.random()
         assert _contains(result.enclosure, REF.quad(lambda x, k=k, w=w: REF.exp(-k * x) * REF.sin(w * x), [0, 3]))
+
+
+def test_an_infinite_stretch_next_to_a_moving_limit_is_refused_not_crashed() -> None:
+    """Found by the parameters red-team run (seed 1): an enclosure past the float range, plus the edge piece
+    of a limit that moves, raised OverflowError instead of the coded refusal."""
+    from quadcert.quadrature._spread import Edge, widened
+
+    assert widened(-math.inf, 1.0, [Edge(Fraction(0), Fraction(1))]) == (-math.inf, 1.0)
+    with pytest.raises(NotCertifiable) as refused:
+        integrate("1e308*x", 0, "2 + d", 1e-4, parameters={"d": "0..1/10"})  # ∫ = 1e308·(2 + d)²/2
+    assert refused.value.code == "result_out_of_range"

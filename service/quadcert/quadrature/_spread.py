@@ -9,6 +9,7 @@ width counts as the parameters' spread: finer panels cannot narrow it.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
@@ -75,7 +76,7 @@ def edge_bounds(edges: list[Edge]) -> tuple[Fraction, Fraction]:
 
 def widened(low: float, high: float, edges: list[Edge]) -> tuple[float, float]:
     """[low, high] plus the edges, rounded outward to float64."""
-    if not edges:
-        return low, high
+    if not edges or not (math.isfinite(low) and math.isfinite(high)):
+        return low, high  # an infinite end stays infinite (and the result is refused as out of range)
     add_low, add_high = edge_bounds(edges)
     return fraction_down(Fraction(low) + add_low), fraction_up(Fraction(high) + add_high)
