@@ -188,3 +188,15 @@ def _bounds(low: Fraction, high: Fraction, field: str) -> ParameterValue:
     if low > high:
         raise InvalidInput(f"{field}: the low bound is above the high one", code="invalid_parameter", field=field)
     return low if low == high else Within(low, high)
+
+
+#: the panel rules a request may ask for
+RULES = ("simpson", "gauss-legendre", "auto")
+
+
+def check_rule(rule: object) -> str:
+    if rule not in RULES:
+        raise InvalidInput(
+            f"rule must be one of {', '.join(RULES)}, got {str(rule)[:40]!r}", code="invalid_rule", field="rule"
+        )
+    return str(rule)

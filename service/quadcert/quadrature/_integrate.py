@@ -115,7 +115,7 @@ def _integral(
             "deadline_seconds must be a positive number", code="invalid_deadline", field="deadline_seconds"
         )
     deadline = None if deadline_seconds is None else time.monotonic() + deadline_seconds
-    settings = Settings(request.max_nodes, deadline, include_mesh, precision_bits, arithmetic)
+    settings = Settings(request.max_nodes, deadline, include_mesh, precision_bits, arithmetic, request.rule)
 
     def target(low: float, high: float) -> float:
         """The absolute bound to meet: the tolerance, or the relative one times the smallest |integral| the
@@ -180,6 +180,7 @@ class Settings:
     include_mesh: bool
     precision_bits: int | None
     arithmetic: ArithmeticFactory | None
+    rule: str = "simpson"
 
 
 @dataclass(frozen=True)
@@ -214,7 +215,9 @@ def segment(
     its nodes resolved at that scale)."""
     if _same(lower, upper):  # ∫ from a limit to itself, infinite ones included
         return Segment(0.0, 0.0, "tolerance_met", 0, 0, (), {}, settings.precision_bits or 53)
+    # the compiled engine runs Simpson only
     native = settings.arithmetic is None and settings.precision_bits is None and _fast.AVAILABLE
+    native = native and settings.rule == "simpson"
     if native:
         fast = _try_fast(
             formula,
@@ -264,6 +267,7 @@ def segment(
             arithmetic,
             values,
             formula,
+            settings.rule,
         )
         attempts += 1
         if outcome[1] != "resolution_limit" or attempts >= 3 or prec * 2 > 4096:
@@ -364,6 +368,7 @@ def _run(
     arithmetic: ArithmeticFactory,
     values: dict[str, ParameterValue],
     formula: Formula,
+    rule: str = "simpson",
 ) -> tuple[object, str, int, int, tuple[PanelReport, ...], dict[str, int], Fraction]:
     if same_text:
         return ar.zero, "tolerance_met", 0, 0, (), {}, Fraction(0)
@@ -394,6 +399,7 @@ def _run(
         deadline=deadline,
         retry=lambda p: Program(formula, arithmetic(p), values),
         fallback=fallback,
+        rule=rule,
     )
     outcome = refiner.run(a, b, target)
     enclosure = outcome.enclosure if sign > 0 else ar.neg(outcome.enclosure)

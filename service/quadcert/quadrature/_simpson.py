@@ -23,11 +23,13 @@ from typing import Any
 from ..arithmetic import Arithmetic, interval_text, shown
 from ..derivatives import Program
 from ..errors import ArithmeticFault, MagnitudeExceeded, NotCertifiable
-from . import _peano
+from . import _gauss, _peano
 from ._finish import discretisation_bound, error_bound
 from ._result import PanelReport
 
 MAX_DEPTH = 60
+GAUSS = -2  # the order key of the Gauss–Legendre bound (the Peano bounds are keyed by their derivative order)
+RULES = ("simpson", "gauss-legendre", "auto")
 FLOAT_FLOOR = "float_floor"  # internal stop reason, reported as resolution_limit
 _FLOOR_ULPS = 4  # once the panels sum to within this many ulps of the total, look whether float64 is the limit
 _HALF, _SIXTH = Fraction(1, 2), Fraction(1, 6)
@@ -48,6 +50,7 @@ class _Panel:
     centre: float = 0.0  # float midpoint of the enclosure, for the running estimate only
     fault: str = ""
     spread: float = 0.0  # with parameters known within bounds: the width their spread accounts for
+    extra: int = 0  # evaluations beyond the shared Simpson nodes (a Gauss–Legendre panel's own nodes)
 
 
 @dataclass
@@ -59,18 +62,28 @@ class Outcome:
     spread: Fraction = Fraction(0)  # the panels' spreads, summed exactly
 
 
-def _enclose(program: Program[Any], ar: Arithmetic[Any], panel: _Panel) -> tuple[Any, int, float]:
+def _enclose(
+    program: Program[Any], ar: Arithmetic[Any], panel: _Panel, rule: str = "simpson"
+) -> tuple[Any, int, float]:
     """Rigorous enclosure of the panel's integral: every available bound, intersected; with the width of
-    Simpson's sum itself (what parameters known within bounds, and rounding, put into the enclosure)."""
-    series = program.taylor(ar.hull(panel.p, panel.q), 4)
+    Simpson's sum itself (what parameters known within bounds, and rounding, put into the enclosure).
+
+    With ``rule`` "gauss-legendre" or "auto", a panel on which f is 2n times differentiable also gets the
+    Gauss–Legendre bound (``_gauss``); "gauss-legendre" then skips Simpson's f⁗ bound there."""
+    gauss = rule != "simpson"
+    series = program.taylor(ar.hull(panel.p, panel.q), 2 * _gauss.POINTS if gauss else 4)
     width = ar.sub(panel.q, panel.p)
     simpson = ar.scale(ar.mul(width, ar.add(ar.add(panel.fp, panel.fq), ar.scale(panel.fm, Fraction(4)))), _SIXTH)
     candidates: list[tuple[int, Any]] = [(0, ar.mul(width, series[0]))]
-    if len(series) == 5:
+    smooth = len(series) == 2 * _gauss.POINTS + 1
+    if gauss and smooth:
+        total, panel.extra = _gauss.panel_sum(ar, program.value, panel.p, panel.q)
+        candidates.append((GAUSS, ar.add(total, _gauss.remainder(ar, width, series[-1]))))
+    if len(series) >= 5 and not (rule == "gauss-legendre" and smooth):
         remainder = ar.mul(ar.scale(ar.pow_int(width, 5), _peano.SIGNED_4 * 24), series[4])
         candidates.append((4, ar.add(simpson, remainder)))
     for k in (3, 2, 1):
-        if len(series) > k:
+        if len(series) > k and not (rule == "gauss-legendre" and smooth):
             size = ar.function("abs", series[k])
             radius = ar.mul(ar.scale(ar.pow_int(width, k + 1), _peano.ABSOLUTE[k] * _peano.FACTORIAL[k]), size)
             candidates.append((k, ar.add(simpson, ar.hull(ar.neg(radius), radius))))
@@ -146,6 +159,7 @@ class Refiner:
         deadline: float | None,
         retry: Callable[[int], Program[Any]] | None = None,
         fallback: Program[Any] | None = None,
+        rule: str = "simpson",
     ) -> None:
         self.program = program
         self.variable = program.formula.variable
@@ -158,6 +172,9 @@ class Refiner:
         self.bounds_used: dict[str, int] = {}
         #: parameters known within bounds: refine and stop on the width bisection can remove, not the whole
         self.spread = program.spread
+        self.rule = rule
+        self.extra_nodes = 0  # Gauss–Legendre nodes, which no other panel shares
+        self.names = {**_peano.BOUND_NAMES, GAUSS: _gauss.NAME}
 
     # -- function values at nodes --------------------------------------------------------------
     def value_at(self, node: Any) -> Any:
@@ -204,7 +221,7 @@ class Refiner:
         ar = self.ar
         try:
             try:
-                enclosure, order, spread = _enclose(self.program, ar, panel)
+                enclosure, order, spread = _enclose(self.program, ar, panel, self.rule)
             except ArithmeticFault as fault:
                 if fault.certain or self.fallback is None or isinstance(fault, MagnitudeExceeded):
                     raise
@@ -223,6 +240,7 @@ class Refiner:
             panel.fault = fault.message
             return
         panel.enclosure, panel.order, panel.width = enclosure, order, ar.width(enclosure)
+        self.extra_nodes += panel.extra
         if self.spread:  # the heap and the stop rule see only what bisection can still remove
             panel.spread = min(spread, panel.width)
             panel.width -= panel.spread
@@ -235,7 +253,8 @@ class Refiner:
             ref.from_bounds(*ar.bounds_exact(v)) for v in (panel.p, panel.m, panel.q, panel.fp, panel.fm, panel.fq)
         )
         moved = _Panel(p, m, q, fp, fm, fq, panel.depth)
-        enclosure, order, spread = _enclose(self.fallback, ref, moved)
+        enclosure, order, spread = _enclose(self.fallback, ref, moved, self.rule)
+        panel.extra = moved.extra
         return ar.from_bounds(*ref.bounds_exact(enclosure)), order, spread
 
     def split(self, panel: _Panel) -> tuple[_Panel, _Panel]:
@@ -303,7 +322,7 @@ class Refiner:
                         stop = FLOAT_FLOOR
                         break
                     next_check = widths * 0.95
-            if len(self.values) + 2 > self.max_nodes:
+            if self.nodes() + 2 + (2 * _gauss.POINTS if self.rule != "simpson" else 0) > self.max_nodes:
                 stop = "node_budget"
                 break
             if self.deadline is not None and time.monotonic() > self.deadline:
@@ -323,9 +342,13 @@ class Refiner:
         if stuck:
             raise self._unbounded(stuck[0], budget=True)
         for panel in panels:
-            name = _peano.BOUND_NAMES[panel.order]
+            name = self.names[panel.order]
             self.bounds_used[name] = self.bounds_used.get(name, 0) + 1
-        return Outcome(self.total(panels), panels, len(self.values), stop, spread_sum.exact())
+        return Outcome(self.total(panels), panels, self.nodes(), stop, spread_sum.exact())
+
+    def nodes(self) -> int:
+        """Evaluations so far: the shared Simpson nodes and every Gauss–Legendre panel's own."""
+        return len(self.values) + self.extra_nodes
 
     def _unbounded(self, panel: _Panel, budget: bool = False) -> NotCertifiable:
         lo, hi = self.ar.bounds(self.ar.hull(panel.p, panel.q))
@@ -352,6 +375,6 @@ class Refiner:
         for panel in ordered:
             low, high = ar.bounds(panel.enclosure if sign > 0 else ar.neg(panel.enclosure))
             reports.append(
-                PanelReport(ar.bounds(panel.p)[0], ar.bounds(panel.q)[1], (low, high), _peano.BOUND_NAMES[panel.order])
+                PanelReport(ar.bounds(panel.p)[0], ar.bounds(panel.q)[1], (low, high), self.names[panel.order])
             )
         return tuple(reports)
