@@ -72,6 +72,7 @@ class Computation:
             parameters=body.get("parameters"),
             relative_tolerance=body.get("relative_tolerance"),
             max_nodes=self.settings.default_max_nodes if body.get("max_nodes") is None else body["max_nodes"],
+            rule=body.get("rule") or "simpson",
         )
         canonical: dict[str, Any] = {
             **request.canonical(),

@@ -89,6 +89,12 @@ class IntegralRequest(_Strict):
     parameters: Parameters = Field(default_factory=dict)
     max_nodes: StrictInt | None = Field(None, description="Evaluation budget; the server default applies if absent")
     include_mesh: StrictBool = False
+    rule: Literal["simpson", "gauss-legendre", "auto"] = Field(
+        "simpson",
+        description="The panel rule: composite Simpson (default); gauss-legendre (5-point panels with a rigorous "
+        "f^(10) remainder, Simpson's bounds where f is not that smooth); auto (both on every panel, the narrower "
+        "kept). The mesh and bounds_used name each panel's rule.",
+    )
     sensitivities: StrictBool = Field(
         False,
         description="Also enclose ∂(integral)/∂(parameter) over the box, for every parameter: one more certified "

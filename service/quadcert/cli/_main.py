@@ -101,6 +101,8 @@ def _engine_options(args: argparse.Namespace) -> dict[str, Any]:
     for name in ("relative_tolerance", "max_nodes"):
         if getattr(args, name, None) is not None:
             options[name] = getattr(args, name)
+    if getattr(args, "rule", "simpson") != "simpson":
+        options["rule"] = args.rule
     return options
 
 
@@ -478,6 +480,13 @@ def build_parser() -> argparse.ArgumentParser:
         help="evaluation budget (default 200001); past it the enclosure is returned, not certified",
     )
     one.add_argument("--mesh", action="store_true", help="also print every panel")
+    one.add_argument(
+        "--rule",
+        choices=("simpson", "gauss-legendre", "auto"),
+        default="simpson",
+        help="panel rule: simpson (default), gauss-legendre (5-point panels, fewer nodes on smooth integrands), "
+        "or auto (the narrower on each panel)",
+    )
     one.add_argument(
         "--sensitivities",
         action="store_true",

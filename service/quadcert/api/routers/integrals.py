@@ -140,6 +140,10 @@ async def read_integral(
         Query(description="the one number to answer (text, csv, xml); default value"),
     ] = None,
     max_nodes: Annotated[int | None, Query(ge=3, description="evaluation budget; the server default if absent")] = None,
+    rule: Annotated[
+        Literal["simpson", "gauss-legendre", "auto"],
+        Query(description="the panel rule: simpson (default), gauss-legendre, or auto (the narrower per panel)"),
+    ] = "simpson",
 ) -> Response:
     body: dict[str, Any] = {
         "integrand": integrand,
@@ -149,6 +153,7 @@ async def read_integral(
         "variable": variable,
         "relative_tolerance": None if relative_tolerance is None else _query_number(relative_tolerance),
         "max_nodes": max_nodes,
+        "rule": rule,
     }
     engine = computation(request)
     try:
@@ -195,6 +200,7 @@ GET_KEYS = (
     "format",
     "field",
     "max_nodes",
+    "rule",
 )
 
 
