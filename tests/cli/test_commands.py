@@ -167,3 +167,13 @@ def test_files_take_bounds_in_parameter_columns_and_tables(tmp_path, capsys) -> 
         "claimed_value = 0.5\ntolerance = 0.06\nparameters = { k = { low = 0.9, high = 1.1 } }\n"
     )
     assert main(["checks", str(checks)]) == 0  # |k/2 − 0.5| <= 0.05 for every k in the box
+
+
+def test_integrate_with_the_gauss_legendre_rule(capsys) -> None:
+    assert (
+        main(["integrate", "sin(200*x)*exp(-x)", "0", "5", "--tol", "1e-8", "--rule", "gauss-legendre", "--json"]) == 0
+    )
+    body = json.loads(capsys.readouterr().out)
+    # ∫₀⁵ sin(200x)e^(−x) dx = (200 − e^(−5)(sin 1000 + 200 cos 1000))/(1 + 200²) (closed form)
+    exact = (200 - HP.exp(-5) * (HP.sin(1000) + 200 * HP.cos(1000))) / (1 + 200**2)
+    assert encloses(body["enclosure"], exact) and body["bounds_used"] == {"gauss-legendre-5": body["panels"]}
