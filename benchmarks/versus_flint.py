@@ -6,7 +6,7 @@ a Bessel-type integral, a kink), none of them from our own suite. For each toler
 ``analytic`` flag wherever its integrand has a branch cut or a kink; the table says where flint's own error
 bound misses the tolerance. Times are the best of three, in one process, engine time only (no HTTP).
 
-    python -m benchmarks.versus_flint [--tolerances 1e-6 1e-10 1e-12]
+    python -m benchmarks.versus_flint [--tolerances 1e-6 1e-10 1e-12] [--rules simpson gauss-legendre auto]
 
 Per row: our time and flint's, the ratio, our node count, whether the compiled engine answered alone
 ("compiled", precision_bits 53) or the arbitrary-precision engine took over, and both error bounds. Per
@@ -92,56 +92,60 @@ def _value(text: str) -> Any:
     return arb.pi() if text == "pi" else arb(text)
 
 
-def run(tolerances: list[float]) -> list[dict[str, Any]]:
+def run(tolerances: list[float], rules: tuple[str, ...] = ("simpson",)) -> list[dict[str, Any]]:
     claim_flint_context()  # this process computes on one thread: flint's context is the engine's to use
     rows = []
     for tolerance in tolerances:
         for row in ROWS:
-            ours_seconds, result = _timed(partial(integrate, row.formula, row.a, row.b, tolerance))
             flint_seconds, flint_radius = _flint(row, tolerance)
-            rows.append(
-                {
-                    "tolerance": tolerance,
-                    "name": row.name,
-                    "ours": ours_seconds,
-                    "flint": flint_seconds,
-                    "ratio": ours_seconds / flint_seconds,
-                    "nodes": result.nodes,
-                    "met": result.tolerance_met,
-                    "compiled": result.precision_bits == 53,
-                    "bound": result.error_bound,
-                    "flint_bound": flint_radius,
-                    "note": row.note,
-                }
-            )
+            for rule in rules:
+                rows.append(_ours(row, tolerance, rule, flint_seconds, flint_radius))
     return rows
+
+
+def _ours(row: Row, tolerance: float, rule: str, flint_seconds: float, flint_radius: float) -> dict[str, Any]:
+    ours_seconds, result = _timed(partial(integrate, row.formula, row.a, row.b, tolerance, rule=rule))
+    return {
+        "rule": rule,
+        "tolerance": tolerance,
+        "name": row.name,
+        "ours": ours_seconds,
+        "flint": flint_seconds,
+        "ratio": ours_seconds / flint_seconds,
+        "nodes": result.nodes,
+        "met": result.tolerance_met,
+        "compiled": result.precision_bits == 53,
+        "bound": result.error_bound,
+        "flint_bound": flint_radius,
+        "note": row.note,
+    }
 
 
 def table(rows: list[dict[str, Any]]) -> str:
     lines = [
-        "| tol | integrand | ours ms | flint ms | ours/flint | nodes | engine | our bound | flint bound |",
-        "| --- | --- | ---: | ---: | ---: | ---: | --- | ---: | ---: |",
+        "| rule | tol | integrand | ours ms | flint ms | ours/flint | nodes | engine | our bound | flint bound |",
+        "| --- | --- | --- | ---: | ---: | ---: | ---: | --- | ---: | ---: |",
     ]
     for r in rows:
         flint_bound = f"{r['flint_bound']:.2g}" + (" (misses)" if r["flint_bound"] > r["tolerance"] else "")
         lines.append(
-            f"| {r['tolerance']:g} | {r['name']} | {r['ours'] * 1e3:.2f} | {r['flint'] * 1e3:.2f} | "
+            f"| {r['rule']} | {r['tolerance']:g} | {r['name']} | {r['ours'] * 1e3:.2f} | {r['flint'] * 1e3:.2f} | "
             f"{r['ratio']:.2f} | {r['nodes']} | {'compiled' if r['compiled'] else 'precise'}"
             f"{'' if r['met'] else ' (not met)'} | {r['bound']:.2g} | {flint_bound} |"
         )
     lines += [
         "",
-        "| tol | median ours/flint | geometric mean | worst three | compiled alone |",
-        "| --- | ---: | ---: | --- | ---: |",
+        "| rule | tol | median ours/flint | geometric mean | worst three | compiled alone | nodes |",
+        "| --- | --- | ---: | ---: | --- | ---: | ---: |",
     ]
-    for tolerance in sorted({r["tolerance"] for r in rows}, reverse=True):
-        group = [r for r in rows if r["tolerance"] == tolerance]
+    for rule, tolerance in sorted({(r["rule"], r["tolerance"]) for r in rows}, key=lambda k: (k[0], -k[1])):
+        group = [r for r in rows if r["tolerance"] == tolerance and r["rule"] == rule]
         ratios = [r["ratio"] for r in group]
         worst = ", ".join(f"{r['name']} {r['ratio']:.1f}×" for r in sorted(group, key=lambda r: -r["ratio"])[:3])
         compiled = sum(r["compiled"] for r in group)
         lines.append(
-            f"| {tolerance:g} | {statistics.median(ratios):.2f} | {statistics.geometric_mean(ratios):.2f} | "
-            f"{worst} | {compiled}/{len(group)} |"
+            f"| {rule} | {tolerance:g} | {statistics.median(ratios):.2f} | {statistics.geometric_mean(ratios):.2f} | "
+            f"{worst} | {compiled}/{len(group)} | {sum(r['nodes'] for r in group)} |"
         )
     return "\n".join(lines)
 
@@ -149,8 +153,9 @@ def table(rows: list[dict[str, Any]]) -> str:
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--tolerances", type=float, nargs="+", default=[1e-6, 1e-10, 1e-12])
+    parser.add_argument("--rules", nargs="+", default=["simpson"], choices=["simpson", "gauss-legendre", "auto"])
     args = parser.parse_args()
-    print(table(run(args.tolerances)))
+    print(table(run(args.tolerances, tuple(args.rules))))
 
 
 if __name__ == "__main__":

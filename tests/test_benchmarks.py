@@ -47,3 +47,15 @@ def test_parameters_redteam_smoke_run_finds_no_false_certificate(capsys) -> None
 
     assert parameters_redteam.main(["--cases", "3", "--seed", "3", "--deadline", "1"]) == 0
     assert "| 3 |" in capsys.readouterr().out
+
+
+def test_versus_flint_runs_each_rule(monkeypatch) -> None:
+    from benchmarks import versus_flint
+    from quadcert.arithmetic import release_flint_context
+
+    monkeypatch.setattr(versus_flint, "ROWS", versus_flint.ROWS[:2])
+    try:
+        printed = versus_flint.table(versus_flint.run([1e-6], ("simpson", "gauss-legendre")))
+    finally:
+        release_flint_context()
+    assert "| gauss-legendre | 1e-06 | gauss |" in printed and "| simpson | 1e-06 |" in printed
