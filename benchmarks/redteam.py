@@ -2,6 +2,7 @@
 
     python -m benchmarks.redteam --minutes 30                  # the documented long run
     python -m benchmarks.redteam --cases 40 --seed 7           # a short smoke run (the tests run one)
+    python -m benchmarks.redteam --minutes 20 --rules --no-service   # the panel rules' long run
 
 Formulas are random sums and products of factors (exp, sin, cos, atan, tanh, erf, asinh, erfc, gamma, j0,
 atanh, rational and shifted sqrt/log terms, a unit step and a piecewise definition with a jump) with random
@@ -194,12 +195,18 @@ def verdict(enclosure: tuple[float, float], ball: Any) -> str:
 # -- the paths -----------------------------------------------------------------------------------
 
 
-def _library(arithmetic: Any) -> Callable[[Case, float], Any]:
+def _library(arithmetic: Any, rule: str = "simpson") -> Callable[[Case, float], Any]:
     from quadcert import integrate
 
     def run(case: Case, deadline: float) -> Any:
         return integrate(
-            case.text, case.lower, case.upper, case.tolerance, deadline_seconds=deadline, arithmetic=arithmetic
+            case.text,
+            case.lower,
+            case.upper,
+            case.tolerance,
+            deadline_seconds=deadline,
+            arithmetic=arithmetic,
+            rule=rule,
         )
 
     return run
@@ -274,6 +281,9 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--seed", type=int, default=1)
     parser.add_argument("--deadline", type=float, default=3.0, help="seconds per case and path")
     parser.add_argument("--no-service", action="store_true", help="skip the HTTP path")
+    parser.add_argument(
+        "--rules", action="store_true", help="also run the gauss-legendre and auto panel rules (library paths)"
+    )
     args = parser.parse_args(argv)
 
     from quadcert.arithmetic import MpmathArithmetic
@@ -285,6 +295,9 @@ def main(argv: list[str] | None = None) -> int:
         "mpmath": _library(MpmathArithmetic),
         "flint": _flint_path(),
     }
+    if args.rules:
+        paths["gauss-legendre"] = _library(None, "gauss-legendre")
+        paths["auto"] = _library(None, "auto")
     service = None if args.no_service else _Service()
     if service is not None:
         paths["service"] = service
