@@ -262,3 +262,13 @@ def test_an_infinite_stretch_next_to_a_moving_limit_is_refused_not_crashed() -> 
     with pytest.raises(NotCertifiable) as refused:
         integrate("1e308*x", 0, "2 + d", 1e-4, parameters={"d": "0..1/10"})  # ∫ = 1e308·(2 + d)²/2
     assert refused.value.code == "result_out_of_range"
+
+
+@pytest.mark.parametrize("which", ["gauss-legendre", "auto"])
+def test_bounds_with_the_other_panel_rules(which) -> None:
+    # ∫₀³ e^(−kx)·sin(10x) dx at the corners of k in [1.99, 2.01] (60-digit mpmath)
+    result = integrate("exp(-k*x)*sin(10*x)", 0, 3, 1e-10, parameters={"k": "1.99..2.01"}, rule=which)
+    assert result.tolerance_met and result.discretisation_bound <= 1e-10
+    for k in ("1.99", "2.01", "2"):
+        kk = REF.mpf(k)
+        assert _contains(result.enclosure, REF.quad(lambda x, kk=kk: REF.exp(-kk * x) * REF.sin(10 * x), [0, 3]))

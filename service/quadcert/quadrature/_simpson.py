@@ -65,8 +65,8 @@ class Outcome:
 def _enclose(
     program: Program[Any], ar: Arithmetic[Any], panel: _Panel, rule: str = "simpson"
 ) -> tuple[Any, int, float]:
-    """Rigorous enclosure of the panel's integral: every available bound, intersected; with the width of
-    Simpson's sum itself (what parameters known within bounds, and rounding, put into the enclosure).
+    """Rigorous enclosure of the panel's integral: every available bound, intersected; with the width of the
+    best bound's rule sum itself (what parameters known within bounds, and rounding, put into it).
 
     With ``rule`` "gauss-legendre" or "auto", a panel on which f is 2n times differentiable also gets the
     Gauss–Legendre bound (``_gauss``); "gauss-legendre" then skips Simpson's f⁗ bound there."""
@@ -76,8 +76,10 @@ def _enclose(
     simpson = ar.scale(ar.mul(width, ar.add(ar.add(panel.fp, panel.fq), ar.scale(panel.fm, Fraction(4)))), _SIXTH)
     candidates: list[tuple[int, Any]] = [(0, ar.mul(width, series[0]))]
     smooth = len(series) == 2 * _gauss.POINTS + 1
+    sums = {GAUSS: simpson}  # the rule sum behind each bound; Simpson's unless the rule's own
     if gauss and smooth:
         total, panel.extra = _gauss.panel_sum(ar, program.value, panel.p, panel.q)
+        sums[GAUSS] = total
         candidates.append((GAUSS, ar.add(total, _gauss.remainder(ar, width, series[-1]))))
     if len(series) >= 5 and not (rule == "gauss-legendre" and smooth):
         remainder = ar.mul(ar.scale(ar.pow_int(width, 5), _peano.SIGNED_4 * 24), series[4])
@@ -91,7 +93,7 @@ def _enclose(
     enclosure = best
     for _, other in candidates:
         enclosure = ar.intersect(enclosure, other)
-    return enclosure, best_order, ar.width(simpson)
+    return enclosure, best_order, ar.width(sums[GAUSS] if best_order == GAUSS else simpson)
 
 
 class ExactSum:
