@@ -11,7 +11,7 @@ from typing import TYPE_CHECKING, Any
 
 from ..arithmetic import Arithmetic, MpmathArithmetic, ParameterValue, flint_context_claimed, fraction_down, fraction_up
 from ..derivatives import Program
-from ..errors import ArithmeticFault, EngineDefect, InvalidInput, NotCertifiable
+from ..errors import EngineDefect, InvalidInput, NotCertifiable
 from ..formula import Formula
 from ..results import StopReason
 from . import _composite, _fast, _spread
@@ -379,16 +379,7 @@ def _run(
     elif b_hi < a_lo:
         sign, a, b = -1, b, a
     else:  # the limits are too close to order: enclose (b − a)·f(hull) directly
-        region = ar.hull(a, b)
-        try:
-            values_on = program.value(region)
-        except ArithmeticFault as fault:
-            raise NotCertifiable(
-                f"the integrand cannot be bounded between the limits: {fault.message}",
-                code="unbounded_near",
-                location=ar.bounds(region),
-            ) from None
-        enclosure = ar.mul(ar.sub(b, a), values_on)
+        enclosure = _spread.range_piece(program, ar, a, b, "between the limits")
         spread = Fraction(ar.width(enclosure)) if program.spread else Fraction(0)
         return enclosure, "tolerance_met", 0, 1, (), {"range": 1}, spread
     fallback = None if isinstance(ar, MpmathArithmetic) else Program(formula, MpmathArithmetic(ar.prec), values)

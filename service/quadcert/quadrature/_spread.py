@@ -53,20 +53,27 @@ def fixed_limit(
     point = simplest_between(centre_low, centre_high)
     box = enclose_limit(limit, ar, values, field)
     fixed = Formula(Number(point) if point >= 0 else Negate(Number(-point)), CONSTANT_ONLY)
-    stretch = ar.hull(ar.exact(point), box)
-    try:
-        mean = Program(formula, ar, values).value(stretch)
-    except ArithmeticFault as fault:
-        raise NotCertifiable(
-            f"the integrand cannot be bounded over the {field.replace('_', ' ')}'s possible values: {fault.message}",
-            code="unbounded_near",
-            location=ar.bounds(stretch),
-        ) from None
-    piece: Any = ar.mul(ar.sub(box, ar.exact(point)), mean)
+    where = f"over the {field.replace('_', ' ')}'s possible values"
+    piece: Any = range_piece(Program(formula, ar, values), ar, ar.exact(point), box, where)
     if side < 0:
         piece = ar.neg(piece)
     low, high = ar.bounds_exact(piece)
     return fixed, Edge(low, high)
+
+
+def range_piece(program: Program[Any], ar: Any, start: Any, stop: Any, where: str) -> Any:
+    """∫ from start to stop of f as (stop − start)·f(hull): the mean of f lies in its range there. Refused with
+    ``unbounded_near`` and the stretch as its location when f cannot be bounded on it."""
+    stretch = ar.hull(start, stop)
+    try:
+        values_on = program.value(stretch)
+    except ArithmeticFault as fault:
+        raise NotCertifiable(
+            f"the integrand cannot be bounded {where}: {fault.message}",
+            code="unbounded_near",
+            location=ar.bounds(stretch),
+        ) from None
+    return ar.mul(ar.sub(stop, start), values_on)
 
 
 def edge_bounds(edges: list[Edge]) -> tuple[Fraction, Fraction]:
