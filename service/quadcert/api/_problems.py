@@ -138,6 +138,7 @@ PROBLEM_TYPES: dict[str, tuple[int | None, str, str]] = {
     "invalid_budget": (422, _INPUT, "max_nodes is not a whole number."),
     "budget_out_of_range": (422, _INPUT, "max_nodes is outside [3, 2000001]."),
     "invalid_deadline": (422, _INPUT, "The deadline is not a positive number of seconds."),
+    "invalid_rule": (422, _INPUT, "The panel rule is not simpson, gauss-legendre or auto."),
     "invalid_precision": (422, _INPUT, "The working precision asked for is outside what the engine allows."),
     "backend_unavailable": (422, _INPUT, "The arithmetic backend asked for cannot run in this thread."),
     "invalid_csv": (422, _INPUT, "A CSV file's header lacks a required column."),
