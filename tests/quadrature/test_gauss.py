@@ -138,3 +138,27 @@ def test_an_unknown_rule_is_refused_with_its_field() -> None:
     with pytest.raises(InvalidInput) as refused:
         integrate("x", 0, 1, rule="gauss")
     assert refused.value.code == "invalid_rule" and refused.value.field == "rule"
+
+
+@pytest.mark.parametrize(
+    ("formula", "lower", "upper", "exact"),
+    [
+        ("exp(x)", 0, 2, lambda: REF.e**2 - 1),
+        ("cos(10*sin(x))", 0, "pi", lambda: REF.pi * REF.besselj(0, 10)),  # A&S 9.1.18 at x = 10
+        ("1/(1 + 25*x^2)", -1, 1, lambda: 2 * REF.atan(5) / 5),
+        ("abs(x - 0.5)*exp(x)", 0, 1, None),  # a kink: 60-digit mpmath split there, below
+    ],
+)
+@pytest.mark.parametrize("which", ["gauss-legendre", "auto"])
+def test_the_compiled_engine_runs_the_rule(formula, lower, upper, exact, which) -> None:
+    # 1e-10: within float64's reach for all four (at 1e-12 cos(10 sin x) meets the C library's widening)
+    result = integrate(formula, lower, upper, 1e-10, rule=which)
+    precise = integrate(formula, lower, upper, 1e-10, rule=which, precision_bits=96)
+    assert result.precision_bits == 53 and result.tolerance_met  # answered by the compiled engine
+    assert result.enclosure[0] <= precise.enclosure[1] and precise.enclosure[0] <= result.enclosure[1]
+    if "abs" in formula:
+        half = REF.mpf(1) / 2
+        value = REF.quad(lambda x: abs(x - half) * REF.exp(x), [0, half, 1])  # 60-digit mpmath, split at the kink
+    else:
+        value = exact()
+    assert REF.mpf(result.enclosure[0]) <= value <= REF.mpf(result.enclosure[1]), (formula, result.enclosure)

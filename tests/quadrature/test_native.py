@@ -370,7 +370,7 @@ def test_malformed_programs_are_rejected_not_run() -> None:
     bad = [b"", (3).to_bytes(4, "little") * 2, (99).to_bytes(4, "little") + bytes(4)]
     for code in bad:
         with pytest.raises(ValueError):
-            _native.integrate(code, [], 4, 0.0, 0.0, 1.0, 1.0, 1e-8, 0.0, 0.0, 1001, False)
+            _native.integrate(code, [], 4, 0.0, 0.0, 1.0, 1.0, 1e-8, 0.0, 0.0, 1001, False, 0, ())
     with pytest.raises(ValueError):  # a constant index out of range
         _native.integrate(
             (1).to_bytes(4, "little") + (5).to_bytes(4, "little"),
@@ -385,7 +385,13 @@ def test_malformed_programs_are_rejected_not_run() -> None:
             0.0,
             1001,
             False,
+            0,
+            (),
         )
+    with pytest.raises(ValueError):  # an unknown rule, and a Gauss–Legendre table of the wrong size
+        _native.integrate(b"\x00" * 8, [], 4, 0.0, 0.0, 1.0, 1.0, 1e-8, 0.0, 0.0, 1001, False, 7, ())
+    with pytest.raises(ValueError):
+        _native.integrate(b"\x00" * 8, [], 4, 0.0, 0.0, 1.0, 1.0, 1e-8, 0.0, 0.0, 1001, False, 1, ((0.0, 0.0),))
 
 
 def test_this_machines_c_library_passes_the_self_test() -> None:

@@ -28,6 +28,7 @@ from ..formula import Binary, Call, Constant, Formula, Negate, Node, Number, Par
 from ..formula._catalogue import spelled_out
 from ..formula._nodes import distinct_arguments, parameters_used
 from ..results import StopReason
+from . import _gauss
 from ._native_tables import BINARY, EFFECT, FUNCTION_CODES, MAX_POWER, Op, Status, disagreement
 from ._peano import BOUND_NAMES
 from ._result import PanelReport
@@ -219,6 +220,7 @@ def run(
     max_nodes: int,
     deadline: float | None,
     want_mesh: bool,
+    rule: str = "simpson",
 ) -> FastOutcome | str:
     """Refine on [a, b] (exact enclosures of the limits, a < b); a FastOutcome, or why it declined."""
     if not trusted():
@@ -241,16 +243,34 @@ def run(
         seconds,
         max_nodes,
         want_mesh,
+        RULE_CODES[rule],
+        _gauss_table() if rule != "simpson" else (),
     )
     ended = Status(status)
     if ended < 0:
         return _declined(ended.label, nodes)
-    used = {BOUND_NAMES[order]: count for order, count in enumerate(counts) if count}
+    used = {NAMES[order]: count for order, count in enumerate(counts) if count}
     reports: tuple[PanelReport, ...] = ()
     if mesh is not None:
-        reports = tuple(PanelReport(p, q, (lo, hi), BOUND_NAMES[order]) for p, q, lo, hi, order in sorted(mesh))
+        reports = tuple(PanelReport(p, q, (lo, hi), NAMES[order]) for p, q, lo, hi, order in sorted(mesh))
     stop: StopReason = "tolerance_met" if ended is Status.MET else ended.label  # type: ignore[assignment]
     return FastOutcome((low, high), stop, nodes, panels, used, reports)
+
+
+#: the rule codes of the extension, and the names of the bounds it reports (Simpson's orders 0..4, then the rule)
+RULE_CODES = {"simpson": 0, "gauss-legendre": 1, "auto": 2}
+NAMES = {**BOUND_NAMES, 5: _gauss.NAME}
+
+
+@cache
+def _gauss_table() -> tuple[tuple[float, float], ...]:
+    """The 5-point nodes and weights on [−1, 1] and the constant c₅·10!, each enclosed in floats outward
+    from its exact rational bounds (``_gauss.rule``), in the order the extension reads them."""
+    table: list[tuple[float, float]] = []
+    for (t_low, t_high), (w_low, w_high) in _gauss.rule(_gauss.POINTS, 80):
+        table += [(fraction_down(t_low), fraction_up(t_high)), (fraction_down(w_low), fraction_up(w_high))]
+    constant = _gauss.remainder_constant(_gauss.POINTS) * math.factorial(2 * _gauss.POINTS)
+    return (*table, (fraction_down(constant), fraction_up(constant)))
 
 
 def value_range(compiled: Compiled, a: float, b: float) -> tuple[float, float] | None:

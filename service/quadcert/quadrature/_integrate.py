@@ -215,9 +215,7 @@ def segment(
     its nodes resolved at that scale)."""
     if _same(lower, upper):  # ∫ from a limit to itself, infinite ones included
         return Segment(0.0, 0.0, "tolerance_met", 0, 0, (), {}, settings.precision_bits or 53)
-    # the compiled engine runs Simpson only
     native = settings.arithmetic is None and settings.precision_bits is None and _fast.AVAILABLE
-    native = native and settings.rule == "simpson"
     if native:
         fast = _try_fast(
             formula,
@@ -230,6 +228,7 @@ def segment(
             settings.max_nodes,
             settings.deadline,
             settings.include_mesh,
+            settings.rule,
         )
         if fast is not None:
             compiled, low, high = fast
@@ -310,6 +309,7 @@ def _try_fast(
     max_nodes: int,
     deadline: float | None,
     include_mesh: bool,
+    rule: str = "simpson",
 ) -> tuple[_fast.FastOutcome, float, float] | None:
     """The compiled float64 engine's answer when it is a usable one; None hands over to the precise engine."""
     if _same(lower, upper):
@@ -324,7 +324,7 @@ def _try_fast(
         sign, a, b = -1, b, a
     else:
         return None
-    outcome = _fast.run(compiled, a, b, tolerance, relative, max_nodes, deadline, include_mesh)
+    outcome = _fast.run(compiled, a, b, tolerance, relative, max_nodes, deadline, include_mesh, rule)
     if isinstance(outcome, str):
         return None
     if sign < 0:

@@ -26,6 +26,10 @@
 
 /* ---- panels and refinement --------------------------------------------------------------- */
 
+#define GAUSS_POINTS 5
+#define GAUSS_BOUND 5              /* the order key of the Gauss–Legendre bound (Simpson's are 0..4) */
+enum { RULE_SIMPSON = 0, RULE_GAUSS = 1, RULE_AUTO = 2 };
+
 typedef struct {
     iv p, m, q, fp, fm, fq;
     iv enclosure;
@@ -37,6 +41,9 @@ typedef struct {
     machine *vm;
     iv ln10, two_over_root_pi;
     iv c_signed, c_abs[4];     /* -24/2880 and C_k * k! for k = 1..3 */
+    int rule;                  /* RULE_SIMPSON, RULE_GAUSS or RULE_AUTO */
+    iv gauss_t[GAUSS_POINTS], gauss_w[GAUSS_POINTS];   /* nodes and weights on [-1, 1], enclosed */
+    iv gauss_c;                /* c_5 * 10! = 1/698544, the remainder's constant times the coefficient's factorial */
     panel *panels;
     Py_ssize_t count, capacity;
     Py_ssize_t *heap;          /* indices of live panels, max-heap by width */
@@ -61,7 +68,8 @@ static void certify(refiner *r, panel *pn) {
     pn->centre = 0;
     pn->order = -1;
     series s;
-    if (evaluate(r->vm, mk(pn->p.lo, pn->q.hi), ORDER, &s, &r->ln10, &r->two_over_root_pi)) return;
+    int order = r->rule == RULE_SIMPSON ? SIMPSON_ORDER : ORDER;
+    if (evaluate(r->vm, mk(pn->p.lo, pn->q.hi), order, &s, &r->ln10, &r->two_over_root_pi)) return;
     for (int k = 0; k < s.len; k++) {
         /* beyond float64's range the bounds lose all their information: the precise engine's
            unbounded exponents do better, so the run declines */
@@ -69,18 +77,36 @@ static void certify(refiner *r, panel *pn) {
     }
     iv best = iv_mul(width, s.c[0]), enclosure = best;
     int best_order = 0;
-    iv candidates[4];
-    int orders[4], n = 0;
+    iv candidates[5];
+    int orders[5], n = 0;
     iv powers[TERMS + 1];   /* width^k, built once by repeated products (which enclose the powers) */
     powers[1] = width;
-    for (int k = 2; k <= TERMS; k++) powers[k] = iv_mul(powers[k - 1], width);
-    if (s.len == TERMS) {
+    for (int k = 2; k <= s.len; k++) powers[k] = iv_mul(powers[k - 1], width);
+    /* Gauss–Legendre (docs/gauss-legendre.md): H/2 * sum w_i f(m + H/2 t_i) + c_5 H^11 f^(10)(panel) */
+    int smooth = r->rule != RULE_SIMPSON && s.len == TERMS;
+    iv gauss_sum = point(0.0);
+    if (smooth) {
+        iv half = iv_mul(width, point(0.5));
+        for (int i = 0; i < GAUSS_POINTS && smooth; i++) {
+            iv value;
+            if (node_value(r, iv_add(pn->m, iv_mul(half, r->gauss_t[i])), &value)) smooth = 0;
+            else gauss_sum = iv_add(gauss_sum, iv_mul(r->gauss_w[i], value));
+        }
+        r->nodes += GAUSS_POINTS;
+        if (smooth) {
+            gauss_sum = iv_mul(half, gauss_sum);
+            candidates[n] = iv_add(gauss_sum, iv_mul(iv_mul(powers[TERMS], r->gauss_c), s.c[ORDER]));
+            orders[n++] = GAUSS_BOUND;
+        }
+    }
+    int peano = !(smooth && r->rule == RULE_GAUSS);   /* gauss-legendre: Simpson's bounds only off smooth panels */
+    if (peano && s.len > SIMPSON_ORDER) {
         iv w5 = powers[5];
         candidates[n] = iv_add(simpson, iv_mul(iv_mul(w5, r->c_signed), s.c[4]));
         orders[n++] = 4;
     }
     for (int k = 3; k >= 1; k--) {
-        if (s.len > k) {
+        if (peano && s.len > k) {
             iv size = iv_abs(s.c[k]);
             iv radius = iv_mul(iv_mul(powers[k + 1], r->c_abs[k]), size);
             candidates[n] = iv_add(simpson, mk(-radius.hi, radius.hi));
@@ -94,6 +120,7 @@ static void certify(refiner *r, panel *pn) {
     if (r->vm->fault || !finite_iv(enclosure)) return;
     pn->enclosure = enclosure;
     pn->order = best_order;
+    if (best_order == GAUSS_BOUND) pn->rounding = iv_width(gauss_sum);
     pn->width = iv_width(enclosure);
     pn->centre = 0.5 * enclosure.lo + 0.5 * enclosure.hi;
     pn->resolved = 1;
@@ -282,10 +309,11 @@ static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nod
                 checkpoint *= 2;
             }
         }
-        if (r->nodes + 2 > max_nodes || ((++steps & 31) == 0 && deadline > 0 && now() > deadline)) {
+        long long next = r->nodes + 2 + (r->rule == RULE_SIMPSON ? 0 : 2 * GAUSS_POINTS);   /* a split's cost */
+        if (next > max_nodes || ((++steps & 31) == 0 && deadline > 0 && now() > deadline)) {
             if (unresolved) return DECLINE_UNRESOLVED;
             *total_out = sum_of_panels(r);
-            return r->nodes + 2 > max_nodes ? NODE_BUDGET : DEADLINE;
+            return next > max_nodes ? NODE_BUDGET : DEADLINE;
         }
         Py_ssize_t worst = r->heap[0];
         if (r->panels[worst].depth >= MAX_DEPTH) return DECLINE_DEPTH;
@@ -394,16 +422,33 @@ static PyObject *native_integrate(PyObject *self, PyObject *args) {
     (void)self;
     Py_buffer code;
     PyObject *consts_obj;
-    int stack_size, want_mesh;
+    int stack_size, want_mesh, rule;
     double a_lo, a_hi, b_lo, b_hi, tol, rel, seconds;
     long long max_nodes;
-    if (!PyArg_ParseTuple(args, "y*OidddddddLp:integrate", &code, &consts_obj, &stack_size, &a_lo, &a_hi, &b_lo,
-                          &b_hi, &tol, &rel, &seconds, &max_nodes, &want_mesh))
+    PyObject *gauss_obj;
+    if (!PyArg_ParseTuple(args, "y*OidddddddLpiO:integrate", &code, &consts_obj, &stack_size, &a_lo, &a_hi, &b_lo,
+                          &b_hi, &tol, &rel, &seconds, &max_nodes, &want_mesh, &rule, &gauss_obj))
         return NULL;
     PyObject *result = NULL;
     refiner r;
     memset(&r, 0, sizeof r);
     machine vm;
+    memset(&vm, 0, sizeof vm);
+    if (rule < RULE_SIMPSON || rule > RULE_AUTO) {
+        PyErr_SetString(PyExc_ValueError, "unknown rule");
+        goto done;
+    }
+    r.rule = rule;
+    if (rule != RULE_SIMPSON) {   /* (t_lo, t_hi) and (w_lo, w_hi) per node, from exact enclosures (_gauss.py) */
+        if (!PySequence_Check(gauss_obj) || PySequence_Size(gauss_obj) != 2 * GAUSS_POINTS + 1) {
+            PyErr_SetString(PyExc_ValueError, "the Gauss-Legendre table needs 11 intervals");
+            goto done;
+        }
+        for (int i = 0; i < GAUSS_POINTS; i++) {
+            if (read_iv(gauss_obj, 2 * i, &r.gauss_t[i]) || read_iv(gauss_obj, 2 * i + 1, &r.gauss_w[i])) goto done;
+        }
+        if (read_iv(gauss_obj, 2 * GAUSS_POINTS, &r.gauss_c)) goto done;
+    }
     if (load_machine(&vm, &code, consts_obj, stack_size)) goto done;
     int status;
     iv total = point(0.0);
@@ -421,7 +466,7 @@ static PyObject *native_integrate(PyObject *self, PyObject *args) {
                      seconds > 0 ? started + seconds : 0.0, &total);
         Py_END_ALLOW_THREADS
     }
-    long long counts[5] = {0, 0, 0, 0, 0};
+    long long counts[6] = {0, 0, 0, 0, 0, 0};
     PyObject *mesh = Py_None;
     Py_INCREF(mesh);
     if (status >= 0) {
@@ -439,8 +484,8 @@ static PyObject *native_integrate(PyObject *self, PyObject *args) {
             }
         }
     }
-    result = Py_BuildValue("(iddLn(LLLLL)N)", status, total.lo, total.hi, r.nodes, r.heap_size, counts[0],
-                           counts[1], counts[2], counts[3], counts[4], mesh);
+    result = Py_BuildValue("(iddLn(LLLLLL)N)", status, total.lo, total.hi, r.nodes, r.heap_size, counts[0],
+                           counts[1], counts[2], counts[3], counts[4], counts[5], mesh);
 done:
     PyBuffer_Release(&code);
     release_machine(&vm);

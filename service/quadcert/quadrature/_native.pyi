@@ -17,6 +17,8 @@ def integrate(
     seconds: float,
     max_nodes: int,
     want_mesh: bool,
+    rule: int,
+    gauss: tuple[tuple[float, float], ...],
     /,
 ) -> tuple[
     int,
@@ -24,7 +26,7 @@ def integrate(
     float,
     int,
     int,
-    tuple[int, int, int, int, int],
+    tuple[int, int, int, int, int, int],
     list[tuple[float, float, float, float, int]] | None,
 ]:
     """(status, low, high, nodes, panels, panels per bound order, mesh rows (p, q, low, high, order))."""

@@ -9,7 +9,7 @@
 
 /* ---- Taylor series over an interval (the recurrences of derivatives/_series.py) ---------- */
 
-static const double WHOLE[TERMS] = {0, 1, 2, 3, 4};
+static const double WHOLE[TERMS] = {0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10};
 /* 1/k enclosed: 1/3 is not a float */
 static iv inverse(int k) {
     switch (k) {

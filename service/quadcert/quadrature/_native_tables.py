@@ -16,8 +16,8 @@ from typing import Any
 from ._peano import ABSOLUTE, SIGNED_4
 from ._simpson import MAX_DEPTH
 
-#: Taylor order of the compiled series (f, f', ..., f'''')
-ORDER = 4
+#: the most Taylor terms a compiled series holds, f to f^(10) (Simpson uses the first five)
+ORDER = 10
 #: |n| of an integer power x^n that compiles to repeated multiplication
 MAX_POWER = 1024
 #: stack slots a compiled program may ask for
