@@ -3,12 +3,12 @@
     python -m quadcert.quadrature._fuzz -max_total_time=600      # ten minutes
 
 Each input that parses as a formula in x is compiled and run by the C engine over [0, 1], with Simpson's
-panels and with the Gauss–Legendre ones (and its Taylor enclosures over a small interval); the
-arbitrary-precision engine on the reference backend does the same work. A formula the C engine hands over (a function it lacks, a piecewise definition) is integrated on both
-arbitrary-precision backends instead. A formula that uses the parameter k is also integrated with k known
-only within [9/10, 11/10]: that enclosure must meet the ones at k = 1 and k = 11/10. Both sides are always
-rigorous, so their enclosures must meet; a crash, an exception other than a coded one, or two disjoint
-enclosures is a finding.
+panels and with the Gauss–Legendre ones (and its Taylor enclosures over a small interval); the arbitrary-
+precision engine on the reference backend does the same work. A formula the C engine hands over (a function it
+lacks, a piecewise definition) is integrated on both arbitrary-precision backends instead. A formula that uses
+the parameter k is also integrated with k known only within [9/10, 11/10]: that enclosure must meet the ones
+at k = 1 and k = 11/10. Both sides are always rigorous, so their enclosures must meet; a crash, an exception
+other than a coded one, or two disjoint enclosures is a finding.
 """
 
 from __future__ import annotations
