@@ -73,7 +73,7 @@ def test_the_remainder_constant_is_the_handbook_one() -> None:
 
 
 # -- whole integrals ------------------------------------------------------------------------------------------
-@settings(max_examples=30, deadline=None)
+@settings(max_examples=max(30, settings().max_examples // 4), deadline=None)
 @given(smooth_integrand(), st.sampled_from([1e-6, 1e-10, 1e-13]), st.sampled_from(["gauss-legendre", "auto"]))
 def test_either_rule_contains_the_reference_and_meets_flint(case, tolerance, which) -> None:
     text, a, b, flint_f, hp_f = case

@@ -78,7 +78,7 @@ def _params(k: tuple[Fraction, Fraction], w: tuple[Fraction, Fraction]) -> dict[
     return {"k": text(k), "w": text(w)}
 
 
-@settings(max_examples=25, deadline=None)
+@settings(max_examples=max(25, settings().max_examples // 4), deadline=None)
 @given(boxes(), st.sampled_from([1e-6, 1e-9]), st.randoms(use_true_random=False))
 def test_the_enclosure_holds_at_corners_and_inside(case, tolerance, rng) -> None:
     name, k, w, a, b = case
@@ -97,7 +97,7 @@ def test_the_enclosure_holds_at_corners_and_inside(case, tolerance, rng) -> None
         assert _contains(result.enclosure, _reference(name, kk, ww, a, b)), (name, k, w, a, b, kk, ww)
 
 
-@settings(max_examples=10, deadline=None)
+@settings(max_examples=max(10, settings().max_examples // 8), deadline=None)
 @given(boxes())
 def test_the_enclosure_meets_flint_at_every_corner(case) -> None:
     name, k, w, a, b = case
@@ -118,7 +118,7 @@ def test_the_enclosure_meets_flint_at_every_corner(case) -> None:
         assert result.enclosure[0] <= float(ball.mid()) <= result.enclosure[1] or ball.rad() > 1e-10
 
 
-@settings(max_examples=15, deadline=None)
+@settings(max_examples=max(15, settings().max_examples // 6), deadline=None)
 @given(boxes(), st.randoms(use_true_random=False))
 def test_sensitivities_contain_a_high_precision_difference_quotient(case, rng) -> None:
     name, k, w, a, b = case
