@@ -231,6 +231,8 @@ def _assemble(
                 precision_floor=_bits_to_resolve(ends, start - origin, stop - origin),
             )
             part = _moved(part, origin)
+        if not (math.isfinite(part.low) and math.isfinite(part.high)):
+            raise NotCertifiable("the integral is beyond the float64 range", code="result_out_of_range")
         low += Fraction(part.low)
         high += Fraction(part.high)
         nodes, panels = nodes + part.nodes, panels + part.panels
