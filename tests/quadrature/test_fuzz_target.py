@@ -42,6 +42,8 @@ SEEDS = [
     b"exp(-k*x)*sin(10*x)",  # k within [0.9, 1.1] against k = 1 and k = 1.1
     b"{k if x < 0.5; x/k otherwise}",
     b"abs(x - k/2)",
+    # found by the long run: a stretch past the float range next to x^x's singular end
+    b"+5+++1+1+1+1+145+1+145^351^1^1+1+1+145+1+145^351^1^x^x-x^x*- k- k/8+5++1+1+11",
 ]
 
 

@@ -226,7 +226,7 @@ def test_panel_widths_past_the_float_range_are_refused_not_crashed(backend) -> N
 def test_a_stretch_past_the_float_range_next_to_a_singular_end_is_refused_not_crashed(formula) -> None:
     """Regression from the engine's differential fuzz (this session): x^x is undefined at 0, so the integral
     goes in pieces, and a panel stretch whose enclosure was infinite raised OverflowError when the pieces
-    were summed. ∫₀¹ 1e600·x^x is about 7.8e599 (common practice, no source: ∫₀¹ x^x ≈ 0.78343), beyond
+    were summed. ∫₀¹ 1e600·x^x is about 7.8e599 (from memory: ∫₀¹ x^x ≈ 0.78343), beyond
     float64, so the answer is the coded refusal."""
     with pytest.raises(NotCertifiable) as refused:
         integrate(formula, 0, 1, 1e-6, max_nodes=801, deadline_seconds=5)
