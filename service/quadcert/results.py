@@ -10,12 +10,15 @@ import math
 from collections.abc import Callable, Mapping
 from dataclasses import MISSING, asdict, dataclass, field, fields
 from decimal import ROUND_CEILING, ROUND_FLOOR, Context, Decimal
-from typing import Any, Literal, TypeVar
+from typing import Any, Literal, TypeVar, get_args
 
 from ._version import ENGINE_VERSION
 
 #: why refinement stopped; only tolerance_met has tolerance_met true (the enclosure is rigorous in every case)
 StopReason = Literal["tolerance_met", "node_budget", "deadline", "resolution_limit"]
+#: the panel rules a request may ask for (docs/gauss-legendre.md); Simpson is the default
+Rule = Literal["simpson", "gauss-legendre", "auto"]
+RULES: tuple[str, ...] = get_args(Rule)
 #: a CI verdict: pass (certified |claimed − exact| <= tolerance), fail (certified >), undecided
 Verdict = Literal["pass", "fail", "undecided"]
 

@@ -16,7 +16,7 @@ from pydantic import (
     WithJsonSchema,
 )
 
-from ..results import StopReason, Verdict  # the engine's own state types, not a second copy
+from ..results import Rule, StopReason, Verdict  # the engine's own state types, not a second copy
 
 
 def _json_number(value: Any) -> Decimal | int:
@@ -89,7 +89,7 @@ class IntegralRequest(_Strict):
     parameters: Parameters = Field(default_factory=dict)
     max_nodes: StrictInt | None = Field(None, description="Evaluation budget; the server default applies if absent")
     include_mesh: StrictBool = False
-    rule: Literal["simpson", "gauss-legendre", "auto"] = Field(
+    rule: Rule = Field(
         "simpson",
         description="The panel rule: composite Simpson (default); gauss-legendre (5-point panels with a rigorous "
         "f^(10) remainder, Simpson's bounds where f is not that smooth); auto (both on every panel, the narrower "

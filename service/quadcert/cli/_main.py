@@ -31,7 +31,7 @@ from ..quadrature import (
     plan,
     shown,
 )
-from ..results import check_body, integral_body, integral_from, plan_body
+from ..results import RULES, check_body, integral_body, integral_from, plan_body
 from . import _junit, _table
 
 if TYPE_CHECKING:
@@ -482,7 +482,7 @@ def build_parser() -> argparse.ArgumentParser:
     one.add_argument("--mesh", action="store_true", help="also print every panel")
     one.add_argument(
         "--rule",
-        choices=("simpson", "gauss-legendre", "auto"),
+        choices=RULES,
         default="simpson",
         help="panel rule: simpson (default), gauss-legendre (5-point panels, fewer nodes on smooth integrands), "
         "or auto (the narrower on each panel)",

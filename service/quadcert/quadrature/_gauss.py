@@ -25,8 +25,6 @@ from fractions import Fraction
 from functools import lru_cache
 from typing import Any
 
-import numpy as np
-
 from ..arithmetic import Arithmetic, MpmathArithmetic
 
 #: the points per panel the service uses: degree 2n − 1 = 9, remainder in f^(10)
@@ -60,6 +58,8 @@ def rule(n: int, bits: int) -> tuple[tuple[Bounds, Bounds], ...]:
 
     Raises ArithmeticError if a root cannot be isolated (not expected for n ≤ 64; a proof step, not a guess).
     """
+    import numpy as np  # only for the first guesses, once per (n, bits): the engine's import stays light
+
     guesses, _ = np.polynomial.legendre.leggauss(n)
     step = Fraction(1, 1 << (bits + 1))
     found: list[Bounds] = []

@@ -11,6 +11,7 @@ from fractions import Fraction
 from ..arithmetic import ParameterValue, Within, fraction_down
 from ..errors import InvalidInput
 from ..formula._limits import MAX_LITERAL_DIGITS, MAX_LITERAL_EXPONENT
+from ..results import RULES
 
 MIN_TOLERANCE = 1e-60
 MAX_TOLERANCE = 1e300
@@ -188,10 +189,6 @@ def _bounds(low: Fraction, high: Fraction, field: str) -> ParameterValue:
     if low > high:
         raise InvalidInput(f"{field}: the low bound is above the high one", code="invalid_parameter", field=field)
     return low if low == high else Within(low, high)
-
-
-#: the panel rules a request may ask for
-RULES = ("simpson", "gauss-legendre", "auto")
 
 
 def check_rule(rule: object) -> str:

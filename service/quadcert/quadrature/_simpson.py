@@ -29,7 +29,6 @@ from ._result import PanelReport
 
 MAX_DEPTH = 60
 GAUSS = -2  # the order key of the Gauss–Legendre bound (the Peano bounds are keyed by their derivative order)
-RULES = ("simpson", "gauss-legendre", "auto")
 FLOAT_FLOOR = "float_floor"  # internal stop reason, reported as resolution_limit
 _FLOOR_ULPS = 4  # once the panels sum to within this many ulps of the total, look whether float64 is the limit
 _HALF, _SIXTH = Fraction(1, 2), Fraction(1, 6)

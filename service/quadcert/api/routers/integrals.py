@@ -13,6 +13,7 @@ from fastapi.responses import JSONResponse, Response
 
 from ...errors import InvalidInput, QuadcertError
 from ...quadrature import bound_text, shown
+from ...results import Rule
 from .._cache import cache_key
 from .._cell_hints import hint, refuse_unknown_keys
 from .._exact_json import ExactJSONResponse, ExactRoute
@@ -141,7 +142,7 @@ async def read_integral(
     ] = None,
     max_nodes: Annotated[int | None, Query(ge=3, description="evaluation budget; the server default if absent")] = None,
     rule: Annotated[
-        Literal["simpson", "gauss-legendre", "auto"],
+        Rule,
         Query(description="the panel rule: simpson (default), gauss-legendre, or auto (the narrower per panel)"),
     ] = "simpson",
 ) -> Response:
