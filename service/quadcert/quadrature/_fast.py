@@ -27,7 +27,7 @@ from ..errors import ArithmeticFault
 from ..formula import Binary, Call, Constant, Formula, Negate, Node, Number, Parameter, Variable
 from ..formula._catalogue import spelled_out
 from ..formula._nodes import distinct_arguments, parameters_used
-from ..results import StopReason
+from ..results import RULES, StopReason
 from . import _gauss
 from ._native_tables import BINARY, EFFECT, FUNCTION_CODES, MAX_POWER, Op, Status, disagreement
 from ._peano import BOUND_NAMES
@@ -258,7 +258,7 @@ def run(
 
 
 #: the rule codes of the extension, and the names of the bounds it reports (Simpson's orders 0..4, then the rule)
-RULE_CODES = {"simpson": 0, "gauss-legendre": 1, "auto": 2}
+RULE_CODES = {rule: code for code, rule in enumerate(RULES)}  # the extension's RULE_* enum, in this order
 NAMES = {**BOUND_NAMES, 5: _gauss.NAME}
 
 

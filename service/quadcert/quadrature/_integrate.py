@@ -5,7 +5,7 @@ from __future__ import annotations
 import math
 import time
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from fractions import Fraction
 from typing import TYPE_CHECKING, Any
 
@@ -14,7 +14,7 @@ from ..derivatives import Program
 from ..errors import EngineDefect, InvalidInput, NotCertifiable
 from ..formula import Formula
 from ..results import StopReason
-from . import _composite, _fast, _spread
+from . import _composite, _fast, _sensitivity, _spread
 from ._endpoints import enclose_limit, exact_limit
 from ._finish import discretisation_bound, error_bound
 from ._result import IntegralResult, PanelReport
@@ -57,18 +57,13 @@ def run(
     result = _integral(request, deadline_seconds, include_mesh, precision_bits, arithmetic)
     if not sensitivities:
         return result
-    from dataclasses import replace
-
-    from . import _sensitivity
-    from ._sensitivity import sensitivities as enclose_sensitivities
-
     deadline = None if deadline_seconds is None else time.monotonic() + deadline_seconds - result.compute_seconds
 
     def integral(derivative: Request) -> IntegralResult:
         remaining = None if deadline is None else max(1e-3, deadline - time.monotonic())
         return _integral(derivative, remaining, False, precision_bits, arithmetic)
 
-    found = enclose_sensitivities(request, integral)
+    found = _sensitivity.sensitivities(request, integral)
     if result.parameter_spread is not None:
         result = _narrowed(result, _sensitivity.mean_value_form(request, found, integral))
     return replace(result, sensitivities=found, compute_seconds=time.perf_counter() - started)
@@ -79,8 +74,6 @@ def _narrowed(result: IntegralResult, other: tuple[float, float]) -> IntegralRes
 
     The discretisation part stays the one refinement reached; the spread is what the narrower width leaves.
     """
-    from dataclasses import replace
-
     low, high = max(result.enclosure[0], other[0]), min(result.enclosure[1], other[1])
     if low > high:  # two rigorous enclosures of one quantity always meet: this is a defect, not a result
         raise EngineDefect(f"the mean-value form {other} misses the enclosure {result.enclosure}")

@@ -29,6 +29,7 @@ from ._result import PanelReport
 
 MAX_DEPTH = 60
 GAUSS = -2  # the order key of the Gauss–Legendre bound (the Peano bounds are keyed by their derivative order)
+NAMES = {**_peano.BOUND_NAMES, GAUSS: _gauss.NAME}  # reported for the bound that certified a panel
 FLOAT_FLOOR = "float_floor"  # internal stop reason, reported as resolution_limit
 _FLOOR_ULPS = 4  # once the panels sum to within this many ulps of the total, look whether float64 is the limit
 _HALF, _SIXTH = Fraction(1, 2), Fraction(1, 6)
@@ -75,16 +76,16 @@ def _enclose(
     simpson = ar.scale(ar.mul(width, ar.add(ar.add(panel.fp, panel.fq), ar.scale(panel.fm, Fraction(4)))), _SIXTH)
     candidates: list[tuple[int, Any]] = [(0, ar.mul(width, series[0]))]
     smooth = len(series) == 2 * _gauss.POINTS + 1
-    sums = {GAUSS: simpson}  # the rule sum behind each bound; Simpson's unless the rule's own
+    gauss_sum = simpson  # the rule's own sum, where it is computed
     if gauss and smooth:
-        total, panel.extra = _gauss.panel_sum(ar, program.value, panel.p, panel.q)
-        sums[GAUSS] = total
-        candidates.append((GAUSS, ar.add(total, _gauss.remainder(ar, width, series[-1]))))
-    if len(series) >= 5 and not (rule == "gauss-legendre" and smooth):
+        gauss_sum, panel.extra = _gauss.panel_sum(ar, program.value, panel.p, panel.q)
+        candidates.append((GAUSS, ar.add(gauss_sum, _gauss.remainder(ar, width, series[-1]))))
+    peano = not (rule == "gauss-legendre" and smooth)  # Simpson's bounds: everywhere but the rule's panels
+    if len(series) >= 5 and peano:
         remainder = ar.mul(ar.scale(ar.pow_int(width, 5), _peano.SIGNED_4 * 24), series[4])
         candidates.append((4, ar.add(simpson, remainder)))
     for k in (3, 2, 1):
-        if len(series) > k and not (rule == "gauss-legendre" and smooth):
+        if len(series) > k and peano:
             size = ar.function("abs", series[k])
             radius = ar.mul(ar.scale(ar.pow_int(width, k + 1), _peano.ABSOLUTE[k] * _peano.FACTORIAL[k]), size)
             candidates.append((k, ar.add(simpson, ar.hull(ar.neg(radius), radius))))
@@ -92,7 +93,7 @@ def _enclose(
     enclosure = best
     for _, other in candidates:
         enclosure = ar.intersect(enclosure, other)
-    return enclosure, best_order, ar.width(sums[GAUSS] if best_order == GAUSS else simpson)
+    return enclosure, best_order, ar.width(gauss_sum if best_order == GAUSS else simpson)
 
 
 class ExactSum:
@@ -175,7 +176,6 @@ class Refiner:
         self.spread = program.spread
         self.rule = rule
         self.extra_nodes = 0  # Gauss–Legendre nodes, which no other panel shares
-        self.names = {**_peano.BOUND_NAMES, GAUSS: _gauss.NAME}
 
     # -- function values at nodes --------------------------------------------------------------
     def value_at(self, node: Any) -> Any:
@@ -307,17 +307,18 @@ class Refiner:
                 widths, centre = width_sum.value(), centre_sum.value()
                 half = widths / 2
                 near_target = half <= target(centre - half, centre + half) * 1.01
-                at_float_floor = widths <= _FLOOR_ULPS * math.ulp(centre)
-                if self.spread and near_target and widths < next_check:
+                # with a parameters' spread, float64's floor is never the limit: the stop reads the part
+                # bisection can remove, not the whole width
+                at_float_floor = not self.spread and widths <= _FLOOR_ULPS * math.ulp(centre)
+                if (near_target or at_float_floor) and widths < next_check:
                     low, high = self.ar.bounds(self.total(p for _, _, p in heap))
-                    if discretisation_bound(low, high, spread_sum.exact()) <= target(low, high):
+                    if self.spread:
+                        bound = discretisation_bound(low, high, spread_sum.exact())
+                    else:
+                        bound = error_bound(low, high)[1]
+                    if bound <= target(low, high):
                         break
-                    next_check = widths * 0.95
-                elif not self.spread and (near_target or at_float_floor) and widths < next_check:
-                    low, high = self.ar.bounds(self.total(p for _, _, p in heap))
-                    if error_bound(low, high)[1] <= target(low, high):
-                        break
-                    if high <= math.nextafter(math.nextafter(low, math.inf), math.inf):
+                    if not self.spread and high <= math.nextafter(math.nextafter(low, math.inf), math.inf):
                         # as narrow as float64 can show it: neither more panels nor more bits can lower
                         # the reported bound
                         stop = FLOAT_FLOOR
@@ -343,7 +344,7 @@ class Refiner:
         if stuck:
             raise self._unbounded(stuck[0], budget=True)
         for panel in panels:
-            name = self.names[panel.order]
+            name = NAMES[panel.order]
             self.bounds_used[name] = self.bounds_used.get(name, 0) + 1
         return Outcome(self.total(panels), panels, self.nodes(), stop, spread_sum.exact())
 
@@ -375,7 +376,5 @@ class Refiner:
         reports = []
         for panel in ordered:
             low, high = ar.bounds(panel.enclosure if sign > 0 else ar.neg(panel.enclosure))
-            reports.append(
-                PanelReport(ar.bounds(panel.p)[0], ar.bounds(panel.q)[1], (low, high), self.names[panel.order])
-            )
+            reports.append(PanelReport(ar.bounds(panel.p)[0], ar.bounds(panel.q)[1], (low, high), NAMES[panel.order]))
         return tuple(reports)
