@@ -50,11 +50,18 @@ typedef struct {
     Py_ssize_t heap_size;
     long long nodes;
     int overflow;              /* a Taylor coefficient left the float64 range */
+    int tight;                 /* node values from the tight tier (after the guarded one met its floor) */
+    int may_tighten;           /* whether the run may move to the tight tier */
 } refiner;
 
+/* f at a node: the rule sums' values, so in the tight tier where it covers the functions (the panels' Taylor
+   enclosures over whole panels need no such accuracy and keep the guarded layer) */
 static int node_value(refiner *r, iv x, iv *out) {
     series s;
-    if (evaluate(r->vm, x, 0, &s, &r->ln10, &r->two_over_root_pi) || !finite_iv(s.c[0])) return -1;
+    r->vm->tight = r->tight;
+    int failed = evaluate(r->vm, x, 0, &s, &r->ln10, &r->two_over_root_pi);
+    r->vm->tight = 0;
+    if (failed || !finite_iv(s.c[0])) return -1;
     *out = s.c[0];
     return 0;
 }
@@ -260,7 +267,28 @@ static inline double sum_value(const running_sum *acc) { return acc->hi + acc->l
 #define ROUNDING_GOAL_SHARE 0.25   /* rounding above this share of the goal: float64 may not get there */
 #define STALL_SHRINK 0.9           /* doubling the panels must shrink the widths below this share */
 #define STALLS_TO_DECLINE 2        /* checkpoints in a row without that, near the floor, before declining */
+#define TIGHTEN_SHARE 0.25         /* guarded rounding above this share of the goal: move to the tight tier */
 #define FIRST_CHECKPOINT 64        /* panels at the first stall checkpoint (then twice as many each time) */
+
+/* The guarded tier met its floor: every live panel's node values are taken again in the tight tier and the
+   panel certified anew, keeping the mesh (the split points, and with them all the refinement so far).
+   Returns 0, or a decline status. */
+static int tighten(refiner *r) {
+    r->tight = 1;
+    for (Py_ssize_t i = 0; i < r->heap_size; i++) {
+        panel *pn = &r->panels[r->heap[i]];
+        if (node_value(r, pn->p, &pn->fp) || node_value(r, pn->m, &pn->fm) || node_value(r, pn->q, &pn->fq))
+            return DECLINE_VALUE;
+        r->nodes += 3;
+        certify(r, pn);
+        if (r->overflow) return DECLINE_RANGE;
+    }
+    /* the widths changed: the heap is rebuilt in place (Floyd's order would do; pushing is simpler) */
+    Py_ssize_t live = r->heap_size;
+    r->heap_size = 0;
+    for (Py_ssize_t i = 0; i < live; i++) heap_push(r, r->heap[i]);
+    return 0;
+}
 
 static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nodes, double deadline, iv *total_out) {
     iv fa, fb;
@@ -295,8 +323,7 @@ static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nod
             /* float64 cannot get there: its rounding alone takes a quarter of the goal, and it is already a
                visible share of the width (on a coarse mesh next to a singular end the first panels' sums
                are huge and so is their rounding, yet refining shrinks both) */
-            if (rounding_sum > ROUNDING_GOAL_SHARE * goal && width_sum < ROUNDING_SHARE * rounding_sum)
-                return DECLINE_RESOLUTION;
+            int floor_reached = rounding_sum > ROUNDING_GOAL_SHARE * goal && width_sum < ROUNDING_SHARE * rounding_sum;
             if (r->heap_size >= checkpoint) {
                 /* doubling the panels must shrink the total: if twice in a row it barely moves while
                    rounding is already a visible share of it, the float64 floor has been reached before
@@ -304,9 +331,23 @@ static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nod
                    the total flat for a while, and that is no reason to give up) */
                 int near_floor = width_sum < ROUNDING_SHARE * rounding_sum;
                 stalls = (near_floor && width_sum > STALL_SHRINK * width_at_checkpoint) ? stalls + 1 : 0;
-                if (stalls >= STALLS_TO_DECLINE) return DECLINE_STALLED;
                 width_at_checkpoint = width_sum;
                 checkpoint *= 2;
+            }
+            /* the guarded tier's rounding will take a visible share of the goal: cheaper to tighten now, on a
+               small mesh, than at the floor */
+            int tighten_early = !r->tight && r->may_tighten && rounding_sum > TIGHTEN_SHARE * goal;
+            if (floor_reached || stalls >= STALLS_TO_DECLINE || tighten_early) {
+                if (r->tight || !r->may_tighten) return floor_reached ? DECLINE_RESOLUTION : DECLINE_STALLED;
+                /* the float64 floor of the guarded tier: continue on the same mesh with tight values */
+                if ((status = tighten(r))) return status;
+                widths = centres = roundings = (running_sum){0, 0};
+                for (Py_ssize_t i = 0; i < r->heap_size; i++) ACCOUNT(r->heap[i], 1);
+                stalls = 0;
+                width_at_checkpoint = INFINITY;
+                next_check = INFINITY;
+                checkpoint = 2 * r->heap_size;
+                continue;
             }
         }
         long long next = r->nodes + 2 + (r->rule == RULE_SIMPSON ? 0 : 2 * GAUSS_POINTS);   /* a split's cost */
@@ -422,12 +463,12 @@ static PyObject *native_integrate(PyObject *self, PyObject *args) {
     (void)self;
     Py_buffer code;
     PyObject *consts_obj;
-    int stack_size, want_mesh, rule;
+    int stack_size, want_mesh, rule, may_tighten = 1;
     double a_lo, a_hi, b_lo, b_hi, tol, rel, seconds;
     long long max_nodes;
     PyObject *gauss_obj;
-    if (!PyArg_ParseTuple(args, "y*OidddddddLpiO:integrate", &code, &consts_obj, &stack_size, &a_lo, &a_hi, &b_lo,
-                          &b_hi, &tol, &rel, &seconds, &max_nodes, &want_mesh, &rule, &gauss_obj))
+    if (!PyArg_ParseTuple(args, "y*OidddddddLpiO|p:integrate", &code, &consts_obj, &stack_size, &a_lo, &a_hi, &b_lo,
+                          &b_hi, &tol, &rel, &seconds, &max_nodes, &want_mesh, &rule, &gauss_obj, &may_tighten))
         return NULL;
     PyObject *result = NULL;
     refiner r;
@@ -439,6 +480,7 @@ static PyObject *native_integrate(PyObject *self, PyObject *args) {
         goto done;
     }
     r.rule = rule;
+    r.may_tighten = may_tighten;
     if (rule != RULE_SIMPSON) {   /* (t_lo, t_hi) and (w_lo, w_hi) per node, from exact enclosures (_gauss.py) */
         if (!PySequence_Check(gauss_obj) || PySequence_Size(gauss_obj) != 2 * GAUSS_POINTS + 1) {
             PyErr_SetString(PyExc_ValueError, "the Gauss-Legendre table needs 11 intervals");
@@ -523,21 +565,44 @@ done:
     return result;
 }
 
-/* one guarded function over an interval, for the property tests of this layer */
+/* one function over an interval, guarded or (tight = 1) from the tight tier where it covers it, for the
+   property tests of these layers */
 static PyObject *native_enclose(PyObject *self, PyObject *args) {
     (void)self;
-    int op;
+    int op, tight = 0;
     double lo, hi;
-    if (!PyArg_ParseTuple(args, "idd:enclose", &op, &lo, &hi)) return NULL;
+    if (!PyArg_ParseTuple(args, "idd|p:enclose", &op, &lo, &hi, &tight)) return NULL;
     if (!(op >= OP_SQRT && op <= OP_ABS) || !(lo <= hi)) {
         PyErr_SetString(PyExc_ValueError, "unknown function or empty interval");
         return NULL;
     }
     machine vm;
     memset(&vm, 0, sizeof vm);
+    vm.tight = tight;
     iv r = function_value(&vm, op, mk(lo, hi));
     if (vm.fault || !finite_iv(r)) Py_RETURN_NONE;
     return Py_BuildValue("(dd)", r.lo, r.hi);
+}
+
+/* the tight tier's double-word enclosure of f at a float x, as (lo.h, lo.l, hi.h, hi.l), or None where it
+   does not cover it; op -1 gives the constant table's entry x (0..2 ln 2, pi/2, 1/ln 10; 3 + j 1/j!) */
+static PyObject *native_tight(PyObject *self, PyObject *args) {
+    (void)self;
+    int op;
+    double x;
+    if (!PyArg_ParseTuple(args, "id:tight", &op, &x)) return NULL;
+    dwi v;
+    if (op == -1) {
+        int i = (int)x;
+        if (!(x >= 0 && x < 3 + FACTORIALS) || i != x) {
+            PyErr_SetString(PyExc_ValueError, "no such constant");
+            return NULL;
+        }
+        v = dwi_constant(i == 0 ? LN2_DW : i == 1 ? HALF_PI_DW : i == 2 ? INV_LN10_DW : INVERSE_FACTORIAL[i - 3]);
+    } else if (tight_at(op, x, &v) || !dwi_ok(v)) {
+        Py_RETURN_NONE;
+    }
+    return Py_BuildValue("(dddd)", v.lo.h, v.lo.l, v.hi.h, v.hi.l);
 }
 
 /* one arithmetic operation on two intervals (0 add, 1 sub, 2 mul, 3 div, 4 sqr, 5 power n) */
@@ -609,7 +674,8 @@ static PyMethodDef methods[] = {
     {"tables", native_tables, METH_NOARGS, "The opcodes, statuses and constants the engine was built with."},
     {"integrate", native_integrate, METH_VARARGS, "Certified adaptive Simpson of a compiled program."},
     {"taylor", native_taylor, METH_VARARGS, "Taylor coefficient enclosures of a compiled program."},
-    {"enclose", native_enclose, METH_VARARGS, "Guarded enclosure of one elementary function."},
+    {"enclose", native_enclose, METH_VARARGS, "Guarded or tight enclosure of one elementary function."},
+    {"tight", native_tight, METH_VARARGS, "The tight tier's double-word enclosure at a point, or a constant."},
     {"operate", native_operate, METH_VARARGS, "One outward-rounded interval operation."},
     {NULL, NULL, 0, NULL},
 };

@@ -19,6 +19,7 @@ def integrate(
     want_mesh: bool,
     rule: int,
     gauss: tuple[tuple[float, float], ...],
+    may_tighten: bool = True,
     /,
 ) -> tuple[
     int,
@@ -36,8 +37,13 @@ def taylor(
 ) -> list[tuple[float, float]] | None:
     """Enclosures of f^(k)(X)/k! for k = 0..order, or None where the program faults."""
 
-def enclose(op: int, low: float, high: float, /) -> tuple[float, float] | None:
-    """One guarded elementary function over [low, high], or None where it cannot be bounded."""
+def enclose(op: int, low: float, high: float, tight: bool = False, /) -> tuple[float, float] | None:
+    """One elementary function over [low, high], guarded or from the tight tier where it covers it, or None
+    where it cannot be bounded."""
+
+def tight(op: int, x: float, /) -> tuple[float, float, float, float] | None:
+    """The tight tier's double-word enclosure (lo_h, lo_l, hi_h, hi_l) of f(x), or None where it does not
+    cover it; op -1 gives constant number x (ln 2, pi/2, 1/ln 10, then 1/j! for j = 0..30)."""
 
 def operate(
     op: int, a_low: float, a_high: float, b_low: float, b_high: float, n: int = 0, /

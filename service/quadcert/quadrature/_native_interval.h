@@ -33,6 +33,7 @@ typedef struct {
     int stack_size;
     series *stack;
     int fault;
+    int tight;                 /* values at points from the tight tier (_native_tight.h) where it covers them */
 } machine;
 
 enum {
@@ -263,6 +264,8 @@ static iv iv_tan(machine *m, iv a) {
     return mk(g_dn(tan(a.lo)), g_up(tan(a.hi)));
 }
 
+#include "_native_tight.h"
+
 typedef double (*real_fn)(double);
 
 static const double HALF_PI_UP = 0x1.921fb54442d19p+0;   /* pi/2 and pi rounded up: clamps only */
@@ -274,6 +277,8 @@ static inline iv increasing(real_fn f, iv a, double floor_, double ceil_) {
 }
 
 static iv function_value(machine *m, int op, iv a) {
+    iv tight;
+    if (m->tight && tight_value(op, a, &tight) == 0) return tight;
     switch (op) {
     case OP_SQRT:
         if (a.lo < 0) { m->fault = 1; return point(0); }
