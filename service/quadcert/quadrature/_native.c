@@ -584,25 +584,25 @@ static PyObject *native_enclose(PyObject *self, PyObject *args) {
     return Py_BuildValue("(dd)", r.lo, r.hi);
 }
 
-/* the tight tier's double-word enclosure of f at a float x, as (lo.h, lo.l, hi.h, hi.l), or None where it
+/* the tight tier's enclosure of f at a float x, as the ball (m.h, m.l, r), or None where it
    does not cover it; op -1 gives the constant table's entry x (0..2 ln 2, pi/2, 1/ln 10; 3 + j 1/j!) */
 static PyObject *native_tight(PyObject *self, PyObject *args) {
     (void)self;
     int op;
     double x;
     if (!PyArg_ParseTuple(args, "id:tight", &op, &x)) return NULL;
-    dwi v;
+    ball v;
     if (op == -1) {
         int i = (int)x;
         if (!(x >= 0 && x < 3 + FACTORIALS) || i != x) {
             PyErr_SetString(PyExc_ValueError, "no such constant");
             return NULL;
         }
-        v = dwi_constant(i == 0 ? LN2_DW : i == 1 ? HALF_PI_DW : i == 2 ? INV_LN10_DW : INVERSE_FACTORIAL[i - 3]);
-    } else if (tight_at(op, x, &v) || !dwi_ok(v)) {
+        v = b_constant(i == 0 ? LN2_DW : i == 1 ? HALF_PI_DW : i == 2 ? INV_LN10_DW : INVERSE_FACTORIAL[i - 3]);
+    } else if (tight_at(op, x, &v) || !b_ok(v)) {
         Py_RETURN_NONE;
     }
-    return Py_BuildValue("(dddd)", v.lo.h, v.lo.l, v.hi.h, v.hi.l);
+    return Py_BuildValue("(ddd)", v.m.h, v.m.l, v.r);
 }
 
 /* one arithmetic operation on two intervals (0 add, 1 sub, 2 mul, 3 div, 4 sqr, 5 power n) */

@@ -41,8 +41,8 @@ def enclose(op: int, low: float, high: float, tight: bool = False, /) -> tuple[f
     """One elementary function over [low, high], guarded or from the tight tier where it covers it, or None
     where it cannot be bounded."""
 
-def tight(op: int, x: float, /) -> tuple[float, float, float, float] | None:
-    """The tight tier's double-word enclosure (lo_h, lo_l, hi_h, hi_l) of f(x), or None where it does not
+def tight(op: int, x: float, /) -> tuple[float, float, float] | None:
+    """The tight tier's enclosure of f(x) as a ball (midpoint high and low words, radius), or None where it does not
     cover it; op -1 gives constant number x (ln 2, pi/2, 1/ln 10, then 1/j! for j = 0..30)."""
 
 def operate(

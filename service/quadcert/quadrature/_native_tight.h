@@ -8,12 +8,16 @@
 
 /* The value h + l.  Every operation returns it normalised (|l| <= ulp(h)/2, and l = 0 when h = 0). */
 typedef struct { double h, l; } dw;
-/* lo <= the exact value <= hi */
-typedef struct { dw lo, hi; } dwi;
+/* Midpoint and radius: every value within r of m.  r >= 0 is a float, m a double word. */
+typedef struct { dw m; double r; } ball;
 
-#define DW_REL 0x1p-99      /* relative widening per operation: 128 u^2, against at most 6.1 u^2 of error */
-#define DW_ABS 0x1p-1000    /* absolute widening per operation: covers every underflowed rounding */
+#define DW_REL 0x1p-99      /* relative error bound per operation: 128 u^2, against at most 6.1 u^2 */
+#define DW_ABS 0x1p-1000    /* absolute error bound per operation: covers every underflowed rounding */
 #define DW_RANGE 0x1p900    /* magnitudes the tier accepts; beyond, the guarded layer answers */
+/* A radius is a formula of at most 10 float operations on nonnegative floats, rounded to nearest, and uses
+   |h| for |h + l| <= (1 + u)|h|; multiplied by SLACK (1 + 128 u), itself rounded, it bounds the exact
+   formula from above (docs/compiled-tiers.md, section 2). */
+#define SLACK (1 + 0x1p-46)
 
 /* ---- error-free transformations and operations with an error bound --------------------------- */
 
@@ -23,100 +27,72 @@ static inline dw two_sum(double a, double b) {   /* exact: a + b = s + e (no ove
     return r;
 }
 
-/* a + b for normalised a, b: |result - (a + b)| <= 3.1 u^2 (|a.h| + |b.h|) + 2 eta; *err gets a bound
-   that is at least that */
-static inline dw dw_add(dw a, dw b, double *err) {
+/* a + b for normalised a, b: within 3.1 u^2 (|a.h| + |b.h|) + 2 eta of the exact sum */
+static inline dw dw_add(dw a, dw b) {
     dw s = two_sum(a.h, b.h);
     double v = a.l + b.l;
     double w = s.l + v;
-    *err = add_up(mul_up(add_up(fabs(a.h), fabs(b.h)), DW_REL), DW_ABS);
     return two_sum(s.h, w);
 }
 
-/* a * b for normalised a, b: |result - a b| <= 6.1 u^2 |a.h b.h| + 4 eta (the FMA makes a.h b.h exact to eta) */
-static inline dw dw_mul(dw a, dw b, double *err) {
+/* a * b for normalised a, b: within 6.1 u^2 |a.h b.h| + 4 eta of the exact product (the FMA makes a.h b.h
+   exact to eta) */
+static inline dw dw_mul(dw a, dw b) {
     double ch = a.h * b.h;
     double cl1 = fma(a.h, b.h, -ch);
     double tl0 = a.l * b.l;
     double tl1 = fma(a.h, b.l, tl0);
     double cl2 = fma(a.l, b.h, tl1);
     double cl3 = cl1 + cl2;
-    *err = add_up(mul_up(mul_up(fabs(a.h), fabs(b.h)), DW_REL), DW_ABS);
     return two_sum(ch, cl3);
 }
 
-/* z moved down / up by err (>= 0), renormalised exactly */
-static inline dw dw_below(dw z, double err) { return two_sum(z.h, add_dn(z.l, -err)); }
-static inline dw dw_above(dw z, double err) { return two_sum(z.h, add_up(z.l, err)); }
-
 static inline dw dw_point(double x) { dw r = {x, 0.0}; return r; }
-static inline dw dw_neg(dw a) { dw r = {-a.h, -a.l}; return r; }
-/* comparisons of normalised values: a.h < b.h implies a <= b */
-static inline int dw_less(dw a, dw b) { return a.h < b.h || (a.h == b.h && a.l < b.l); }
-static inline int dw_ok(dw a) { return fabs(a.h) <= DW_RANGE; }   /* false for NaN and infinities too */
+static inline ball b_make(dw m, double r) { ball b = {m, r}; return b; }
+static inline ball b_point(double x) { return b_make(dw_point(x), 0.0); }
+static inline ball b_neg(ball a) { dw m = {-a.m.h, -a.m.l}; return b_make(m, a.r); }
+static inline int b_ok(ball a) { return fabs(a.m.h) <= DW_RANGE && a.r <= DW_RANGE; }   /* false for NaN too */
 
-static inline dwi dwi_point(double x) { dwi r = {dw_point(x), dw_point(x)}; return r; }
-static inline dwi dwi_make(dw lo, dw hi) { dwi r = {lo, hi}; return r; }
-static inline dwi dwi_neg(dwi a) { return dwi_make(dw_neg(a.hi), dw_neg(a.lo)); }
-static inline int dwi_ok(dwi a) { return dw_ok(a.lo) && dw_ok(a.hi); }
+static inline ball b_add(ball a, ball b) {
+    double r = (a.r + b.r + (fabs(a.m.h) + fabs(b.m.h)) * DW_REL + DW_ABS) * SLACK;
+    return b_make(dw_add(a.m, b.m), r);
+}
+static inline ball b_sub(ball a, ball b) { return b_add(a, b_neg(b)); }
 
-/* a constant v = h + l, rounded to nearest in 107 bits: within 2^-106 |h| of v, enclosed with 2^-104 |h| */
-static inline dwi dwi_constant(dw v) {
-    double err = mul_up(fabs(v.h), 0x1p-104);
-    return dwi_make(dw_below(v, err), dw_above(v, err));
+/* |a b - a.m b.m| <= |a.m| b.r + |b.m| a.r + a.r b.r, plus dw_mul's own error */
+static inline ball b_mul(ball a, ball b) {
+    double x = fabs(a.m.h), y = fabs(b.m.h);
+    double r = (x * b.r + y * a.r + a.r * b.r + x * y * DW_REL + DW_ABS) * SLACK;
+    return b_make(dw_mul(a.m, b.m), r);
 }
 
-static inline dwi dwi_add(dwi a, dwi b) {
-    double e1, e2;
-    dw lo = dw_add(a.lo, b.lo, &e1), hi = dw_add(a.hi, b.hi, &e2);
-    return dwi_make(dw_below(lo, e1), dw_above(hi, e2));
-}
-static inline dwi dwi_sub(dwi a, dwi b) { return dwi_add(a, dwi_neg(b)); }
+/* a constant v = h + l rounded to nearest in 107 bits: within 2^-106 |h| of the value; radius 2^-104 |h| */
+static inline ball b_constant(dw v) { return b_make(v, fabs(v.h) * 0x1p-104 + DW_ABS); }
 
-static inline dwi dw_product(dw a, dw b) {
-    double e;
-    dw p = dw_mul(a, b, &e);
-    return dwi_make(dw_below(p, e), dw_above(p, e));
-}
+/* an upper bound of |v| over the ball */
+static inline double b_magnitude(ball a) { return (fabs(a.m.h) * (1 + 0x1p-52) + a.r) * SLACK; }
 
-static dwi dwi_mul(dwi a, dwi b) {
-    if (a.lo.h >= 0 && b.lo.h >= 0) return dwi_make(dw_product(a.lo, b.lo).lo, dw_product(a.hi, b.hi).hi);
-    if (a.hi.h <= 0 && b.hi.h <= 0) return dwi_make(dw_product(a.hi, b.hi).lo, dw_product(a.lo, b.lo).hi);
-    dwi c[4] = {dw_product(a.lo, b.lo), dw_product(a.lo, b.hi), dw_product(a.hi, b.lo), dw_product(a.hi, b.hi)};
-    dwi r = c[0];
-    for (int i = 1; i < 4; i++) {
-        if (dw_less(c[i].lo, r.lo)) r.lo = c[i].lo;
-        if (dw_less(r.hi, c[i].hi)) r.hi = c[i].hi;
-    }
-    return r;
+/* the balls' ends as floats, outward: at or below m - r, at or above m + r */
+static inline double b_floor(ball a) {
+    dw low = two_sum(a.m.h, add_dn(a.m.l, -a.r));
+    return low.l >= 0 ? low.h : dn(low.h);
+}
+static inline double b_ceil(ball a) {
+    dw high = two_sum(a.m.h, add_up(a.m.l, a.r));
+    return high.l <= 0 ? high.h : up(high.h);
 }
 
-/* [-e, e] for a float e >= 0 */
-static inline dwi dwi_radius(double e) { return dwi_make(dw_point(-e), dw_point(e)); }
-/* the largest magnitude in a, rounded up to a float */
-static inline double dwi_magnitude(dwi a) {
-    return greater(add_up(fabs(a.lo.h), fabs(a.lo.l)), add_up(fabs(a.hi.h), fabs(a.hi.l)));
-}
-
-/* 1/d for one positive d: with f = 1/d.h in floats and e = 1 - d f (|e| tiny), 1/d = f (1 + e + e^2/(1 - e)),
-   and 0 <= e^2/(1 - e) <= e^2 / (1 - |e|). */
-static int dw_reciprocal(dw d, dwi *out) {
-    if (!(d.h >= 0x1p-900 && d.h <= DW_RANGE)) return -1;
-    double f = 1.0 / d.h;
-    dwi e = dwi_sub(dwi_point(1.0), dw_product(d, dw_point(f)));
-    double em = dwi_magnitude(e);
+/* 1/v for every v in a ball of positive values: with f = 1/m.h in floats and e = 1 - v f (tiny),
+   1/v = f (1 + e + e^2/(1 - e)), and 0 <= e^2/(1 - e) <= em^2/(1 - em) for |e| <= em < 1 */
+static int b_reciprocal(ball a, ball *out) {
+    if (!(a.m.h >= 0x1p-900 && a.m.h <= DW_RANGE)) return -1;
+    double f = 1.0 / a.m.h;
+    ball e = b_sub(b_point(1.0), b_mul(a, b_point(f)));
+    double em = b_magnitude(e);
     if (!(em <= 0x1p-40)) return -1;
-    double tail = mul_up(mul_up(em, em), 1.001);
-    dwi factor = dwi_add(dwi_add(dwi_point(1.0), e), dwi_make(dw_point(0.0), dw_point(tail)));
-    *out = dwi_mul(dwi_point(f), factor);
-    return 0;
-}
-
-/* 1/a for a positive interval a */
-static int dwi_reciprocal(dwi a, dwi *out) {
-    dwi low, high;
-    if (a.lo.h <= 0 || dw_reciprocal(a.hi, &low) || dw_reciprocal(a.lo, &high)) return -1;
-    *out = dwi_make(low.lo, high.hi);
+    double tail = em * em * 1.01;   /* >= em^2/(1 - em), rounding included */
+    ball factor = b_add(b_add(b_point(1.0), e), b_make(dw_point(0.5 * tail), 0.5 * tail));
+    *out = b_mul(b_point(f), factor);
     return 0;
 }
 
@@ -145,176 +121,176 @@ static const dw INVERSE_FACTORIAL[FACTORIALS] = {
     {0x1.3932c5047d60ep-108, 0x1.832b7b530a627p-162},
 };
 
-static inline dwi inverse_factorial(int j) { return dwi_constant(INVERSE_FACTORIAL[j]); }
+static inline ball inverse_factorial(int j) { return b_constant(INVERSE_FACTORIAL[j]); }
 
-/* x^n / n! for 0 <= x <= m: an upper bound, in floats */
-static double power_term(double m, int n) { return mul_up(pos_pow(m, n, 1), INVERSE_FACTORIAL[n].h * 1.0000001); }
+/* an upper bound of x^n / n! for 0 <= x: at most 10 roundings (binary powering, n < 32), so SLACK covers them */
+static double power_term(double x, int n) {
+    double result = 1.0, base = x;
+    for (int k = n; k; k >>= 1) {
+        if (k & 1) result *= base;
+        if (k > 1) base *= base;
+    }
+    return result * INVERSE_FACTORIAL[n].h * SLACK;
+}
+
+/* p(t) = sum of c_j t^j for j = 0..n with c_j = 1/j! (step 1) or 1/(2j + first)! (step 2, in t = r^2),
+   by Horner in balls; sign -1 alternates the terms */
+static ball power_series(ball t, int n, int first, int step, int sign) {
+    ball p = inverse_factorial(first + step * n);
+    for (int j = n - 1; j >= 0; j--) {
+        ball tp = b_mul(t, p);
+        p = b_add(inverse_factorial(first + step * j), sign < 0 ? b_neg(tp) : tp);
+    }
+    return p;
+}
 
 /* ---- the functions at a point ------------------------------------------------------------- */
 
-#define EXP_HALVINGS 4      /* e^r = (e^(r/16))^16 */
-#define EXP_TERMS 13        /* |r/16| <= 0.022: the dropped terms are below 2^-110 */
+#define EXP_HALVINGS 3      /* e^r = (e^(r/8))^8 */
+#define EXP_TERMS 10        /* |r/8| <= 0.044: the first dropped term is below 2^-75 */
 
-/* e^x: x = k ln 2 + r, e^r from its series at r/16 squared four times, times 2^k */
-static int tight_exp(double x, dwi *out) {
-    if (x == 0) { *out = dwi_point(1.0); return 0; }
+/* e^x: x = k ln 2 + r, e^r from its series at r/8 squared three times, times 2^k */
+static int tight_exp(double x, ball *out) {
+    if (x == 0) { *out = b_point(1.0); return 0; }
     if (!(fabs(x) <= 600)) return -1;
     double k = nearbyint(x * 0x1.71547652b82fep+0);   /* x / ln 2, any rounding will do */
-    dwi r = dwi_point(x);
-    if (k != 0) r = dwi_sub(r, dwi_mul(dwi_point(k), dwi_constant(LN2_DW)));
-    dwi t = dwi_mul(r, dwi_point(0x1p-4));
-    double m = dwi_magnitude(t);
+    ball r = b_point(x);
+    if (k != 0) r = b_sub(r, b_mul(b_point(k), b_constant(LN2_DW)));
+    ball t = b_mul(r, b_point(0.125));
+    double m = b_magnitude(t);
     if (!(m <= 0.05)) return -1;
-    dwi p = inverse_factorial(EXP_TERMS);
-    for (int j = EXP_TERMS - 1; j >= 0; j--) p = dwi_add(inverse_factorial(j), dwi_mul(t, p));
-    /* Lagrange: the rest is t^14/14! e^xi with |xi| <= m < 0.05, so at most 1.06 m^14/14! */
-    p = dwi_add(p, dwi_radius(mul_up(power_term(m, EXP_TERMS + 1), 1.06)));
-    for (int i = 0; i < EXP_HALVINGS; i++) p = dwi_mul(p, p);
-    if (k != 0) p = dwi_mul(p, dwi_point(ldexp(1.0, (int)k)));
-    if (!dwi_ok(p) || p.lo.h <= 0) return -1;
+    ball p = power_series(t, EXP_TERMS, 0, 1, 1);
+    /* Lagrange: the rest is t^11/11! e^xi with |xi| <= m <= 0.05, at most 1.06 m^11/11! */
+    p.r = (p.r + power_term(m, EXP_TERMS + 1) * 1.06) * SLACK;
+    for (int i = 0; i < EXP_HALVINGS; i++) p = b_mul(p, p);
+    if (k != 0) p = b_mul(p, b_point(ldexp(1.0, (int)k)));
+    if (!b_ok(p)) return -1;
     *out = p;
     return 0;
 }
 
 /* log x = y + log(x e^-y) for the library's y; x e^-y = 1 + t with t tiny, and
    |log(1 + t) - (t - t^2/2)| <= |t|^3 / (3 (1 - |t|)) */
-static int tight_log(double x, dwi *out) {
-    if (x == 1) { *out = dwi_point(0.0); return 0; }
+static int tight_log(double x, ball *out) {
+    if (x == 1) { *out = b_point(0.0); return 0; }
     if (!(x > 0) || !(x <= DW_RANGE)) return -1;
     double y = log(x);
-    dwi e;
+    ball e;
     if (!(fabs(y) <= 600) || tight_exp(-y, &e)) return -1;
-    dwi t = dwi_sub(dwi_mul(e, dwi_point(x)), dwi_point(1.0));
-    double m = dwi_magnitude(t);
+    ball t = b_sub(b_mul(e, b_point(x)), b_point(1.0));
+    double m = b_magnitude(t);
     if (!(m <= 0x1p-30)) return -1;
-    dwi series = dwi_sub(t, dwi_mul(dwi_mul(t, t), dwi_point(0.5)));
-    series = dwi_add(series, dwi_radius(mul_up(pos_pow(m, 3, 1), 0.3334)));
-    *out = dwi_add(dwi_point(y), series);
+    ball value = b_sub(t, b_mul(b_mul(t, t), b_point(0.5)));
+    value.r = (value.r + m * m * m * 0.3334) * SLACK;
+    *out = b_add(b_point(y), value);
     return 0;
 }
 
-/* sin and cos of r with 0 <= r < 1: alternating series whose terms fall, so each is within its first
-   dropped term */
-#define SIN_TERMS 13   /* up to r^27/27! */
-static void sin_cos_small(dwi r, dwi *s, dwi *c) {
-    dwi r2 = dwi_mul(r, r);
-    double m = dwi_magnitude(r);
-    dwi p = inverse_factorial(2 * SIN_TERMS + 1);
-    for (int j = SIN_TERMS - 1; j >= 0; j--) p = dwi_sub(inverse_factorial(2 * j + 1), dwi_mul(r2, p));
-    *s = dwi_add(dwi_mul(r, p), dwi_radius(power_term(m, 2 * SIN_TERMS + 3)));
-    dwi q = inverse_factorial(2 * SIN_TERMS + 2);
-    for (int j = SIN_TERMS; j >= 0; j--) q = dwi_sub(inverse_factorial(2 * j), dwi_mul(r2, q));
-    *c = dwi_add(q, dwi_radius(power_term(m, 2 * SIN_TERMS + 4)));
-}
-
+#define SIN_TERMS 9    /* sin r to r^19/19!: for |r| < 0.8 the first dropped term is below 2^-72 */
+#define COS_TERMS 10   /* cos r to r^20/20!: the first dropped term below 2^-77 */
 #define TIGHT_TRIG_LIMIT 0x1p20   /* k pi/2 to 2^-79 absolute or better */
 
-/* sin x and cos x: x = k pi/2 + r, then the quadrant */
-static int tight_sin_cos(double x, dwi *s, dwi *c) {
-    if (x == 0) { *s = dwi_point(0.0); *c = dwi_point(1.0); return 0; }
+/* sin r (want_cos = 0) or cos r for |r| < 1: alternating series whose terms fall, so the sum is within its
+   first dropped term */
+static ball sin_or_cos_small(ball r, int want_cos) {
+    ball r2 = b_mul(r, r);
+    double m = b_magnitude(r);
+    ball v;
+    if (want_cos) {
+        v = power_series(r2, COS_TERMS, 0, 2, -1);
+        v.r = (v.r + power_term(m, 2 * COS_TERMS + 2)) * SLACK;
+    } else {
+        v = b_mul(r, power_series(r2, SIN_TERMS, 1, 2, -1));
+        v.r = (v.r + power_term(m, 2 * SIN_TERMS + 3)) * SLACK;
+    }
+    return v;
+}
+
+/* sin x (want_cos = 0) or cos x: x = k pi/2 + r, then the quadrant picks sin r or cos r and the sign */
+static int tight_sin_cos(double x, int want_cos, ball *out) {
+    if (x == 0) { *out = b_point(want_cos ? 1.0 : 0.0); return 0; }
     if (!(fabs(x) <= TIGHT_TRIG_LIMIT)) return -1;
     double k = nearbyint(x * 0x1.45f306dc9c883p-1);   /* x / (pi/2), any rounding will do */
-    dwi r = dwi_point(x);
-    if (k != 0) r = dwi_sub(r, dwi_mul(dwi_point(k), dwi_constant(HALF_PI_DW)));
-    dwi sr, cr;
-    if (r.lo.h < 0 && r.hi.h > 0) {
-        /* r straddles 0 (only when it is far below 2^-26): sin r lies in r, cos r in [1 - r^2/2, 1] */
-        double m = dwi_magnitude(r);
-        if (!(m <= 0x1p-26)) return -1;
-        sr = r;
-        cr = dwi_make(dw_point(dn(1.0)), dw_point(1.0));
-    } else {
-        int negative = r.hi.h <= 0;
-        dwi a = negative ? dwi_neg(r) : r;
-        if (!(dwi_magnitude(a) < 1.0)) return -1;
-        sin_cos_small(a, &sr, &cr);
-        if (negative) sr = dwi_neg(sr);
-    }
-    switch ((((long long)k) % 4 + 4) % 4) {
-    case 0: *s = sr; *c = cr; break;
-    case 1: *s = cr; *c = dwi_neg(sr); break;
-    case 2: *s = dwi_neg(sr); *c = dwi_neg(cr); break;
-    default: *s = dwi_neg(cr); *c = sr; break;
-    }
+    ball r = b_point(x);
+    if (k != 0) r = b_sub(r, b_mul(b_point(k), b_constant(HALF_PI_DW)));
+    if (!(b_magnitude(r) < 1.0)) return -1;
+    int quadrant = (int)((((long long)k) % 4 + 4) % 4) + (want_cos ? 1 : 0);
+    /* sin(r + q pi/2): sin r, cos r, -sin r, -cos r for q = 0..3; cos x = sin(x + pi/2) */
+    ball v = sin_or_cos_small(r, quadrant % 2);
+    *out = quadrant % 4 >= 2 ? b_neg(v) : v;
     return 0;
 }
 
 /* atan x = y + atan(d) for the library's y (of x's sign, |y| < pi/2), with
-   d = tan(atan x - y) = (x cos y - sin y) / (cos y + x sin y); for |d| tiny,
-   d - d^3/3 <= atan d <= d when d >= 0, and the mirror image below 0 */
-static int tight_atan(double x, dwi *out) {
-    if (x == 0) { *out = dwi_point(0.0); return 0; }
+   d = tan(atan x - y) = (x cos y - sin y) / (cos y + x sin y); for |d| <= m tiny,
+   |atan d - d| <= m^3/3 */
+static int tight_atan(double x, ball *out) {
+    if (x == 0) { *out = b_point(0.0); return 0; }
     if (!(fabs(x) <= DW_RANGE)) return -1;
     double y = atan(x);
     if (!(fabs(y) < 1.5707963267948966) || (y > 0) != (x > 0)) return -1;
-    dwi s, c, inverse;
-    if (tight_sin_cos(y, &s, &c) || c.lo.h <= 0) return -1;
-    dwi xp = dwi_point(x);
-    dwi numerator = dwi_sub(dwi_mul(xp, c), s);
-    if (dwi_reciprocal(dwi_add(c, dwi_mul(xp, s)), &inverse)) return -1;
-    dwi d = dwi_mul(numerator, inverse);
-    double m = dwi_magnitude(d);
+    ball s, c, inverse;
+    if (tight_sin_cos(y, 0, &s) || tight_sin_cos(y, 1, &c)) return -1;
+    ball xp = b_point(x);
+    ball numerator = b_sub(b_mul(xp, c), s);
+    if (b_reciprocal(b_add(c, b_mul(xp, s)), &inverse)) return -1;
+    ball d = b_mul(numerator, inverse);
+    double m = b_magnitude(d);
     if (!(m <= 0x1p-30)) return -1;
-    double cube = mul_up(pos_pow(m, 3, 1), 0.3334);
-    d = dwi_add(d, dwi_make(dw_point(d.lo.h > 0 ? -cube : 0.0), dw_point(d.hi.h < 0 ? cube : 0.0)));
-    *out = dwi_add(dwi_point(y), d);
+    d.r = (d.r + m * m * m * 0.3334) * SLACK;
+    *out = b_add(b_point(y), d);
     return 0;
 }
 
-/* sinh of a >= 0 below 1/2 by its series (positive terms, the rest below 1.34 times the first dropped) */
-#define SINH_TERMS 12
-static dwi sinh_small(double a) {
-    dwi x = dwi_point(a), x2 = dwi_mul(x, x);
-    dwi p = inverse_factorial(2 * SINH_TERMS + 1);
-    for (int j = SINH_TERMS - 1; j >= 0; j--) p = dwi_add(inverse_factorial(2 * j + 1), dwi_mul(x2, p));
-    double rest = mul_up(power_term(a, 2 * SINH_TERMS + 3), 1.34);
-    return dwi_add(dwi_mul(x, p), dwi_make(dw_point(0.0), dw_point(rest)));
-}
+#define SINH_TERMS 10   /* |x| < 1/2: the first dropped term x^23/23! is below 2^-96 */
 
-/* cosh, sinh and tanh from e^|x| (and the series of sinh near 0, where the difference would cancel) */
-static int tight_hyperbolic(int op, double x, dwi *out) {
+/* cosh, sinh and tanh from e^|x|, and the series of sinh below 1/2, where the difference would cancel
+   (positive terms; the rest is below 1.01 times the first dropped one) */
+static int tight_hyperbolic(int op, double x, ball *out) {
     double a = fabs(x);
-    if (x == 0) { *out = dwi_point(op == OP_COSH ? 1.0 : 0.0); return 0; }
-    if (op == OP_TANH && a > 300) {   /* 1 - 2/(e^(2a) + 1) > 1 - 2^-800 */
-        dw one = dw_point(1.0), below = two_sum(1.0, -0x1p-800);
-        *out = x > 0 ? dwi_make(below, one) : dwi_make(dw_neg(one), dw_neg(below));
+    if (x == 0) { *out = b_point(op == OP_COSH ? 1.0 : 0.0); return 0; }
+    if (op == OP_TANH && a > 300) {   /* 1 - 2/(e^(2a) + 1) lies in (1 - 2^-800, 1) */
+        ball v = b_make(two_sum(1.0, -0x1p-801), 0x1p-801);
+        *out = x > 0 ? v : b_neg(v);
         return 0;
     }
-    dwi e, inverse, r;
+    ball e, inverse, r;
     if (op == OP_TANH && a >= 0.5) {
-        if (tight_exp(2 * a, &e) || dwi_reciprocal(dwi_add(e, dwi_point(1.0)), &inverse)) return -1;
-        r = dwi_sub(dwi_point(1.0), dwi_mul(inverse, dwi_point(2.0)));
+        if (tight_exp(2 * a, &e) || b_reciprocal(b_add(e, b_point(1.0)), &inverse)) return -1;
+        r = b_sub(b_point(1.0), b_mul(inverse, b_point(2.0)));
     } else {
-        if (tight_exp(a, &e) || dwi_reciprocal(e, &inverse)) return -1;
-        dwi cosh = dwi_mul(dwi_add(e, inverse), dwi_point(0.5));
+        if (tight_exp(a, &e) || b_reciprocal(e, &inverse)) return -1;
+        ball cosh = b_mul(b_add(e, inverse), b_point(0.5));
         if (op == OP_COSH) { *out = cosh; return 0; }
-        dwi sinh = a < 0.5 ? sinh_small(a) : dwi_mul(dwi_sub(e, inverse), dwi_point(0.5));
+        ball sinh;
+        if (a < 0.5) {
+            ball xp = b_point(a);
+            sinh = b_mul(xp, power_series(b_mul(xp, xp), SINH_TERMS, 1, 2, 1));
+            sinh.r = (sinh.r + power_term(a, 2 * SINH_TERMS + 3) * 1.01) * SLACK;
+        } else {
+            sinh = b_mul(b_sub(e, inverse), b_point(0.5));
+        }
         if (op == OP_SINH) r = sinh;
-        else if (dwi_reciprocal(cosh, &inverse)) return -1;
-        else r = dwi_mul(sinh, inverse);
+        else if (b_reciprocal(cosh, &inverse)) return -1;
+        else r = b_mul(sinh, inverse);
     }
-    *out = x > 0 ? r : dwi_neg(r);
+    *out = x > 0 ? r : b_neg(r);
     return 0;
 }
 
 /* f(x) at a float x, enclosed; -1 where the tier does not cover the function or the argument */
-static int tight_at(int op, double x, dwi *out) {
+static int tight_at(int op, double x, ball *out) {
     switch (op) {
     case OP_EXP: return tight_exp(x, out);
     case OP_LOG: return tight_log(x, out);
     case OP_LOG10: {
-        dwi l;
+        ball l;
         if (tight_log(x, &l)) return -1;
-        *out = dwi_mul(l, dwi_constant(INV_LN10_DW));
+        *out = b_mul(l, b_constant(INV_LN10_DW));
         return 0;
     }
-    case OP_SIN:
-    case OP_COS: {
-        dwi s, c;
-        if (tight_sin_cos(x, &s, &c)) return -1;
-        *out = op == OP_SIN ? s : c;
-        return 0;
-    }
+    case OP_SIN: return tight_sin_cos(x, 0, out);
+    case OP_COS: return tight_sin_cos(x, 1, out);
     case OP_ATAN: return tight_atan(x, out);
     case OP_SINH:
     case OP_COSH:
@@ -323,16 +299,12 @@ static int tight_at(int op, double x, dwi *out) {
     return -1;
 }
 
-/* the float at or below / at or above a normalised double-word value */
-static inline double dw_floor(dw a) { return a.l >= 0 ? a.h : dn(a.h); }
-static inline double dw_ceil(dw a) { return a.l <= 0 ? a.h : up(a.h); }
-
 /* f(x) at a float x as floats at or below and at or above it, or -1 */
 static int tight_floats(int op, double x, double *low, double *high) {
-    dwi v;
-    if (tight_at(op, x, &v) || !dwi_ok(v)) return -1;
-    *low = dw_floor(v.lo);
-    *high = dw_ceil(v.hi);
+    ball v;
+    if (tight_at(op, x, &v) || !b_ok(v)) return -1;
+    *low = b_floor(v);
+    *high = b_ceil(v);
     return 0;
 }
 
