@@ -11,10 +11,25 @@ def taylor(compiled: _fast.Compiled, low: float, high: float, order: int) -> lis
     return _fast._native.taylor(compiled.code, compiled.constants, compiled.stack, low, high, order)
 
 
-def enclose_function(name: str, low: float, high: float) -> tuple[float, float] | None:
-    """The guarded layer's enclosure of one function over [low, high] (None: outside its domain)."""
+def enclose_function(name: str, low: float, high: float, tight: bool = False) -> tuple[float, float] | None:
+    """The guarded layer's enclosure of one function over [low, high], or with ``tight`` the tight tier's where
+    it covers the function and the guarded one's elsewhere (None: outside its domain)."""
     assert _fast._native is not None
-    return _fast._native.enclose(_fast.FUNCTION_CODES[name], low, high)
+    return _fast._native.enclose(_fast.FUNCTION_CODES[name], low, high, tight)
+
+
+def tight_ball(name: str, x: float) -> tuple[float, float, float] | None:
+    """The tight tier's ball (midpoint high word, low word, radius) of f(x), or None where it does not cover x."""
+    assert _fast._native is not None
+    return _fast._native.tight(_fast.FUNCTION_CODES[name], x)
+
+
+def tight_constant(index: int) -> tuple[float, float, float]:
+    """The tight tier's ball of its constant ``index``: ln 2, pi/2, 1/ln 10, then 1/j! for j = 0..30."""
+    assert _fast._native is not None
+    ball = _fast._native.tight(-1, float(index))
+    assert ball is not None
+    return ball
 
 
 def operate(
@@ -23,3 +38,31 @@ def operate(
     assert _fast._native is not None
     codes = {"+": 0, "-": 1, "*": 2, "/": 3, "sqr": 4, "pow": 5}
     return _fast._native.operate(codes[op], a[0], a[1], b[0], b[1], n)
+
+
+def run_status(formula: str, a: float, b: float, tolerance: float, rule: str, may_tighten: bool) -> str:
+    """How the compiled engine ends on [a, b] (float limits), with or without its tight tier: ``met`` or why
+    it declined (the outcome's label)."""
+    from quadcert.formula import parse
+
+    assert _fast._native is not None
+    compiled = _fast.compile_formula(parse(formula), {})
+    assert compiled is not None
+    status = _fast._native.integrate(
+        compiled.code,
+        compiled.constants,
+        compiled.stack,
+        a,
+        a,
+        b,
+        b,
+        tolerance,
+        0.0,
+        0.0,
+        10**7,
+        False,
+        _fast.RULE_CODES[rule],
+        _fast._gauss_table() if rule != "simpson" else (),
+        may_tighten,
+    )[0]
+    return _fast.Status(status).label

@@ -27,7 +27,8 @@ static inline dw two_sum(double a, double b) {   /* exact: a + b = s + e (no ove
     return r;
 }
 
-/* a + b for normalised a, b: within 3.1 u^2 (|a.h| + |b.h|) + 2 eta of the exact sum */
+/* a + b for normalised a, b: within 3.1 u^2 (|a.h| + |b.h|) + eta of the exact sum
+   (docs/compiled-tiers.md, section 3) */
 static inline dw dw_add(dw a, dw b) {
     dw s = two_sum(a.h, b.h);
     double v = a.l + b.l;
@@ -35,8 +36,8 @@ static inline dw dw_add(dw a, dw b) {
     return two_sum(s.h, w);
 }
 
-/* a * b for normalised a, b: within 6.1 u^2 |a.h b.h| + 4 eta of the exact product (the FMA makes a.h b.h
-   exact to eta) */
+/* a * b for normalised a, b: within 6.1 u^2 |a.h b.h| + 2.5 eta of the exact product (the FMA makes
+   a.h b.h exact to eta/2) */
 static inline dw dw_mul(dw a, dw b) {
     double ch = a.h * b.h;
     double cl1 = fma(a.h, b.h, -ch);
@@ -228,7 +229,8 @@ static int tight_atan(double x, ball *out) {
     if (x == 0) { *out = b_point(0.0); return 0; }
     if (!(fabs(x) <= DW_RANGE)) return -1;
     double y = atan(x);
-    if (!(fabs(y) < 1.5707963267948966) || (y > 0) != (x > 0)) return -1;
+    /* the float nearest pi/2 lies below it, so |y| <= that float keeps y inside (-pi/2, pi/2) */
+    if (!(fabs(y) <= 0x1.921fb54442d18p+0) || (y > 0) != (x > 0)) return -1;
     ball s, c, inverse;
     if (tight_sin_cos(y, 0, &s) || tight_sin_cos(y, 1, &c)) return -1;
     ball xp = b_point(x);
