@@ -275,14 +275,15 @@ static inline double sum_value(const running_sum *acc) { return acc->hi + acc->l
    Returns 0, or a decline status. */
 static int tighten(refiner *r) {
     r->tight = 1;
+    long long nodes = r->nodes;   /* the same nodes again: the count (and the budget) counts each node once */
     for (Py_ssize_t i = 0; i < r->heap_size; i++) {
         panel *pn = &r->panels[r->heap[i]];
         if (node_value(r, pn->p, &pn->fp) || node_value(r, pn->m, &pn->fm) || node_value(r, pn->q, &pn->fq))
             return DECLINE_VALUE;
-        r->nodes += 3;
         certify(r, pn);
         if (r->overflow) return DECLINE_RANGE;
     }
+    r->nodes = nodes;
     /* the widths changed: the heap is rebuilt in place (Floyd's order would do; pushing is simpler) */
     Py_ssize_t live = r->heap_size;
     r->heap_size = 0;
