@@ -176,4 +176,4 @@ def test_integrate_with_the_gauss_legendre_rule(capsys) -> None:
     body = json.loads(capsys.readouterr().out)
     # ∫₀⁵ sin(200x)e^(−x) dx = (200 − e^(−5)(sin 1000 + 200 cos 1000))/(1 + 200²) (closed form)
     exact = (200 - HP.exp(-5) * (HP.sin(1000) + 200 * HP.cos(1000))) / (1 + 200**2)
-    assert encloses(body["enclosure"], exact) and body["bounds_used"] == {"gauss-legendre-5": body["panels"]}
+    assert encloses(body["enclosure"], exact) and body["bounds_used"] == {"gauss-legendre-10": body["panels"]}

@@ -44,6 +44,7 @@ def run_status(formula: str, a: float, b: float, tolerance: float, rule: str, ma
     """How the compiled engine ends on [a, b] (float limits), with or without its tight tier: ``met`` or why
     it declined (the outcome's label)."""
     from quadcert.formula import parse
+    from quadcert.quadrature._gauss import points_for as _gauss_points
 
     assert _fast._native is not None
     compiled = _fast.compile_formula(parse(formula), {})
@@ -62,7 +63,7 @@ def run_status(formula: str, a: float, b: float, tolerance: float, rule: str, ma
         10**7,
         False,
         _fast.RULE_CODES[rule],
-        _fast._gauss_table() if rule != "simpson" else (),
+        _fast._gauss_table(_gauss_points(tolerance)) if rule != "simpson" else (),
         may_tighten,
     )[0]
     return _fast.Status(status).label

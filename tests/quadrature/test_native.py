@@ -251,13 +251,13 @@ def _program_taylor(formula: str, point: Fraction, order: int = 4) -> list[tuple
 
 
 @pytest.mark.parametrize("formula", COVERAGE)
-@given(st.floats(0.2, 0.9), st.floats(0, 0.05), st.integers(0, 100), st.sampled_from([4, 10]))
+@given(st.floats(0.2, 0.9), st.floats(0, 0.05), st.integers(0, 100), st.sampled_from([4, 10, 20]))
 def test_taylor_enclosures_contain_the_precise_engines_point_values(
     formula: str, start: float, width: float, where: int, order: int
 ) -> None:
     """Reference: the reference backend's 200-bit Taylor coefficients at an exact point of the interval
-    (a far tighter enclosure of the same true coefficients: the two must meet). Order 10 is what the
-    Gauss–Legendre panels read."""
+    (a far tighter enclosure of the same true coefficients: the two must meet). Orders 10 and 20 are what
+    the 5- and 10-point Gauss–Legendre panels read; their convolutions run in midpoint-radius form."""
     low, high = start, start + width
     compiled = _fast.compile_formula(parse(formula), {})
     assert compiled is not None
@@ -265,6 +265,32 @@ def test_taylor_enclosures_contain_the_precise_engines_point_values(
     assume(ours is not None)
     point = Fraction(low) + (Fraction(high) - Fraction(low)) * Fraction(where, 100)
     reference = _program_taylor(formula, point, order)
+    for k in range(min(len(ours), len(reference))):
+        lo, hi = Fraction(ours[k][0]), Fraction(ours[k][1])
+        assert lo <= reference[k][1] and reference[k][0] <= hi, (formula, k, ours[k], reference[k])
+
+
+EXTREME_SERIES = [  # coefficients near underflow, near overflow, and with exact zeros among them
+    "1e-305*exp(3*x)",
+    "1e-300*x^7*sin(x)",
+    "1e250*sin(x)^3",
+    "exp(-700*x)",
+    "x^3",
+    "1/(1e-3 + x^2)",
+]
+
+
+@pytest.mark.parametrize("formula", EXTREME_SERIES)
+@given(st.floats(0.2, 0.9), st.floats(0, 0.01), st.integers(0, 100))
+def test_order_20_series_at_the_extremes(formula: str, start: float, width: float, where: int) -> None:
+    """Reference: the reference backend's 200-bit coefficients at an exact point, as above, at order 20."""
+    low, high = start, start + width
+    compiled = _fast.compile_formula(parse(formula), {})
+    assert compiled is not None
+    ours = native_probe.taylor(compiled, low, high, 20)
+    assume(ours is not None)
+    point = Fraction(low) + (Fraction(high) - Fraction(low)) * Fraction(where, 100)
+    reference = _program_taylor(formula, point, 20)
     for k in range(min(len(ours), len(reference))):
         lo, hi = Fraction(ours[k][0]), Fraction(ours[k][1])
         assert lo <= reference[k][1] and reference[k][0] <= hi, (formula, k, ours[k], reference[k])

@@ -23,8 +23,10 @@ E = TypeVar("E")  # the enclosure type of the arithmetic in use
 Series = list[E]  # enclosures of f^(k)(X)/k!, k = 0, 1, ...
 
 # small exact constants of the recurrences, built once (these loops are the engine's hot path)
-_WHOLE = tuple(Fraction(n) for n in range(16))
-_INVERSE = (Fraction(0),) + tuple(Fraction(1, n) for n in range(1, 16))
+#: the longest series the engine asks for: f and 20 derivatives, for 10-point Gauss–Legendre panels
+MAX_TERMS = 21
+_WHOLE = tuple(Fraction(n) for n in range(MAX_TERMS))
+_INVERSE = (Fraction(0),) + tuple(Fraction(1, n) for n in range(1, MAX_TERMS))
 
 
 def variable(ar: Arithmetic[E], x: E, order: int) -> Series[E]:

@@ -64,6 +64,8 @@ def infinite_side(limit: Formula) -> int:
     >>> infinite_side(parse_limit("-Infinity", "lower_limit")), infinite_side(parse_limit("2", "upper_limit"))
     (-1, 0)
     """
+    if not isinstance(limit.root, (Constant, Negate)):  # cheap first: a number, the common limit
+        return 0
     if limit == POSITIVE_INFINITY:
         return 1
     if limit == NEGATIVE_INFINITY:

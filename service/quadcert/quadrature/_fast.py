@@ -183,7 +183,8 @@ class _NotCompiled(Exception):
 def compile_formula(formula: Formula, values: Mapping[str, ParameterValue]) -> Compiled | None:
     """Instructions for the native engine, or None where a constant does not fit in float64, or where a
     parameter the formula uses is known only within bounds (the native stop rule reads the whole width)."""
-    if any(isinstance(values.get(name), Within) for name in parameters_used(formula.root)):
+    within = [name for name, value in values.items() if isinstance(value, Within)]
+    if within and any(name in within for name in parameters_used(formula.root)):
         return None
     return _compile_cached(formula, tuple(sorted(values.items())))
 
@@ -221,6 +222,7 @@ def run(
     deadline: float | None,
     want_mesh: bool,
     rule: str = "simpson",
+    points: int = 5,
 ) -> FastOutcome | str:
     """Refine on [a, b] (exact enclosures of the limits, a < b); a FastOutcome, or why it declined."""
     if not trusted():
@@ -244,32 +246,33 @@ def run(
         max_nodes,
         want_mesh,
         RULE_CODES[rule],
-        _gauss_table() if rule != "simpson" else (),
+        _gauss_table(points) if rule != "simpson" else (),
     )
     ended = Status(status)
     if ended < 0:
         return _declined(ended.label, nodes)
-    used = {NAMES[order]: count for order, count in enumerate(counts) if count}
+    names = {**BOUND_NAMES, GAUSS_BOUND: _gauss.name(points)}
+    used = {names[order]: count for order, count in enumerate(counts) if count}
     reports: tuple[PanelReport, ...] = ()
     if mesh is not None:
-        reports = tuple(PanelReport(p, q, (lo, hi), NAMES[order]) for p, q, lo, hi, order in sorted(mesh))
+        reports = tuple(PanelReport(p, q, (lo, hi), names[order]) for p, q, lo, hi, order in sorted(mesh))
     stop: StopReason = "tolerance_met" if ended is Status.MET else ended.label  # type: ignore[assignment]
     return FastOutcome((low, high), stop, nodes, panels, used, reports)
 
 
-#: the rule codes of the extension, and the names of the bounds it reports (Simpson's orders 0..4, then the rule)
+#: the rule codes of the extension; the bounds it reports are Simpson's orders 0..4, then the rule's (key 5)
 RULE_CODES = {rule: code for code, rule in enumerate(RULES)}  # the extension's RULE_* enum, in this order
-NAMES = {**BOUND_NAMES, 5: _gauss.NAME}
+GAUSS_BOUND = 5
 
 
 @cache
-def _gauss_table() -> tuple[tuple[float, float], ...]:
-    """The 5-point nodes and weights on [−1, 1] and the constant c₅·10!, each enclosed in floats outward
+def _gauss_table(points: int) -> tuple[tuple[float, float], ...]:
+    """The n-point nodes and weights on [−1, 1] and the constant cₙ·(2n)!, each enclosed in floats outward
     from its exact rational bounds (``_gauss.rule``), in the order the extension reads them."""
     table: list[tuple[float, float]] = []
-    for (t_low, t_high), (w_low, w_high) in _gauss.rule(_gauss.POINTS, 80):
+    for (t_low, t_high), (w_low, w_high) in _gauss.rule(points, 80):
         table += [(fraction_down(t_low), fraction_up(t_high)), (fraction_down(w_low), fraction_up(w_high))]
-    constant = _gauss.remainder_constant(_gauss.POINTS) * math.factorial(2 * _gauss.POINTS)
+    constant = _gauss.remainder_constant(points) * math.factorial(2 * points)
     return (*table, (fraction_down(constant), fraction_up(constant)))
 
 

@@ -27,9 +27,26 @@ from typing import Any
 
 from ..arithmetic import Arithmetic, MpmathArithmetic
 
-#: the points per panel the service uses: degree 2n − 1 = 9, remainder in f^(10)
-POINTS = 5
-NAME = f"gauss-legendre-{POINTS}"
+#: the points per panel the service uses: 5 (degree 9, remainder in f^(10)) at looser tolerances, 10
+#: (degree 19, remainder in f^(20)) at TIGHT_TOLERANCE and below, where the higher order saves more panels
+#: than its longer Taylor series costs (measured: benchmarks/versus_flint.py; speed only, never rigor)
+POINT_COUNTS = (5, 10)
+TIGHT_TOLERANCE = 1e-8
+
+
+def points_for(tolerance: float) -> int:
+    """The points per panel for a request at this absolute tolerance.
+
+    >>> points_for(1e-6), points_for(1e-8), points_for(1e-12)
+    (5, 10, 10)
+    """
+    return POINT_COUNTS[1] if tolerance <= TIGHT_TOLERANCE else POINT_COUNTS[0]
+
+
+def name(n: int) -> str:
+    """The bound's name in meshes and ``bounds_used``."""
+    return f"gauss-legendre-{n}"
+
 
 Bounds = tuple[Fraction, Fraction]
 
@@ -58,13 +75,12 @@ def rule(n: int, bits: int) -> tuple[tuple[Bounds, Bounds], ...]:
 
     Raises ArithmeticError if a root cannot be isolated (not expected for n ≤ 64; a proof step, not a guess).
     """
-    import numpy as np  # only for the first guesses, once per (n, bits): the engine's import stays light
-
-    guesses, _ = np.polynomial.legendre.leggauss(n)
+    # first guesses cos(π(i − 1/4)/(n + 1/2)), ascending; Newton below makes them exact to the grid
+    guesses = [-math.cos(math.pi * (i + 0.75) / (n + 0.5)) for i in range(n)]
     step = Fraction(1, 1 << (bits + 1))
     found: list[Bounds] = []
     for guess in guesses:
-        x = Fraction(float(guess))
+        x = Fraction(guess)
         for _ in range(64):  # Newton in exact rationals, rounded to a dyadic grid finer than the target width
             value, before = _legendre(n, x)
             slope = n * (x * value - before) / (x * x - 1)
@@ -103,7 +119,7 @@ def _interval_legendre(ar: Arithmetic[Any], n: int, t: Any) -> tuple[Any, Any]:
     return current, previous
 
 
-def panel_sum(ar: Arithmetic[Any], value: Any, u: Any, v: Any, n: int = POINTS) -> tuple[Any, int]:
+def panel_sum(ar: Arithmetic[Any], value: Any, u: Any, v: Any, n: int) -> tuple[Any, int]:
     """H/2 · Σ wᵢ f(m + H/2 · tᵢ) over [u, v], enclosed; ``value`` encloses f over an interval. Also the
     number of evaluations it took."""
     half = ar.scale(ar.sub(v, u), Fraction(1, 2))
@@ -115,7 +131,7 @@ def panel_sum(ar: Arithmetic[Any], value: Any, u: Any, v: Any, n: int = POINTS) 
     return ar.mul(half, total), n
 
 
-def remainder(ar: Arithmetic[Any], width: Any, top_coefficient: Any, n: int = POINTS) -> Any:
+def remainder(ar: Arithmetic[Any], width: Any, top_coefficient: Any, n: int) -> Any:
     """c_n · H^(2n+1) · f^(2n)(panel), from the Taylor coefficient f^(2n)/(2n)! enclosed over the panel."""
     factor = remainder_constant(n) * math.factorial(2 * n)
     return ar.mul(ar.scale(ar.pow_int(width, 2 * n + 1), factor), top_coefficient)

@@ -7,6 +7,7 @@ import re
 from collections.abc import Mapping
 from decimal import Decimal
 from fractions import Fraction
+from functools import lru_cache
 
 from ..arithmetic import ParameterValue, Within, fraction_down
 from ..errors import InvalidInput
@@ -100,6 +101,15 @@ def check_relative_tolerance(value: NumberLike | None, field: str = "relative_to
 def _tolerance(value: NumberLike, field: str, optional: bool) -> float:
     if isinstance(value, bool) or not isinstance(value, (int, float, Decimal, Fraction, str)):
         raise InvalidInput(f"{field} must be a number", code="invalid_tolerance", field=field)
+    try:
+        hash(value)
+    except TypeError:  # a signalling NaN cannot be a cache key; it is checked (and refused) uncached
+        return _checked_tolerance.__wrapped__(value, field, optional)
+    return _checked_tolerance(value, field, optional)
+
+
+@lru_cache(maxsize=512, typed=True)  # a few tolerances recur in nearly every request; refusals are not kept
+def _checked_tolerance(value: NumberLike, field: str, optional: bool) -> float:
     exact = exact_number(value, field, code="invalid_tolerance", range_code="tolerance_out_of_range")
     if exact <= 0:
         raise InvalidInput(f"{field} must be a number > 0, got {_shown(value)}", code="invalid_tolerance", field=field)

@@ -14,7 +14,7 @@ from ..derivatives import Program
 from ..errors import EngineDefect, InvalidInput, NotCertifiable
 from ..formula import Formula
 from ..results import StopReason
-from . import _composite, _fast, _sensitivity, _spread
+from . import _composite, _fast, _gauss, _sensitivity, _spread
 from ._endpoints import enclose_limit, exact_limit
 from ._finish import discretisation_bound, error_bound
 from ._result import IntegralResult, PanelReport
@@ -209,6 +209,7 @@ def segment(
     if _same(lower, upper):  # ∫ from a limit to itself, infinite ones included
         return Segment(0.0, 0.0, "tolerance_met", 0, 0, (), {}, settings.precision_bits or 53)
     native = settings.arithmetic is None and settings.precision_bits is None and _fast.AVAILABLE
+    points = _gauss.points_for(tolerance)  # the Gauss–Legendre panels' nodes, for the rules that use them
     if native:
         fast = _try_fast(
             formula,
@@ -222,6 +223,7 @@ def segment(
             settings.deadline,
             settings.include_mesh,
             settings.rule,
+            points,
         )
         if fast is not None:
             compiled, low, high = fast
@@ -260,6 +262,7 @@ def segment(
             values,
             formula,
             settings.rule,
+            points,
         )
         attempts += 1
         if outcome[1] != "resolution_limit" or attempts >= 3 or prec * 2 > 4096:
@@ -303,6 +306,7 @@ def _try_fast(
     deadline: float | None,
     include_mesh: bool,
     rule: str = "simpson",
+    points: int = 5,
 ) -> tuple[_fast.FastOutcome, float, float] | None:
     """The compiled float64 engine's answer when it is a usable one; None hands over to the precise engine."""
     if _same(lower, upper):
@@ -317,7 +321,7 @@ def _try_fast(
         sign, a, b = -1, b, a
     else:
         return None
-    outcome = _fast.run(compiled, a, b, tolerance, relative, max_nodes, deadline, include_mesh, rule)
+    outcome = _fast.run(compiled, a, b, tolerance, relative, max_nodes, deadline, include_mesh, rule, points)
     if isinstance(outcome, str):
         return None
     if sign < 0:
@@ -362,6 +366,7 @@ def _run(
     values: dict[str, ParameterValue],
     formula: Formula,
     rule: str = "simpson",
+    points: int = 5,
 ) -> tuple[object, str, int, int, tuple[PanelReport, ...], dict[str, int], Fraction]:
     if same_text:
         return ar.zero, "tolerance_met", 0, 0, (), {}, Fraction(0)
@@ -384,6 +389,7 @@ def _run(
         retry=lambda p: Program(formula, arithmetic(p), values),
         fallback=fallback,
         rule=rule,
+        points=points,
     )
     outcome = refiner.run(a, b, target)
     enclosure = outcome.enclosure if sign > 0 else ar.neg(outcome.enclosure)

@@ -26,7 +26,7 @@
 
 /* ---- panels and refinement --------------------------------------------------------------- */
 
-#define GAUSS_POINTS 5
+#define GAUSS_MAX 10            /* the most Gauss–Legendre nodes per panel (ORDER = 2 GAUSS_MAX) */
 #define GAUSS_BOUND 5              /* the order key of the Gauss–Legendre bound (Simpson's are 0..4) */
 enum { RULE_SIMPSON = 0, RULE_GAUSS = 1, RULE_AUTO = 2 };
 
@@ -42,8 +42,9 @@ typedef struct {
     iv ln10, two_over_root_pi;
     iv c_signed, c_abs[4];     /* -24/2880 and C_k * k! for k = 1..3 */
     int rule;                  /* RULE_SIMPSON, RULE_GAUSS or RULE_AUTO */
-    iv gauss_t[GAUSS_POINTS], gauss_w[GAUSS_POINTS];   /* nodes and weights on [-1, 1], enclosed */
-    iv gauss_c;                /* c_5 * 10! = 1/698544, the remainder's constant times the coefficient's factorial */
+    int gauss_points;          /* n, the nodes per Gauss–Legendre panel (5 or 10, from the table Python sends) */
+    iv gauss_t[GAUSS_MAX], gauss_w[GAUSS_MAX];   /* nodes and weights on [-1, 1], enclosed */
+    iv gauss_c;                /* c_n (2n)!: the remainder's constant times the coefficient's factorial */
     panel *panels;
     Py_ssize_t count, capacity;
     Py_ssize_t *heap;          /* indices of live panels, max-heap by width */
@@ -75,7 +76,7 @@ static void certify(refiner *r, panel *pn) {
     pn->centre = 0;
     pn->order = -1;
     series s;
-    int order = r->rule == RULE_SIMPSON ? SIMPSON_ORDER : ORDER;
+    int order = r->rule == RULE_SIMPSON ? SIMPSON_ORDER : 2 * r->gauss_points;
     if (evaluate(r->vm, mk(pn->p.lo, pn->q.hi), order, &s, &r->ln10, &r->two_over_root_pi)) return;
     for (int k = 0; k < s.len; k++) {
         /* beyond float64's range the bounds lose all their information: the precise engine's
@@ -89,20 +90,20 @@ static void certify(refiner *r, panel *pn) {
     iv powers[TERMS + 1];   /* width^k, built once by repeated products (which enclose the powers) */
     powers[1] = width;
     for (int k = 2; k <= s.len; k++) powers[k] = iv_mul(powers[k - 1], width);
-    /* Gauss–Legendre (docs/gauss-legendre.md): H/2 * sum w_i f(m + H/2 t_i) + c_5 H^11 f^(10)(panel) */
-    int smooth = r->rule != RULE_SIMPSON && s.len == TERMS;
+    /* Gauss–Legendre (docs/gauss-legendre.md): H/2 * sum w_i f(m + H/2 t_i) + c_n H^(2n+1) f^(2n)(panel) */
+    int smooth = r->rule != RULE_SIMPSON && s.len == order + 1;
     iv gauss_sum = point(0.0);
     if (smooth) {
         iv half = iv_mul(width, point(0.5));
-        for (int i = 0; i < GAUSS_POINTS && smooth; i++) {
+        for (int i = 0; i < r->gauss_points && smooth; i++) {
             iv value;
             if (node_value(r, iv_add(pn->m, iv_mul(half, r->gauss_t[i])), &value)) smooth = 0;
             else gauss_sum = iv_add(gauss_sum, iv_mul(r->gauss_w[i], value));
         }
-        r->nodes += GAUSS_POINTS;
+        r->nodes += r->gauss_points;
         if (smooth) {
             gauss_sum = iv_mul(half, gauss_sum);
-            candidates[n] = iv_add(gauss_sum, iv_mul(iv_mul(powers[TERMS], r->gauss_c), s.c[ORDER]));
+            candidates[n] = iv_add(gauss_sum, iv_mul(iv_mul(powers[order + 1], r->gauss_c), s.c[order]));
             orders[n++] = GAUSS_BOUND;
         }
     }
@@ -351,7 +352,7 @@ static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nod
                 continue;
             }
         }
-        long long next = r->nodes + 2 + (r->rule == RULE_SIMPSON ? 0 : 2 * GAUSS_POINTS);   /* a split's cost */
+        long long next = r->nodes + 2 + (r->rule == RULE_SIMPSON ? 0 : 2 * r->gauss_points);   /* a split's cost */
         if (next > max_nodes || ((++steps & 31) == 0 && deadline > 0 && now() > deadline)) {
             if (unresolved) return DECLINE_UNRESOLVED;
             *total_out = sum_of_panels(r);
@@ -483,14 +484,16 @@ static PyObject *native_integrate(PyObject *self, PyObject *args) {
     r.rule = rule;
     r.may_tighten = may_tighten;
     if (rule != RULE_SIMPSON) {   /* (t_lo, t_hi) and (w_lo, w_hi) per node, from exact enclosures (_gauss.py) */
-        if (!PySequence_Check(gauss_obj) || PySequence_Size(gauss_obj) != 2 * GAUSS_POINTS + 1) {
-            PyErr_SetString(PyExc_ValueError, "the Gauss-Legendre table needs 11 intervals");
+        Py_ssize_t size = PySequence_Check(gauss_obj) ? PySequence_Size(gauss_obj) : -1;
+        if (size < 3 || size % 2 == 0 || size > 2 * GAUSS_MAX + 1) {
+            PyErr_SetString(PyExc_ValueError, "the Gauss-Legendre table needs 2n + 1 intervals, n <= 10");
             goto done;
         }
-        for (int i = 0; i < GAUSS_POINTS; i++) {
+        r.gauss_points = (int)(size / 2);
+        for (int i = 0; i < r.gauss_points; i++) {
             if (read_iv(gauss_obj, 2 * i, &r.gauss_t[i]) || read_iv(gauss_obj, 2 * i + 1, &r.gauss_w[i])) goto done;
         }
-        if (read_iv(gauss_obj, 2 * GAUSS_POINTS, &r.gauss_c)) goto done;
+        if (read_iv(gauss_obj, 2 * r.gauss_points, &r.gauss_c)) goto done;
     }
     if (load_machine(&vm, &code, consts_obj, stack_size)) goto done;
     int status;

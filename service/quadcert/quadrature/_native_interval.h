@@ -14,7 +14,7 @@
 #include <string.h>
 #include <time.h>
 
-#define ORDER 10          /* the most Taylor terms a series holds: Gauss–Legendre panels need f^(10) */
+#define ORDER 20          /* the most Taylor terms a series holds: 10-point Gauss–Legendre panels need f^(20) */
 #define SIMPSON_ORDER 4   /* what Simpson's bounds use */
 #define TERMS (ORDER + 1)
 #define MAX_DEPTH 60

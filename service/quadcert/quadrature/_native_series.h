@@ -9,7 +9,7 @@
 
 /* ---- Taylor series over an interval (the recurrences of derivatives/_series.py) ---------- */
 
-static const double WHOLE[TERMS] = {0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10};
+static const double WHOLE[TERMS] = {0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 15, 16, 17, 18, 19, 20};
 /* 1/k enclosed: 1/3 is not a float */
 static iv inverse(int k) {
     switch (k) {
@@ -26,28 +26,68 @@ static void s_const(series *s, iv c, int len) {
     for (int k = 1; k < TERMS; k++) s->c[k] = point(0.0);
 }
 
-static iv dot(const iv *a, const iv *b, int k) {
-    iv total = iv_mul(a[0], b[k]);
-    for (int j = 1; j <= k; j++) total = iv_add(total, iv_mul(a[j], b[k - j]));
-    return total;
+/* ---- sums of products in midpoint-radius form --------------------------------------------
+   The convolutions below are most of a series' cost.  Each interval enters them once as a midpoint and
+   a radius, and a sum of products is then branch-free float arithmetic whose rounding is bounded at the
+   end (docs/compiled-tiers.md, section 8):
+   - the midpoints' sum s is within gamma_n * sum |x y| <= 2(n+1)u * size of the exact sum of their
+     products (n products, n - 1 additions; size, the computed sum of |x y|, is within (1 - nu) of it);
+   - the radius adds |x| r_y + |y| r_x + r_x r_y per term, an upper bound of |XY - xy| over the intervals;
+   - rad and size are sums of nonnegative rounded terms, at most 6n roundings (n <= 21), so MR_SLACK
+     covers them; MR_TINY covers every underflowed product.
+   An infinite or invalid operand makes the result [-inf, inf], which the caller reads as an overflow. */
+#define MR_SLACK (1 + 0x1p-40)
+#define MR_TINY 0x1p-1060
+
+typedef struct { double m, r; } mr;   /* [m - r, m + r] */
+
+static inline mr to_mr(iv a) {
+    mr x;
+    if (!(a.lo >= -DBL_MAX && a.hi <= DBL_MAX)) { x.m = 0.0; x.r = INFINITY; return x; }
+    x.m = 0.5 * a.lo + 0.5 * a.hi;   /* any float between the ends will do: r is measured from it */
+    x.r = greater(add_up(x.m, -a.lo), add_up(a.hi, -x.m));
+    return x;
+}
+
+static inline void to_mr_all(mr *out, const iv *a, int n) { for (int j = 0; j < n; j++) out[j] = to_mr(a[j]); }
+
+/* an enclosure of the sum over j = from..to of a[j] * b[k - j] */
+static iv mr_dot(const mr *a, const mr *b, int from, int to, int k) {
+    double s = 0.0, size = 0.0, rad = 0.0;
+    int products = 0;   /* nonzero products: without any, and with no radius, the sum is an exact 0 */
+    for (int j = from; j <= to; j++) {
+        double x = a[j].m, y = b[k - j].m, p = x * y;
+        s += p;
+        size += fabs(p);
+        rad += fabs(x) * b[k - j].r + fabs(y) * a[j].r + a[j].r * b[k - j].r;
+        products += x != 0 && y != 0;
+    }
+    int n = to - from + 1;
+    if (n <= 0 || (products == 0 && rad == 0)) return point(0.0);
+    double e = (rad + size * (double)(n + 1) * 0x1p-52) * MR_SLACK + MR_TINY;
+    if (!(e <= DBL_MAX) || s != s || !(fabs(s) <= DBL_MAX)) return mk(-INFINITY, INFINITY);
+    return mk(add_dn(s, -e), add_up(s, e));
 }
 
 static void s_mul(series *out, const series *a, const series *b) {
     int n = a->len < b->len ? a->len : b->len;
+    mr am[TERMS], bm[TERMS];
+    to_mr_all(am, a->c, n);
+    to_mr_all(bm, b->c, n);
     series r;
     r.len = n;
-    for (int k = 0; k < n; k++) r.c[k] = dot(a->c, b->c, k);
+    for (int k = 0; k < n; k++) r.c[k] = k == 0 ? iv_mul(a->c[0], b->c[0]) : mr_dot(am, bm, 0, k, k);
     *out = r;
 }
 
 static void s_square(series *out, const series *a) {
+    mr am[TERMS];
+    to_mr_all(am, a->c, a->len);
     series r;
     r.len = a->len;
     r.c[0] = iv_sqr(a->c[0]);
     for (int k = 1; k < a->len; k++) {
-        iv total = point(0.0);
-        for (int j = 0; j < (k + 1) / 2; j++) total = iv_add(total, iv_mul(a->c[j], a->c[k - j]));
-        total = iv_scale(total, 2.0);
+        iv total = iv_scale(mr_dot(am, am, 0, (k - 1) / 2, k), 2.0);
         if (k % 2 == 0) total = iv_add(total, iv_sqr(a->c[k / 2]));
         r.c[k] = total;
     }
@@ -56,53 +96,63 @@ static void s_square(series *out, const series *a) {
 
 static void s_div(machine *m, series *out, const series *a, const series *b) {
     int n = a->len < b->len ? a->len : b->len;
+    mr bm[TERMS], rm[TERMS];
+    to_mr_all(bm, b->c, n);
     series r;
     r.len = n;
     r.c[0] = iv_div(m, a->c[0], b->c[0]);
+    rm[0] = to_mr(r.c[0]);
     for (int k = 1; k < n; k++) {
-        iv acc = a->c[k];
-        for (int j = 1; j <= k; j++) acc = iv_sub(acc, iv_mul(b->c[j], r.c[k - j]));
-        r.c[k] = iv_div(m, acc, b->c[0]);
+        r.c[k] = iv_div(m, iv_sub(a->c[k], mr_dot(bm, rm, 1, k, k)), b->c[0]);
+        rm[k] = to_mr(r.c[k]);
     }
     *out = r;
+}
+
+/* j u_j for j = 1..len-1, as midpoints and radii (the recurrences below all weigh u_j by j) */
+static void weighted_slopes(mr *out, const series *u) {
+    for (int j = 1; j < u->len; j++) out[j] = to_mr(iv_scale(u->c[j], WHOLE[j]));
 }
 
 /* f(u) with f' = g(f): f_k = (1/k) sum_{j=1..k} j u_j g_{k-j}; kind 0: g = f (exp),
    kind 1: g = 1 + f^2 (tan), kind -1: g = 1 - f^2 (tanh) */
 static void s_driven(series *out, const series *u, iv value, int kind) {
     series r;
-    iv g[TERMS];
+    mr du[TERMS], g[TERMS], rm[TERMS];
+    weighted_slopes(du, u);
     r.len = u->len;
     r.c[0] = value;
+    rm[0] = to_mr(value);
     for (int k = 1; k < u->len; k++) {
         int mm = k - 1;
         if (kind == 0) {
-            g[mm] = r.c[mm];
+            g[mm] = rm[mm];
         } else {
-            iv sq = dot(r.c, r.c, mm);
-            if (mm == 0) g[mm] = kind > 0 ? iv_add(point(1.0), sq) : iv_sub(point(1.0), sq);
-            else g[mm] = kind > 0 ? sq : iv_neg(sq);
+            iv sq = mm == 0 ? iv_sqr(r.c[0]) : mr_dot(rm, rm, 0, mm, mm);
+            if (mm == 0) g[mm] = to_mr(kind > 0 ? iv_add(point(1.0), sq) : iv_sub(point(1.0), sq));
+            else g[mm] = to_mr(kind > 0 ? sq : iv_neg(sq));
         }
-        iv acc = iv_mul(u->c[1], g[k - 1]);
-        for (int j = 2; j <= k; j++) acc = iv_add(acc, iv_scale(iv_mul(u->c[j], g[k - j]), WHOLE[j]));
-        r.c[k] = iv_mul(acc, inverse(k));
+        r.c[k] = iv_mul(mr_dot(du, g, 1, k, k), inverse(k));
+        rm[k] = to_mr(r.c[k]);
     }
     *out = r;
 }
 
 /* sin/cos (sign -1) or sinh/cosh (sign +1) together */
 static void s_pair(series *s, series *c, const series *u, iv s0, iv c0, int sign) {
+    mr du[TERMS], sm[TERMS], cm[TERMS];
+    weighted_slopes(du, u);
     s->len = c->len = u->len;
     s->c[0] = s0;
     c->c[0] = c0;
+    sm[0] = to_mr(s0);
+    cm[0] = to_mr(c0);
     for (int k = 1; k < u->len; k++) {
-        iv as = point(0.0), ac = point(0.0);
-        for (int j = 1; j <= k; j++) {
-            as = iv_add(as, iv_scale(iv_mul(u->c[j], c->c[k - j]), WHOLE[j]));
-            ac = iv_add(ac, iv_scale(iv_mul(u->c[j], s->c[k - j]), WHOLE[j]));
-        }
+        iv as = mr_dot(du, cm, 1, k, k), ac = mr_dot(du, sm, 1, k, k);
         s->c[k] = iv_mul(as, inverse(k));
         c->c[k] = iv_mul(sign > 0 ? ac : iv_neg(ac), inverse(k));
+        sm[k] = to_mr(s->c[k]);
+        cm[k] = to_mr(c->c[k]);
     }
 }
 
@@ -134,10 +184,11 @@ static void s_sqrt(machine *m, series *out, const series *u) {
     if (u->len == 1 || iv_sign(s0) <= 0) { r.len = 1; *out = r; return; }
     iv twice = iv_scale(s0, 2.0);
     r.len = u->len;
+    mr rm[TERMS];
     for (int k = 1; k < u->len; k++) {
-        iv acc = u->c[k];
-        for (int j = 1; j < k; j++) acc = iv_sub(acc, iv_mul(r.c[j], r.c[k - j]));
+        iv acc = k > 1 ? iv_sub(u->c[k], mr_dot(rm, rm, 1, k - 1, k)) : u->c[k];
         r.c[k] = iv_div(m, acc, twice);
+        rm[k] = to_mr(r.c[k]);
     }
     *out = r;
 }

@@ -17,7 +17,7 @@ from ._peano import ABSOLUTE, SIGNED_4
 from ._simpson import MAX_DEPTH
 
 #: the most Taylor terms a compiled series holds, f to f^(10) (Simpson uses the first five)
-ORDER = 10
+ORDER = 20
 #: |n| of an integer power x^n that compiles to repeated multiplication
 MAX_POWER = 1024
 #: stack slots a compiled program may ask for

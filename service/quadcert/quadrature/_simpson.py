@@ -29,7 +29,6 @@ from ._result import PanelReport
 
 MAX_DEPTH = 60
 GAUSS = -2  # the order key of the Gauss–Legendre bound (the Peano bounds are keyed by their derivative order)
-NAMES = {**_peano.BOUND_NAMES, GAUSS: _gauss.NAME}  # reported for the bound that certified a panel
 FLOAT_FLOOR = "float_floor"  # internal stop reason, reported as resolution_limit
 _FLOOR_ULPS = 4  # once the panels sum to within this many ulps of the total, look whether float64 is the limit
 _HALF, _SIXTH = Fraction(1, 2), Fraction(1, 6)
@@ -63,23 +62,24 @@ class Outcome:
 
 
 def _enclose(
-    program: Program[Any], ar: Arithmetic[Any], panel: _Panel, rule: str = "simpson"
+    program: Program[Any], ar: Arithmetic[Any], panel: _Panel, rule: str = "simpson", points: int = 5
 ) -> tuple[Any, int, float]:
     """Rigorous enclosure of the panel's integral: every available bound, intersected; with the width of the
     best bound's rule sum itself (what parameters known within bounds, and rounding, put into it).
 
     With ``rule`` "gauss-legendre" or "auto", a panel on which f is 2n times differentiable also gets the
-    Gauss–Legendre bound (``_gauss``); "gauss-legendre" then skips Simpson's f⁗ bound there."""
+    Gauss–Legendre bound with ``points`` nodes (``_gauss``); "gauss-legendre" then skips Simpson's f⁗ bound
+    there."""
     gauss = rule != "simpson"
-    series = program.taylor(ar.hull(panel.p, panel.q), 2 * _gauss.POINTS if gauss else 4)
+    series = program.taylor(ar.hull(panel.p, panel.q), 2 * points if gauss else 4)
     width = ar.sub(panel.q, panel.p)
     simpson = ar.scale(ar.mul(width, ar.add(ar.add(panel.fp, panel.fq), ar.scale(panel.fm, Fraction(4)))), _SIXTH)
     candidates: list[tuple[int, Any]] = [(0, ar.mul(width, series[0]))]
-    smooth = len(series) == 2 * _gauss.POINTS + 1
+    smooth = len(series) == 2 * points + 1
     gauss_sum = simpson  # the rule's own sum, where it is computed
     if gauss and smooth:
-        gauss_sum, panel.extra = _gauss.panel_sum(ar, program.value, panel.p, panel.q)
-        candidates.append((GAUSS, ar.add(gauss_sum, _gauss.remainder(ar, width, series[-1]))))
+        gauss_sum, panel.extra = _gauss.panel_sum(ar, program.value, panel.p, panel.q, points)
+        candidates.append((GAUSS, ar.add(gauss_sum, _gauss.remainder(ar, width, series[-1], points))))
     peano = not (rule == "gauss-legendre" and smooth)  # Simpson's bounds: everywhere but the rule's panels
     if len(series) >= 5 and peano:
         remainder = ar.mul(ar.scale(ar.pow_int(width, 5), _peano.SIGNED_4 * 24), series[4])
@@ -162,6 +162,7 @@ class Refiner:
         retry: Callable[[int], Program[Any]] | None = None,
         fallback: Program[Any] | None = None,
         rule: str = "simpson",
+        points: int = 5,
     ) -> None:
         self.program = program
         self.variable = program.formula.variable
@@ -175,6 +176,9 @@ class Refiner:
         #: parameters known within bounds: refine and stop on the width bisection can remove, not the whole
         self.spread = program.spread
         self.rule = rule
+        self.points = points  # Gauss–Legendre nodes per panel (``_gauss.points_for``)
+        #: reported for the bound that certified a panel
+        self.names = {**_peano.BOUND_NAMES, GAUSS: _gauss.name(points)}
         self.extra_nodes = 0  # Gauss–Legendre nodes, which no other panel shares
 
     # -- function values at nodes --------------------------------------------------------------
@@ -222,7 +226,7 @@ class Refiner:
         ar = self.ar
         try:
             try:
-                enclosure, order, spread = _enclose(self.program, ar, panel, self.rule)
+                enclosure, order, spread = _enclose(self.program, ar, panel, self.rule, self.points)
             except ArithmeticFault as fault:
                 if fault.certain or self.fallback is None or isinstance(fault, MagnitudeExceeded):
                     raise
@@ -254,7 +258,7 @@ class Refiner:
             ref.from_bounds(*ar.bounds_exact(v)) for v in (panel.p, panel.m, panel.q, panel.fp, panel.fm, panel.fq)
         )
         moved = _Panel(p, m, q, fp, fm, fq, panel.depth)
-        enclosure, order, spread = _enclose(self.fallback, ref, moved, self.rule)
+        enclosure, order, spread = _enclose(self.fallback, ref, moved, self.rule, self.points)
         panel.extra = moved.extra
         return ar.from_bounds(*ref.bounds_exact(enclosure)), order, spread
 
@@ -324,7 +328,7 @@ class Refiner:
                         stop = FLOAT_FLOOR
                         break
                     next_check = widths * 0.95
-            if self.nodes() + 2 + (2 * _gauss.POINTS if self.rule != "simpson" else 0) > self.max_nodes:
+            if self.nodes() + 2 + (2 * self.points if self.rule != "simpson" else 0) > self.max_nodes:
                 stop = "node_budget"
                 break
             if self.deadline is not None and time.monotonic() > self.deadline:
@@ -344,7 +348,7 @@ class Refiner:
         if stuck:
             raise self._unbounded(stuck[0], budget=True)
         for panel in panels:
-            name = NAMES[panel.order]
+            name = self.names[panel.order]
             self.bounds_used[name] = self.bounds_used.get(name, 0) + 1
         return Outcome(self.total(panels), panels, self.nodes(), stop, spread_sum.exact())
 
@@ -376,5 +380,7 @@ class Refiner:
         reports = []
         for panel in ordered:
             low, high = ar.bounds(panel.enclosure if sign > 0 else ar.neg(panel.enclosure))
-            reports.append(PanelReport(ar.bounds(panel.p)[0], ar.bounds(panel.q)[1], (low, high), NAMES[panel.order]))
+            reports.append(
+                PanelReport(ar.bounds(panel.p)[0], ar.bounds(panel.q)[1], (low, high), self.names[panel.order])
+            )
         return tuple(reports)

@@ -35,6 +35,8 @@ class Edge:
 
 def spread_used(formula: Formula, limits: tuple[Formula, ...], values: dict[str, ParameterValue]) -> bool:
     """Whether the integrand or a limit uses a parameter known only within bounds."""
+    if not any(isinstance(value, Within) for value in values.values()):
+        return False  # the common case, answered without walking the formulas
     names = set(parameters_used(formula.root)).union(*(parameters_used(limit.root) for limit in limits))
     return any(isinstance(values.get(name), Within) for name in names)
 
