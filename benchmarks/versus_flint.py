@@ -31,7 +31,6 @@ from benchmarks.suite import _timed
 from quadcert import integrate
 from quadcert.arithmetic import claim_flint_context
 
-
 #: calls timed per row and integrator; the best counts (our first call also parses and compiles the formula)
 REPEAT = 3
 
