@@ -29,7 +29,7 @@ static void s_const(series *s, iv c, int len) {
 /* ---- sums of products in midpoint-radius form --------------------------------------------
    The convolutions below are most of a series' cost.  Each interval enters them once as a midpoint and
    a radius, and a sum of products is then branch-free float arithmetic whose rounding is bounded at the
-   end (docs/compiled-tiers.md, section 8):
+   end (docs/compiled-tiers.md, section 7):
    - the midpoints' sum s is within gamma_n * sum |x y| <= 2(n+1)u * size of the exact sum of their
      products (n products, n - 1 additions; size, the computed sum of |x y|, is within (1 - nu) of it);
    - the radius adds |x| r_y + |y| r_x + r_x r_y per term, an upper bound of |XY - xy| over the intervals;

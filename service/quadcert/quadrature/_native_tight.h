@@ -16,7 +16,7 @@ typedef struct { dw m; double r; } ball;
 #define DW_RANGE 0x1p900    /* magnitudes the tier accepts; beyond, the guarded layer answers */
 /* A radius is a formula of at most 10 float operations on nonnegative floats, rounded to nearest, and uses
    |h| for |h + l| <= (1 + u)|h|; multiplied by SLACK (1 + 128 u), itself rounded, it bounds the exact
-   formula from above (docs/compiled-tiers.md, section 2). */
+   formula from above (docs/compiled-tiers.md, section 4). */
 #define SLACK (1 + 0x1p-46)
 
 /* ---- error-free transformations and operations with an error bound --------------------------- */
