@@ -268,7 +268,7 @@ static inline double sum_value(const running_sum *acc) { return acc->hi + acc->l
 #define ROUNDING_GOAL_SHARE 0.25   /* rounding above this share of the goal: float64 may not get there */
 #define STALL_SHRINK 0.9           /* doubling the panels must shrink the widths below this share */
 #define STALLS_TO_DECLINE 2        /* checkpoints in a row without that, near the floor, before declining */
-#define TIGHTEN_SHARE 0.25         /* guarded rounding above this share of the goal: move to the tight tier */
+#define TIGHTEN_SHARE 0.5          /* guarded rounding above this share of the goal: move to the tight tier */
 #define FIRST_CHECKPOINT 64        /* panels at the first stall checkpoint (then twice as many each time) */
 
 /* The guarded tier met its floor: every live panel's node values are taken again in the tight tier and the

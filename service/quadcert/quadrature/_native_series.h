@@ -23,7 +23,7 @@ static iv inverse(int k) {
 static void s_const(series *s, iv c, int len) {
     s->len = len;
     s->c[0] = c;
-    for (int k = 1; k < TERMS; k++) s->c[k] = point(0.0);
+    for (int k = 1; k < len; k++) s->c[k] = point(0.0);   /* terms past len are never read */
 }
 
 /* ---- sums of products in midpoint-radius form --------------------------------------------
@@ -352,7 +352,7 @@ static int evaluate(machine *m, iv x, int order, series *result, const iv *ln10,
         case OP_X:
             st[top].len = order + 1;
             st[top].c[0] = x;
-            for (int k = 1; k < TERMS; k++) st[top].c[k] = point(k == 1 ? 1.0 : 0.0);
+            for (int k = 1; k <= order; k++) st[top].c[k] = point(k == 1 ? 1.0 : 0.0);
             top++;
             break;
         case OP_CONST: s_const(&st[top++], m->consts[arg], order + 1); break;

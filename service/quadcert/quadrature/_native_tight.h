@@ -134,11 +134,43 @@ static double power_term(double x, int n) {
     return result * INVERSE_FACTORIAL[n].h * SLACK;
 }
 
+/* Float balls: a float midpoint and radius, for the tails of the series, whose terms are far below the
+   leading ones (t^4/4! at most 2^-22 of e^t here) and so need no second word.  Each operation's rounding
+   adds |m| 2^-52 >= u |exact m|, plus DW_ABS for underflow; SLACK covers the radius formula's own rounding
+   (docs/compiled-tiers.md, section 5). */
+typedef struct { double m, r; } fball;
+
+static inline fball fb_mul(fball a, fball b) {
+    double m = a.m * b.m;
+    double r = (fabs(a.m) * b.r + fabs(b.m) * a.r + a.r * b.r + fabs(m) * 0x1p-52 + DW_ABS) * SLACK;
+    fball x = {m, r};
+    return x;
+}
+static inline fball fb_add(fball a, fball b) {
+    double m = a.m + b.m;
+    fball x = {m, (a.r + b.r + fabs(m) * 0x1p-52 + DW_ABS) * SLACK};
+    return x;
+}
+/* 1/j! as a float ball: the stored h + l is within 2^-106 |h| of it */
+static inline fball fb_inverse_factorial(int j) {
+    dw v = INVERSE_FACTORIAL[j];
+    fball x = {v.h, (fabs(v.l) + fabs(v.h) * 0x1p-104 + DW_ABS) * SLACK};
+    return x;
+}
+
 /* p(t) = sum of c_j t^j for j = 0..n with c_j = 1/j! (step 1) or 1/(2j + first)! (step 2, in t = r^2),
-   by Horner in balls; sign -1 alternates the terms */
-static ball power_series(ball t, int n, int first, int step, int sign) {
-    ball p = inverse_factorial(first + step * n);
-    for (int j = n - 1; j >= 0; j--) {
+   by Horner; sign -1 alternates the terms.  The terms from j = head on run in float balls, the first
+   head in double-word balls. */
+static ball power_series(ball t, int n, int first, int step, int sign, int head) {
+    fball ft = {t.m.h, (fabs(t.m.l) + t.r) * SLACK};
+    fball q = fb_inverse_factorial(first + step * n);
+    for (int j = n - 1; j >= head; j--) {
+        fball tq = fb_mul(ft, q);
+        if (sign < 0) tq.m = -tq.m;
+        q = fb_add(fb_inverse_factorial(first + step * j), tq);
+    }
+    ball p = b_make(dw_point(q.m), q.r);
+    for (int j = head - 1; j >= 0; j--) {
         ball tp = b_mul(t, p);
         p = b_add(inverse_factorial(first + step * j), sign < 0 ? b_neg(tp) : tp);
     }
@@ -160,7 +192,7 @@ static int tight_exp(double x, ball *out) {
     ball t = b_mul(r, b_point(0.125));
     double m = b_magnitude(t);
     if (!(m <= 0.05)) return -1;
-    ball p = power_series(t, EXP_TERMS, 0, 1, 1);
+    ball p = power_series(t, EXP_TERMS, 0, 1, 1, 4);
     /* Lagrange: the rest is t^11/11! e^xi with |xi| <= m <= 0.05, at most 1.06 m^11/11! */
     p.r = (p.r + power_term(m, EXP_TERMS + 1) * 1.06) * SLACK;
     for (int i = 0; i < EXP_HALVINGS; i++) p = b_mul(p, p);
@@ -198,10 +230,10 @@ static ball sin_or_cos_small(ball r, int want_cos) {
     double m = b_magnitude(r);
     ball v;
     if (want_cos) {
-        v = power_series(r2, COS_TERMS, 0, 2, -1);
+        v = power_series(r2, COS_TERMS, 0, 2, -1, 3);
         v.r = (v.r + power_term(m, 2 * COS_TERMS + 2)) * SLACK;
     } else {
-        v = b_mul(r, power_series(r2, SIN_TERMS, 1, 2, -1));
+        v = b_mul(r, power_series(r2, SIN_TERMS, 1, 2, -1, 3));
         v.r = (v.r + power_term(m, 2 * SIN_TERMS + 3)) * SLACK;
     }
     return v;
@@ -267,7 +299,7 @@ static int tight_hyperbolic(int op, double x, ball *out) {
         ball sinh;
         if (a < 0.5) {
             ball xp = b_point(a);
-            sinh = b_mul(xp, power_series(b_mul(xp, xp), SINH_TERMS, 1, 2, 1));
+            sinh = b_mul(xp, power_series(b_mul(xp, xp), SINH_TERMS, 1, 2, 1, 3));
             sinh.r = (sinh.r + power_term(a, 2 * SINH_TERMS + 3) * 1.01) * SLACK;
         } else {
             sinh = b_mul(b_sub(e, inverse), b_point(0.5));
