@@ -135,7 +135,7 @@ static double power_term(double x, int n) {
 }
 
 /* Float balls: a float midpoint and radius, for the tails of the series, whose terms are far below the
-   leading ones (t^4/4! at most 2^-22 of e^t here) and so need no second word.  Each operation's rounding
+   leading ones (at most 2^-11 of them) and so need no second word for a tight result.  Each operation's rounding
    adds |m| 2^-52 >= u |exact m|, plus DW_ABS for underflow; SLACK covers the radius formula's own rounding
    (docs/compiled-tiers.md, section 5). */
 typedef struct { double m, r; } fball;
