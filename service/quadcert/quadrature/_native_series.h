@@ -20,6 +20,13 @@ static iv inverse(int k) {
     }
 }
 
+/* a series copied by its used terms only (a whole struct is 21 intervals; most runs use 5 or 11) */
+static inline void s_copy(series *out, const series *a) {
+    if (out == a) return;
+    out->len = a->len;
+    memcpy(out->c, a->c, (size_t)a->len * sizeof(iv));
+}
+
 static void s_const(series *s, iv c, int len) {
     s->len = len;
     s->c[0] = c;
@@ -77,7 +84,7 @@ static void s_mul(series *out, const series *a, const series *b) {
     series r;
     r.len = n;
     for (int k = 0; k < n; k++) r.c[k] = k == 0 ? iv_mul(a->c[0], b->c[0]) : mr_dot(am, bm, 0, k, k);
-    *out = r;
+    s_copy(out, &r);
 }
 
 static void s_square(series *out, const series *a) {
@@ -91,7 +98,7 @@ static void s_square(series *out, const series *a) {
         if (k % 2 == 0) total = iv_add(total, iv_sqr(a->c[k / 2]));
         r.c[k] = total;
     }
-    *out = r;
+    s_copy(out, &r);
 }
 
 static void s_div(machine *m, series *out, const series *a, const series *b) {
@@ -106,7 +113,7 @@ static void s_div(machine *m, series *out, const series *a, const series *b) {
         r.c[k] = iv_div(m, iv_sub(a->c[k], mr_dot(bm, rm, 1, k, k)), b->c[0]);
         rm[k] = to_mr(r.c[k]);
     }
-    *out = r;
+    s_copy(out, &r);
 }
 
 /* j u_j for j = 1..len-1, as midpoints and radii (the recurrences below all weigh u_j by j) */
@@ -135,7 +142,7 @@ static void s_driven(series *out, const series *u, iv value, int kind) {
         r.c[k] = iv_mul(mr_dot(du, g, 1, k, k), inverse(k));
         rm[k] = to_mr(r.c[k]);
     }
-    *out = r;
+    s_copy(out, &r);
 }
 
 /* sin/cos (sign -1) or sinh/cosh (sign +1) together */
@@ -162,18 +169,18 @@ static void s_integrate(series *out, iv value, const series *d, int len) {
     r.len = len;
     r.c[0] = value;
     for (int k = 1; k < len; k++) r.c[k] = iv_mul(d->c[k - 1], inverse(k));
-    *out = r;
+    s_copy(out, &r);
 }
 
 static void s_derivative(series *out, const series *a) {
     series r;
     r.len = a->len - 1;
     for (int k = 1; k < a->len; k++) r.c[k - 1] = iv_scale(a->c[k], WHOLE[k]);
-    *out = r;
+    s_copy(out, &r);
 }
 
 static void s_truncate(series *out, const series *a, int len) {
-    *out = *a;
+    s_copy(out, a);
     out->len = len;
 }
 
@@ -181,7 +188,7 @@ static void s_sqrt(machine *m, series *out, const series *u) {
     iv s0 = function_value(m, OP_SQRT, u->c[0]);
     series r;
     r.c[0] = s0;
-    if (u->len == 1 || iv_sign(s0) <= 0) { r.len = 1; *out = r; return; }
+    if (u->len == 1 || iv_sign(s0) <= 0) { r.len = 1; s_copy(out, &r); return; }
     iv twice = iv_scale(s0, 2.0);
     r.len = u->len;
     mr rm[TERMS];
@@ -190,7 +197,7 @@ static void s_sqrt(machine *m, series *out, const series *u) {
         r.c[k] = iv_div(m, acc, twice);
         rm[k] = to_mr(r.c[k]);
     }
-    *out = r;
+    s_copy(out, &r);
 }
 
 /* log, log10 (scale = ln 10) and atan: value plus the integral of u'/denominator */
@@ -263,9 +270,9 @@ static void s_lipschitz(series *out, iv value, const iv *slopes, int count, int 
 
 static void s_abs(series *out, const series *u) {
     int side = iv_sign(u->c[0]);
-    if (side > 0) { *out = *u; return; }
+    if (side > 0) { s_copy(out, u); return; }
     if (side < 0) {
-        *out = *u;
+        s_copy(out, u);
         for (int k = 0; k < u->len; k++) out->c[k] = iv_neg(u->c[k]);
         return;
     }
@@ -292,13 +299,14 @@ static void s_extremum(series *out, const series *a, const series *b, int larges
 static void s_pow_int(machine *m, series *out, const series *u, int n) {
     int negative = n < 0;
     if (negative) n = -n;
-    series result, base = *u;
+    series result, base;
+    s_copy(&base, u);
     if (n == 0) { s_const(out, point(1.0), u->len); return; }
     int have = 0, k = n;
     while (k) {
         if (k & 1) {
             if (have) s_mul(&result, &result, &base);
-            else { result = base; have = 1; }
+            else { s_copy(&result, &base); have = 1; }
         }
         k >>= 1;
         if (k) s_square(&base, &base);
@@ -310,7 +318,7 @@ static void s_pow_int(machine *m, series *out, const series *u, int n) {
         s_const(&one, point(1.0), result.len);
         s_div(m, out, &one, &result);
     } else {
-        *out = result;
+        s_copy(out, &result);
     }
 }
 
@@ -406,7 +414,7 @@ static int evaluate(machine *m, iv x, int order, series *result, const iv *ln10,
         for (int k = 0; k < t->len; k++) if (!valid_iv(t->c[k])) { m->fault = 1; return -1; }
     }
     if (top != 1) { m->fault = 1; return -1; }
-    *result = st[0];
+    s_copy(result, &st[0]);
     return 0;
 }
 
