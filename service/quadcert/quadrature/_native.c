@@ -1,4 +1,4 @@
-/* Certified adaptive Simpson on float64 intervals, compiled.
+/* Certified adaptive Simpson and Gauss–Legendre panels on float64 intervals, compiled.
 
    The same method as _simpson.py (Taylor enclosures of order 4 per panel, the
    Peano bounds of _peano.py intersected, worst-first bisection), for formulas
@@ -11,7 +11,10 @@
    - elementary functions come from the C library, which is not guaranteed to be
      correctly rounded: each value is widened by GUARD relative plus TINY
      absolute, far beyond the documented error of any mainstream libm, and the
-     tests check this layer against python-flint balls.
+     tests check this layer against python-flint balls.  Where that widening
+     becomes the run's floor, the values at the nodes come from the tight tier
+     instead (_native_tight.h: our own double-word evaluation, with its own
+     error analysis in docs/compiled-tiers.md), over the same mesh.
    - ranges over intervals come from monotonicity, with extrema of sin and cos
      found by rigorous quarter-turn counting.
 
