@@ -347,6 +347,8 @@ static int tight_floats(int op, double x, double *low, double *high) {
 static int tight_value(int op, iv a, iv *out) {
     double l1, h1, l2, h2;
     iv b = op == OP_COSH ? iv_abs(a) : a;   /* cosh rises with |x| */
+    /* the shapes this range argument knows: increasing, cosh through |x|, and sin and cos; a function added to
+       tight_at must be added here too, or its range over an interval would be taken from its ends */
     if (op != OP_EXP && op != OP_LOG && op != OP_LOG10 && op != OP_ATAN && op != OP_SINH && op != OP_TANH
         && op != OP_COSH && op != OP_SIN && op != OP_COS)
         return -1;
