@@ -221,8 +221,8 @@ def run(
     max_nodes: int,
     deadline: float | None,
     want_mesh: bool,
-    rule: str = "simpson",
-    points: int = 5,
+    rule: str,
+    points: int,
 ) -> FastOutcome | str:
     """Refine on [a, b] (exact enclosures of the limits, a < b); a FastOutcome, or why it declined."""
     if not trusted():

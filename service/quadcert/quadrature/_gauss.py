@@ -75,7 +75,8 @@ def rule(n: int, bits: int) -> tuple[tuple[Bounds, Bounds], ...]:
 
     Raises ArithmeticError if a root cannot be isolated (not expected for n ≤ 64; a proof step, not a guess).
     """
-    # first guesses cos(π(i − 1/4)/(n + 1/2)), ascending; Newton below makes them exact to the grid
+    # first guesses: the roots' classic approximations cos(π(k − 1/4)/(n + 1/2)), k = n..1, in ascending
+    # order; Newton below makes them exact to the grid
     guesses = [-math.cos(math.pi * (i + 0.75) / (n + 0.5)) for i in range(n)]
     step = Fraction(1, 1 << (bits + 1))
     found: list[Bounds] = []

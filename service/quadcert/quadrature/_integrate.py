@@ -305,8 +305,8 @@ def _try_fast(
     max_nodes: int,
     deadline: float | None,
     include_mesh: bool,
-    rule: str = "simpson",
-    points: int = 5,
+    rule: str,
+    points: int,
 ) -> tuple[_fast.FastOutcome, float, float] | None:
     """The compiled float64 engine's answer when it is a usable one; None hands over to the precise engine."""
     if _same(lower, upper):
@@ -365,8 +365,8 @@ def _run(
     arithmetic: ArithmeticFactory,
     values: dict[str, ParameterValue],
     formula: Formula,
-    rule: str = "simpson",
-    points: int = 5,
+    rule: str,
+    points: int,
 ) -> tuple[object, str, int, int, tuple[PanelReport, ...], dict[str, int], Fraction]:
     if same_text:
         return ar.zero, "tolerance_met", 0, 0, (), {}, Fraction(0)

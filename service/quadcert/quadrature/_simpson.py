@@ -62,7 +62,7 @@ class Outcome:
 
 
 def _enclose(
-    program: Program[Any], ar: Arithmetic[Any], panel: _Panel, rule: str = "simpson", points: int = 5
+    program: Program[Any], ar: Arithmetic[Any], panel: _Panel, rule: str, points: int
 ) -> tuple[Any, int, float]:
     """Rigorous enclosure of the panel's integral: every available bound, intersected; with the width of the
     best bound's rule sum itself (what parameters known within bounds, and rounding, put into it).
@@ -162,7 +162,7 @@ class Refiner:
         retry: Callable[[int], Program[Any]] | None = None,
         fallback: Program[Any] | None = None,
         rule: str = "simpson",
-        points: int = 5,
+        points: int,
     ) -> None:
         self.program = program
         self.variable = program.formula.variable
