@@ -43,13 +43,22 @@ def operate(
 def run_status(formula: str, a: float, b: float, tolerance: float, rule: str, may_tighten: bool) -> str:
     """How the compiled engine ends on [a, b] (float limits), with or without its tight tier: ``met`` or why
     it declined (the outcome's label)."""
+    return _run(formula, a, b, tolerance, rule, may_tighten)[0]
+
+
+def models_built(formula: str, a: float, b: float, tolerance: float) -> tuple[str, int]:
+    """How a Simpson run on [a, b] ends (as in run_status) and how many Taylor models it built."""
+    return _run(formula, a, b, tolerance, "simpson", True)
+
+
+def _run(formula: str, a: float, b: float, tolerance: float, rule: str, may_tighten: bool) -> tuple[str, int]:
     from quadcert.formula import parse
     from quadcert.quadrature._gauss import points_for as _gauss_points
 
     assert _fast._native is not None
     compiled = _fast.compile_formula(parse(formula), {})
     assert compiled is not None
-    status = _fast._native.integrate(
+    outcome = _fast._native.integrate(
         compiled.code,
         compiled.constants,
         compiled.stack,
@@ -65,5 +74,14 @@ def run_status(formula: str, a: float, b: float, tolerance: float, rule: str, ma
         _fast.RULE_CODES[rule],
         _fast._gauss_table(_gauss_points(tolerance)) if rule != "simpson" else (),
         may_tighten,
-    )[0]
-    return _fast.Status(status).label
+    )
+    return _fast.Status(outcome[0]).label, outcome[-1]
+
+
+def model_fourth(
+    compiled: _fast.Compiled, low: float, high: float, panel_low: float, panel_high: float
+) -> tuple[float, float, float] | None:
+    """f''''/4! over [panel_low, panel_high] from the compiled engine's Taylor model of f over [low, high], and the
+    width of the remainder's part (None: no model there)."""
+    assert _fast._native is not None
+    return _fast._native.model(compiled.code, compiled.constants, compiled.stack, low, high, panel_low, panel_high)

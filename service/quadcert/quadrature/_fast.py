@@ -235,7 +235,7 @@ def run(
     bounds = (fraction_down(a[0]), fraction_up(a[1]), fraction_down(b[0]), fraction_up(b[1]))
     if not all(math.isfinite(v) for v in bounds):
         return _declined("limits")
-    status, low, high, nodes, panels, counts, mesh = _native.integrate(
+    status, low, high, nodes, panels, counts, mesh, _models = _native.integrate(
         compiled.code,
         compiled.constants,
         compiled.stack,

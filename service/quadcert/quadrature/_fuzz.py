@@ -3,9 +3,10 @@
     python -m quadcert.quadrature._fuzz -max_total_time=600      # ten minutes
 
 Each input that parses as a formula in x is compiled and run by the C engine over [0, 1], with Simpson's
-panels and with the Gauss–Legendre ones (and its Taylor enclosures over a small interval); the arbitrary-
-precision engine on the reference backend does the same work. A formula the C engine hands over (a function it
-lacks, a piecewise definition) is integrated on both arbitrary-precision backends instead. A formula that uses
+panels and with the Gauss–Legendre ones (and its Taylor enclosures and Simpson's Taylor model over a small
+interval); the arbitrary-precision engine on the reference backend does the same work. A formula the C engine
+hands over (a function it lacks, a piecewise definition) is integrated on both arbitrary-precision backends
+instead. A formula that uses
 the parameter k is also integrated with k known only within [9/10, 11/10]: that enclosure must meet the ones
 at k = 1 and k = 11/10. Both sides are always rigorous, so their enclosures must meet; a crash, an exception
 other than a coded one, or two disjoint enclosures is a finding.
@@ -63,6 +64,12 @@ def check_one(data: bytes) -> None:
         for k in range(min(len(ours), len(reference))):
             if not _meet(ours[k], ar.bounds(reference[k])):
                 raise AssertionError(f"coefficient {k} of {text!r}: {ours[k]} vs {ar.bounds(reference[k])}")
+        # Simpson's Taylor model of the fourth coefficient over [1/4 - 2^-6, 1/4 + 2^-6], on the same panel
+        model = _native.model(
+            compiled.code, compiled.constants, compiled.stack, 0.25 - 2.0**-6, 0.25 + 2.0**-6, 0.25, 0.25 + 2.0**-10
+        )
+        if model is not None and len(reference) > 4 and not _meet(model[:2], ar.bounds(reference[4])):
+            raise AssertionError(f"Taylor model of {text!r}: {model} vs {ar.bounds(reference[4])}")
     outcomes = [
         _fast.run(compiled, (Fraction(0),) * 2, (Fraction(1),) * 2, 1e-6, None, 801, None, False, rule, points)
         for rule, points in (("simpson", 5), ("auto", 5), ("auto", 10))  # auto: the Gauss–Legendre panels too

@@ -2,7 +2,10 @@
 
    The same method as _simpson.py (Taylor enclosures of order 4 per panel, the
    Peano bounds of _peano.py intersected, worst-first bisection), for formulas
-   whose certificate fits in float64.  Every operation rounds outward:
+   whose certificate fits in float64.  One addition: once Simpson's panels are
+   small, the fourth derivative over each comes from a Taylor model shared by
+   a whole stretch of them (_native_model.h), not a series of its own.  Every
+   operation rounds outward:
 
    - + - * / and sqrt are correctly rounded by IEEE 754 in round-to-nearest.
      A result is moved one ulp outward unless it is provably exact (TwoSum for
@@ -26,6 +29,7 @@
 
 #include "_native_interval.h"
 #include "_native_series.h"
+#include "_native_model.h"
 
 /* ---- panels and refinement --------------------------------------------------------------- */
 
@@ -38,7 +42,23 @@ typedef struct {
     iv enclosure;
     double width, centre, rounding;
     int depth, order, resolved;
+    Py_ssize_t model;          /* the Taylor model of f''''/4! its stretch lies in (Simpson), or -1 */
 } panel;
+
+/* A running sum that terms are added to and later removed from.  In plain float64 the removal of a term
+   that dominated the sum (a first panel 1e10 wide, the rest 1e-10) leaves that term's rounding error
+   behind for good, about 1e-6 here, and the loop then refines far past the tolerance, or declines because
+   the rounding estimate looks like float64's floor.  Each step's error is kept exactly by TwoSum in a
+   second word; these sums steer the refinement only, they certify nothing. */
+typedef struct { double hi, lo; } running_sum;
+
+static inline void sum_add(running_sum *acc, double x) {
+    double t = acc->hi + x, bp = t - acc->hi;
+    acc->lo += (acc->hi - (t - bp)) + (x - bp);
+    acc->hi = t;
+}
+
+static inline double sum_value(const running_sum *acc) { return acc->hi + acc->lo; }
 
 typedef struct {
     machine *vm;
@@ -56,6 +76,11 @@ typedef struct {
     int overflow;              /* a Taylor coefficient left the float64 range */
     int tight;                 /* node values from the tight tier (after the guarded one met its floor) */
     int may_tighten;           /* whether the run may move to the tight tier */
+    taylor_model *models;      /* Simpson: f''''/4! over stretches, shared by the panels inside them */
+    Py_ssize_t model_count, model_capacity;
+    running_sum widths, centres, roundings;   /* over the live panels, to steer the loop */
+    long long unresolved;      /* live panels whose certificate failed */
+    double goal;               /* the run's latest goal for the half-width of the total (steering only) */
 } refiner;
 
 /* f at a node: the rule sums' values, so in the tight tier where it covers the functions (the panels' Taylor
@@ -70,14 +95,77 @@ static int node_value(refiner *r, iv x, iv *out) {
     return 0;
 }
 
+/* Simpson's sum H (f(p) + 4 f(m) + f(q)) / 6 over the panel, enclosed */
+static iv simpson_sum(refiner *r, const panel *pn, iv width) {
+    return iv_div(r->vm, iv_mul(width, iv_add(iv_add(pn->fp, pn->fq), iv_scale(pn->fm, 4.0))), point(6.0));
+}
+
+/* the certified panel's fields from its enclosure, the best of its bounds and its rule sum's rounding */
+static void settle(panel *pn, iv enclosure, int order, double rounding) {
+    pn->enclosure = enclosure;
+    pn->order = order;
+    pn->rounding = rounding;
+    pn->width = iv_width(enclosure);
+    pn->centre = 0.5 * enclosure.lo + 0.5 * enclosure.hi;
+    pn->resolved = 1;
+}
+
+/* When Simpson's panels use a Taylor model (_native_model.h) instead of a series of their own.  Neither
+   factor affects rigor: a model's enclosure is as valid as the series', these only choose the cheaper. */
+#define MODEL_SHARE 0.25   /* the model's remainder may take this share of a panel's enclosure width */
+#define MODEL_REACH 16.0   /* a new model must keep it this many times smaller on the panel it is built on */
+#define MODEL_WORTH 64.0   /* and is built only on a panel this many times wider than the goal (the two
+                              series cost a dozen panels' own: a panel near the goal has few descendants) */
+
+/* The share of Simpson's fourth-order bound over the panel that the model's remainder makes up, and the
+   enclosure (through *out); a share above 1 (or NaN) when the model does not reach. */
+static double by_model(refiner *r, const taylor_model *md, const panel *pn, iv width, iv simpson, iv *out) {
+    double lo = pn->p.lo, hi = pn->q.hi, remainder;
+    if (lo < md->lo || hi > md->hi) return INFINITY;
+    iv fourth = model_fourth(md, lo, hi, &remainder);
+    iv scale = iv_mul(iv_pow_int(width, 5), r->c_signed);   /* width >= 0 */
+    *out = iv_add(simpson, iv_mul(scale, fourth));
+    if (!finite_iv(*out)) return INFINITY;
+    double cost = mul_up(remainder, greater(fabs(scale.lo), fabs(scale.hi)));
+    double whole = iv_width(*out);
+    return whole > 0 ? cost / whole : (cost == 0 ? 0.0 : INFINITY);
+}
+
+static void certify_directly(refiner *r, panel *pn, iv width, iv simpson);
+
 static void certify(refiner *r, panel *pn) {
     iv width = iv_sub(pn->q, pn->p);
-    iv simpson = iv_div(r->vm, iv_mul(width, iv_add(iv_add(pn->fp, pn->fq), iv_scale(pn->fm, 4.0))), point(6.0));
+    iv simpson = simpson_sum(r, pn, width);
     pn->rounding = iv_width(simpson);
     pn->resolved = 0;
     pn->width = INFINITY;
     pn->centre = 0;
     pn->order = -1;
+    if (r->rule == RULE_SIMPSON && pn->model >= 0) {
+        iv enclosure;
+        if (by_model(r, &r->models[pn->model], pn, width, simpson, &enclosure) <= MODEL_SHARE) {
+            settle(pn, enclosure, SIMPSON_ORDER, pn->rounding);
+            return;
+        }
+        pn->model = -1;   /* out of its reach: the panel's own series, and perhaps a nearer model */
+    }
+    certify_directly(r, pn, width, simpson);
+    if (r->rule != RULE_SIMPSON || !pn->resolved || pn->order != SIMPSON_ORDER) return;
+    if (!(pn->width > MODEL_WORTH * r->goal)) return;
+    if (r->model_count == r->model_capacity) {
+        Py_ssize_t capacity = r->model_capacity ? 2 * r->model_capacity : 64;
+        taylor_model *grown = realloc(r->models, (size_t)capacity * sizeof(taylor_model));
+        if (!grown) return;   /* no model: the panels keep their own series */
+        r->models = grown;
+        r->model_capacity = capacity;
+    }
+    taylor_model *md = &r->models[r->model_count];
+    if (build_model(r->vm, pn->p.lo, pn->q.hi, md, &r->ln10, &r->two_over_root_pi)) { r->vm->fault = 0; return; }
+    iv unused;
+    if (by_model(r, md, pn, width, simpson, &unused) * MODEL_REACH <= MODEL_SHARE) pn->model = r->model_count++;
+}
+
+static void certify_directly(refiner *r, panel *pn, iv width, iv simpson) {
     series s;
     int order = r->rule == RULE_SIMPSON ? SIMPSON_ORDER : 2 * r->gauss_points;
     if (evaluate(r->vm, mk(pn->p.lo, pn->q.hi), order, &s, &r->ln10, &r->two_over_root_pi)) return;
@@ -129,12 +217,7 @@ static void certify(refiner *r, panel *pn) {
         enclosure = mk(greater(enclosure.lo, candidates[i].lo), lesser(enclosure.hi, candidates[i].hi));
     }
     if (r->vm->fault || !finite_iv(enclosure)) return;
-    pn->enclosure = enclosure;
-    pn->order = best_order;
-    if (best_order == GAUSS_BOUND) pn->rounding = iv_width(gauss_sum);
-    pn->width = iv_width(enclosure);
-    pn->centre = 0.5 * enclosure.lo + 0.5 * enclosure.hi;
-    pn->resolved = 1;
+    settle(pn, enclosure, best_order, best_order == GAUSS_BOUND ? iv_width(gauss_sum) : pn->rounding);
 }
 
 static int grow(refiner *r) {
@@ -195,12 +278,15 @@ enum { MET = 0, NODE_BUDGET = 1, DEADLINE = 2,
        DECLINE_VALUE = -1, DECLINE_DEPTH = -2, DECLINE_RESOLUTION = -3, DECLINE_UNRESOLVED = -4,
        DECLINE_MEMORY = -5, DECLINE_ROUNDING_MODE = -6, DECLINE_RANGE = -7, DECLINE_STALLED = -8 };
 
-/* a new panel in slot `reuse` (a panel just split, whose slot is free) or at the end */
-static int make_panel(refiner *r, iv p, iv q, iv fp, iv fq, int depth, Py_ssize_t reuse, Py_ssize_t *index) {
+/* a new panel in slot `reuse` (a panel just split, whose slot is free) or at the end, a child of `parent`
+   (a copy, NULL for the first), certified */
+static int make_panel(refiner *r, iv p, iv q, iv fp, iv fq, const panel *parent, Py_ssize_t reuse,
+                      Py_ssize_t *index) {
     if (reuse < 0 && grow(r)) return DECLINE_MEMORY;
     Py_ssize_t slot = reuse < 0 ? r->count : reuse;
     panel *pn = &r->panels[slot];
-    pn->p = p; pn->q = q; pn->fp = fp; pn->fq = fq; pn->depth = depth;
+    pn->p = p; pn->q = q; pn->fp = fp; pn->fq = fq; pn->depth = parent ? parent->depth + 1 : 0;
+    pn->model = parent ? parent->model : -1;
     double sum_lo = add_dn(p.lo, q.lo), sum_hi = add_up(p.hi, q.hi);
     pn->m = mk(0.5 * sum_lo, 0.5 * sum_hi);   /* halving is exact above 2^-1021 */
     /* below that it may round, so the ends move out one step; an exact 0 (a symmetric panel) stays 0 */
@@ -247,21 +333,6 @@ static iv sum_of_panels(const refiner *r) {
     return mk(add_dn(s[0], errors[0].lo), add_up(s[1], errors[1].hi));
 }
 
-/* A running sum that terms are added to and later removed from.  In plain float64 the removal of a term
-   that dominated the sum (a first panel 1e10 wide, the rest 1e-10) leaves that term's rounding error
-   behind for good, about 1e-6 here, and the loop then refines far past the tolerance, or declines because
-   the rounding estimate looks like float64's floor.  Each step's error is kept exactly by TwoSum in a
-   second word; these sums steer the refinement only, they certify nothing. */
-typedef struct { double hi, lo; } running_sum;
-
-static inline void sum_add(running_sum *acc, double x) {
-    double t = acc->hi + x, bp = t - acc->hi;
-    acc->lo += (acc->hi - (t - bp)) + (x - bp);
-    acc->hi = t;
-}
-
-static inline double sum_value(const running_sum *acc) { return acc->hi + acc->lo; }
-
 /* The refinement loop's factors. None of them affects rigor (the answer is the certified sum of the panels
    whatever they are); they decide when to try the exact sum, and when float64 cannot reach the goal. */
 #define ROUNDING_SHARE 64.0        /* width below this many times the rounding: the floor is in sight */
@@ -273,6 +344,30 @@ static inline double sum_value(const running_sum *acc) { return acc->hi + acc->l
 #define STALLS_TO_DECLINE 2        /* checkpoints in a row without that, near the floor, before declining */
 #define TIGHTEN_SHARE 0.5          /* guarded rounding above this share of the goal: move to the tight tier */
 #define FIRST_CHECKPOINT 64        /* panels at the first stall checkpoint (then twice as many each time) */
+
+/* a live panel's share of the running sums, added (sign 1) or taken out (sign -1) */
+static void account(refiner *r, Py_ssize_t i, double sign) {
+    const panel *pn = &r->panels[i];
+    sum_add(&r->roundings, sign * pn->rounding);
+    if (pn->resolved) {
+        sum_add(&r->widths, sign * pn->width);
+        sum_add(&r->centres, sign * pn->centre);
+    } else {
+        r->unresolved += (long long)sign;
+    }
+}
+
+/* the running sums and the heap made anew from the live panels, after their widths changed in place */
+static void recount(refiner *r) {
+    r->widths = r->centres = r->roundings = (running_sum){0, 0};
+    r->unresolved = 0;
+    Py_ssize_t live = r->heap_size;
+    r->heap_size = 0;
+    for (Py_ssize_t i = 0; i < live; i++) {
+        account(r, r->heap[i], 1);
+        heap_push(r, r->heap[i]);   /* Floyd's order would do; pushing is simpler */
+    }
+}
 
 /* The guarded tier met its floor: every live panel's node values are taken again in the tight tier and the
    panel certified anew, keeping the mesh (the split points, and with them all the refinement so far).
@@ -288,10 +383,7 @@ static int tighten(refiner *r) {
         if (r->overflow) return DECLINE_RANGE;
     }
     r->nodes = nodes;
-    /* the widths changed: the heap is rebuilt in place (Floyd's order would do; pushing is simpler) */
-    Py_ssize_t live = r->heap_size;
-    r->heap_size = 0;
-    for (Py_ssize_t i = 0; i < live; i++) heap_push(r, r->heap[i]);
+    recount(r);
     return 0;
 }
 
@@ -299,26 +391,24 @@ static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nod
     iv fa, fb;
     if (node_value(r, a, &fa) || node_value(r, b, &fb)) return DECLINE_VALUE;
     r->nodes = 2;
+    r->goal = tol;
     Py_ssize_t first;
-    int status = make_panel(r, a, b, fa, fb, 0, -1, &first);
+    int status = make_panel(r, a, b, fa, fb, NULL, -1, &first);
     if (status) return status;
-    running_sum widths = {0, 0}, centres = {0, 0}, roundings = {0, 0};
     double next_check = INFINITY;
     double width_at_checkpoint = INFINITY;
-    long long unresolved = 0, steps = 0;
+    long long steps = 0;
     Py_ssize_t checkpoint = FIRST_CHECKPOINT;
     int stalls = 0;
-#define ACCOUNT(i, s) do { panel *pp = &r->panels[i]; sum_add(&roundings, (s) * pp->rounding); \
-        if (pp->resolved) { sum_add(&widths, (s) * pp->width); sum_add(&centres, (s) * pp->centre); } \
-        else unresolved += (s); } while (0)
     heap_push(r, first);
-    ACCOUNT(first, 1);
+    account(r, first, 1);
     for (;;) {
-        if (!unresolved) {
-            double width_sum = sum_value(&widths), centre_sum = sum_value(&centres);
-            double rounding_sum = sum_value(&roundings);
+        if (!r->unresolved) {
+            double width_sum = sum_value(&r->widths), centre_sum = sum_value(&r->centres);
+            double rounding_sum = sum_value(&r->roundings);
             double half = width_sum / 2;
             double goal = target_of(tol, rel, centre_sum - half, centre_sum + half);
+            r->goal = goal;
             if (half <= goal * ESTIMATE_SLACK && width_sum < next_check) {
                 iv total = sum_of_panels(r);
                 double bound = up(0.5 * iv_width(total));
@@ -346,8 +436,6 @@ static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nod
                 if (r->tight || !r->may_tighten) return floor_reached ? DECLINE_RESOLUTION : DECLINE_STALLED;
                 /* the float64 floor of the guarded tier: continue on the same mesh with tight values */
                 if ((status = tighten(r))) return status;
-                widths = centres = roundings = (running_sum){0, 0};
-                for (Py_ssize_t i = 0; i < r->heap_size; i++) ACCOUNT(r->heap[i], 1);
                 stalls = 0;
                 width_at_checkpoint = INFINITY;
                 next_check = INFINITY;
@@ -357,27 +445,26 @@ static int run(refiner *r, iv a, iv b, double tol, double rel, long long max_nod
         }
         long long next = r->nodes + 2 + (r->rule == RULE_SIMPSON ? 0 : 2 * r->gauss_points);   /* a split's cost */
         if (next > max_nodes || ((++steps & 31) == 0 && deadline > 0 && now() > deadline)) {
-            if (unresolved) return DECLINE_UNRESOLVED;
+            if (r->unresolved) return DECLINE_UNRESOLVED;
             *total_out = sum_of_panels(r);
             return next > max_nodes ? NODE_BUDGET : DEADLINE;
         }
         Py_ssize_t worst = r->heap[0];
         if (r->panels[worst].depth >= MAX_DEPTH) return DECLINE_DEPTH;
         heap_pop(r);
-        ACCOUNT(worst, -1);
+        account(r, worst, -1);
         panel parent = r->panels[worst];
         Py_ssize_t left, right;
         iv cut = split_point(&parent);
-        if ((status = make_panel(r, parent.p, cut, parent.fp, parent.fm, parent.depth + 1, worst, &left)))
+        if ((status = make_panel(r, parent.p, cut, parent.fp, parent.fm, &parent, worst, &left)))
             return status;
-        if ((status = make_panel(r, cut, parent.q, parent.fm, parent.fq, parent.depth + 1, -1, &right)))
+        if ((status = make_panel(r, cut, parent.q, parent.fm, parent.fq, &parent, -1, &right)))
             return status;
         heap_push(r, left);
-        ACCOUNT(left, 1);
+        account(r, left, 1);
         heap_push(r, right);
-        ACCOUNT(right, 1);
+        account(r, right, 1);
     }
-#undef ACCOUNT
 }
 
 /* ---- Python entry points ----------------------------------------------------------------- */
@@ -533,13 +620,14 @@ static PyObject *native_integrate(PyObject *self, PyObject *args) {
             }
         }
     }
-    result = Py_BuildValue("(iddLn(LLLLLL)N)", status, total.lo, total.hi, r.nodes, r.heap_size, counts[0],
-                           counts[1], counts[2], counts[3], counts[4], counts[5], mesh);
+    result = Py_BuildValue("(iddLn(LLLLLL)Nn)", status, total.lo, total.hi, r.nodes, r.heap_size, counts[0],
+                           counts[1], counts[2], counts[3], counts[4], counts[5], mesh, r.model_count);
 done:
     PyBuffer_Release(&code);
     release_machine(&vm);
     free(r.panels);
     free(r.heap);
+    free(r.models);
     return result;
 }
 
@@ -566,6 +654,33 @@ static PyObject *native_taylor(PyObject *self, PyObject *args) {
         if (!pair) { Py_CLEAR(result); break; }
         PyList_SET_ITEM(result, k, pair);
     }
+done:
+    PyBuffer_Release(&code);
+    release_machine(&vm);
+    return result;
+}
+
+/* f''''/4! over [plo, phi] from the Taylor model of f over [lo, hi], with the width of its remainder part,
+   for the property tests of the models; None where the model cannot be built */
+static PyObject *native_model(PyObject *self, PyObject *args) {
+    (void)self;
+    Py_buffer code;
+    PyObject *consts_obj, *result = NULL;
+    int stack_size;
+    double lo, hi, plo, phi;
+    if (!PyArg_ParseTuple(args, "y*Oidddd:model", &code, &consts_obj, &stack_size, &lo, &hi, &plo, &phi)) return NULL;
+    machine vm;
+    if (load_machine(&vm, &code, consts_obj, stack_size)) goto done;
+    if (!(lo <= plo && plo <= phi && phi <= hi)) {
+        PyErr_SetString(PyExc_ValueError, "the panel must lie inside the stretch");
+        goto done;
+    }
+    iv ln10 = LN10, two = TWO_OVER_ROOT_PI;
+    taylor_model md;
+    if (build_model(&vm, lo, hi, &md, &ln10, &two)) { result = Py_None; Py_INCREF(result); goto done; }
+    double remainder;
+    iv fourth = model_fourth(&md, plo, phi, &remainder);
+    result = Py_BuildValue("(ddd)", fourth.lo, fourth.hi, remainder);
 done:
     PyBuffer_Release(&code);
     release_machine(&vm);
@@ -681,6 +796,7 @@ static PyMethodDef methods[] = {
     {"tables", native_tables, METH_NOARGS, "The opcodes, statuses and constants the engine was built with."},
     {"integrate", native_integrate, METH_VARARGS, "Certified adaptive Simpson of a compiled program."},
     {"taylor", native_taylor, METH_VARARGS, "Taylor coefficient enclosures of a compiled program."},
+    {"model", native_model, METH_VARARGS, "The fourth derivative over a panel from a Taylor model over a stretch."},
     {"enclose", native_enclose, METH_VARARGS, "Guarded or tight enclosure of one elementary function."},
     {"tight", native_tight, METH_VARARGS, "The tight tier's double-word enclosure at a point, or a constant."},
     {"operate", native_operate, METH_VARARGS, "One outward-rounded interval operation."},
@@ -690,4 +806,7 @@ static PyMethodDef methods[] = {
 static struct PyModuleDef module = {PyModuleDef_HEAD_INIT, "_native", "Compiled float64 interval engine.", -1,
                                     methods, NULL, NULL, NULL, NULL};
 
-PyMODINIT_FUNC PyInit__native(void) { return PyModule_Create(&module); }
+PyMODINIT_FUNC PyInit__native(void) {
+    fill_inverses();
+    return PyModule_Create(&module);
+}

@@ -29,13 +29,28 @@ def integrate(
     int,
     tuple[int, int, int, int, int, int],
     list[tuple[float, float, float, float, int]] | None,
+    int,
 ]:
-    """(status, low, high, nodes, panels, panels per bound order, mesh rows (p, q, low, high, order))."""
+    """(status, low, high, nodes, panels, panels per bound order, mesh rows (p, q, low, high, order), Taylor models
+    built)."""
 
 def taylor(
     code: bytes, constants: tuple[tuple[float, float], ...], stack: int, low: float, high: float, order: int, /
 ) -> list[tuple[float, float]] | None:
     """Enclosures of f^(k)(X)/k! for k = 0..order, or None where the program faults."""
+
+def model(
+    code: bytes,
+    constants: tuple[tuple[float, float], ...],
+    stack: int,
+    low: float,
+    high: float,
+    panel_low: float,
+    panel_high: float,
+    /,
+) -> tuple[float, float, float] | None:
+    """f''''/4! over [panel_low, panel_high] from the Taylor model of f over [low, high], and the width of the
+    remainder's part of it; None where the model cannot be built."""
 
 def enclose(op: int, low: float, high: float, tight: bool = False, /) -> tuple[float, float] | None:
     """One elementary function over [low, high], guarded or from the tight tier where it covers it, or None

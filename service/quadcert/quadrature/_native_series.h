@@ -10,14 +10,28 @@
 /* ---- Taylor series over an interval (the recurrences of derivatives/_series.py) ---------- */
 
 static const double WHOLE[TERMS] = {0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 15, 16, 17, 18, 19, 20};
-/* 1/k enclosed: 1/3 is not a float */
-static iv inverse(int k) {
-    switch (k) {
-    case 1: return point(1.0);
-    case 2: return point(0.5);
-    case 4: return point(0.25);
-    default: return mk(div_dn(1.0, (double)k), div_up(1.0, (double)k));
+/* 1/k rounded down and up, k = 1..ORDER (exact where k is a power of two): filled once, at module import */
+static double INVERSE_DN[TERMS], INVERSE_UP[TERMS];
+
+static void fill_inverses(void) {
+    for (int k = 1; k < TERMS; k++) {
+        INVERSE_DN[k] = div_dn(1.0, (double)k);
+        INVERSE_UP[k] = div_up(1.0, (double)k);
     }
+}
+
+/* a / k for an integer 1 <= k <= ORDER: each end times the rounded reciprocal that moves it outward */
+static inline iv over(iv a, int k) {
+    return mk(mul_dn(a.lo, a.lo >= 0 ? INVERSE_DN[k] : INVERSE_UP[k]),
+              mul_up(a.hi, a.hi >= 0 ? INVERSE_UP[k] : INVERSE_DN[k]));
+}
+
+/* 1 + the index of a series' last term that is not an exact 0 (1 for a constant, 2 for a x + b): the
+   convolutions skip the exact zeros past it, whose products are exact zeros */
+static inline int extent(const series *a) {
+    int e = a->len;
+    while (e > 1 && a->c[e - 1].lo == 0 && a->c[e - 1].hi == 0) e--;
+    return e;
 }
 
 /* a series copied by its used terms only (a whole struct is 21 intervals; most runs use 5 or 11) */
@@ -78,12 +92,23 @@ static iv mr_dot(const mr *a, const mr *b, int from, int to, int k) {
 
 static void s_mul(series *out, const series *a, const series *b) {
     int n = a->len < b->len ? a->len : b->len;
-    mr am[TERMS], bm[TERMS];
-    to_mr_all(am, a->c, n);
-    to_mr_all(bm, b->c, n);
+    int ea = extent(a), eb = extent(b);
     series r;
     r.len = n;
-    for (int k = 0; k < n; k++) r.c[k] = k == 0 ? iv_mul(a->c[0], b->c[0]) : mr_dot(am, bm, 0, k, k);
+    if (ea == 1 || eb == 1) {   /* a constant factor: each term once */
+        iv k = ea == 1 ? a->c[0] : b->c[0];
+        const series *other = ea == 1 ? b : a;
+        for (int j = 0; j < n; j++) r.c[j] = iv_mul(other->c[j], k);
+    } else {
+        mr am[TERMS], bm[TERMS];
+        to_mr_all(am, a->c, ea < n ? ea : n);
+        to_mr_all(bm, b->c, eb < n ? eb : n);
+        r.c[0] = iv_mul(a->c[0], b->c[0]);
+        for (int k = 1; k < n; k++) {
+            int from = k - eb + 1 > 0 ? k - eb + 1 : 0, to = k < ea - 1 ? k : ea - 1;
+            r.c[k] = mr_dot(am, bm, from, to, k);
+        }
+    }
     s_copy(out, &r);
 }
 
@@ -127,6 +152,7 @@ static void s_driven(series *out, const series *u, iv value, int kind) {
     series r;
     mr du[TERMS], g[TERMS], rm[TERMS];
     weighted_slopes(du, u);
+    int span = extent(u) - 1;   /* j u_j is an exact 0 past it */
     r.len = u->len;
     r.c[0] = value;
     rm[0] = to_mr(value);
@@ -139,7 +165,7 @@ static void s_driven(series *out, const series *u, iv value, int kind) {
             if (mm == 0) g[mm] = to_mr(kind > 0 ? iv_add(point(1.0), sq) : iv_sub(point(1.0), sq));
             else g[mm] = to_mr(kind > 0 ? sq : iv_neg(sq));
         }
-        r.c[k] = iv_mul(mr_dot(du, g, 1, k, k), inverse(k));
+        r.c[k] = over(mr_dot(du, g, 1, k < span ? k : span, k), k);
         rm[k] = to_mr(r.c[k]);
     }
     s_copy(out, &r);
@@ -149,15 +175,17 @@ static void s_driven(series *out, const series *u, iv value, int kind) {
 static void s_pair(series *s, series *c, const series *u, iv s0, iv c0, int sign) {
     mr du[TERMS], sm[TERMS], cm[TERMS];
     weighted_slopes(du, u);
+    int span = extent(u) - 1;   /* j u_j is an exact 0 past it */
     s->len = c->len = u->len;
     s->c[0] = s0;
     c->c[0] = c0;
     sm[0] = to_mr(s0);
     cm[0] = to_mr(c0);
     for (int k = 1; k < u->len; k++) {
-        iv as = mr_dot(du, cm, 1, k, k), ac = mr_dot(du, sm, 1, k, k);
-        s->c[k] = iv_mul(as, inverse(k));
-        c->c[k] = iv_mul(sign > 0 ? ac : iv_neg(ac), inverse(k));
+        int to = k < span ? k : span;
+        iv as = mr_dot(du, cm, 1, to, k), ac = mr_dot(du, sm, 1, to, k);
+        s->c[k] = over(as, k);
+        c->c[k] = over(sign > 0 ? ac : iv_neg(ac), k);
         sm[k] = to_mr(s->c[k]);
         cm[k] = to_mr(c->c[k]);
     }
@@ -168,7 +196,7 @@ static void s_integrate(series *out, iv value, const series *d, int len) {
     series r;
     r.len = len;
     r.c[0] = value;
-    for (int k = 1; k < len; k++) r.c[k] = iv_mul(d->c[k - 1], inverse(k));
+    for (int k = 1; k < len; k++) r.c[k] = over(d->c[k - 1], k);
     s_copy(out, &r);
 }
 
