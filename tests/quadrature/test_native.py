@@ -359,6 +359,59 @@ def test_hand_over_to_the_precise_engine(formula: str, a: str, b: str, tolerance
     assert HP.mpf(result.enclosure[0]) <= exact <= HP.mpf(result.enclosure[1])
 
 
+def test_the_mesh_is_handed_over_where_float64_resolution_stops() -> None:
+    """Where the compiled engine declines for float64's resolution, the precise engine starts from its mesh and
+    ends on the same panels as from scratch (both bisect at the same exact midpoints of binary fractions).
+    Reference for the value: ∫₀¹ eˣ dx = e − 1 (closed form, from memory), at 110 digits."""
+    from fractions import Fraction
+
+    from quadcert.arithmetic import MpmathArithmetic as Reference
+    from quadcert.quadrature._simpson import Refiner
+
+    compiled = _fast.compile_formula(parse("exp(x)"), {})
+    assert compiled is not None
+    zero, one = (Fraction(0),) * 2, (Fraction(1),) * 2
+    declined = _fast.run(compiled, zero, one, 1e-15, None, 10**6, None, False, "simpson", 5)
+    assert isinstance(declined, _fast.Declined) and declined.reason in ("resolution", "stalled")
+    assert len(declined.cuts) > 10
+    points = [x for x, _ in declined.cuts]
+    assert points == sorted(points) and 0 < points[0] and points[-1] < 1 and len(set(points)) == len(points)
+    ar = Reference(120)
+    outcomes = []
+    for cuts in ((), declined.cuts):
+        refiner = Refiner(Program(parse("exp(x)"), ar), ar, max_nodes=10**6, deadline=None, points=5)
+        outcomes.append(refiner.run(ar.exact(Fraction(0)), ar.exact(Fraction(1)), lambda lo, hi: 1e-15, cuts))
+    scratch, handed = outcomes
+    assert handed.stop_reason == scratch.stop_reason == "tolerance_met"
+    assert len(handed.panels) == len(scratch.panels) and handed.nodes == scratch.nodes
+    exact = HP.e - 1
+    for outcome in outcomes:
+        low, high = ar.bounds(outcome.enclosure)
+        assert HP.mpf(low) <= exact <= HP.mpf(high)
+    result = integrate("exp(x)", 0, 1, 1e-15)
+    assert result.precision_bits > 53 and result.tolerance_met
+    assert HP.mpf(result.enclosure[0]) <= exact <= HP.mpf(result.enclosure[1])
+
+
+def test_handed_cuts_outside_the_limits_are_ignored() -> None:
+    """A cut on or beyond a limit's enclosure never makes a panel: the run is the one from scratch. Reference:
+    ∫₀¹ x² eˣ dx = e − 2 (integration by parts, from memory)."""
+    from fractions import Fraction
+
+    from quadcert.arithmetic import MpmathArithmetic as Reference
+    from quadcert.quadrature._simpson import Refiner
+
+    ar = Reference(80)
+    outcomes = []
+    for cuts in ((), ((Fraction(-1), 3), (Fraction(0), 3), (Fraction(1), 3), (Fraction(2), 3))):
+        refiner = Refiner(Program(parse("x^2 * exp(x)"), ar), ar, max_nodes=10**5, deadline=None, points=5)
+        outcomes.append(refiner.run(ar.exact(Fraction(0)), ar.exact(Fraction(1)), lambda lo, hi: 1e-10, cuts))
+    assert outcomes[0].nodes == outcomes[1].nodes
+    exact = HP.e - 2
+    low, high = ar.bounds(outcomes[1].enclosure)
+    assert HP.mpf(low) <= exact <= HP.mpf(high)
+
+
 @pytest.mark.parametrize(
     "formula, a, b",
     [

@@ -79,6 +79,16 @@ class FastOutcome:
     mesh: tuple[PanelReport, ...]
 
 
+@dataclass(frozen=True)
+class Declined:
+    """Why the compiled engine declined; where float64's resolution stopped it, the mesh it had built, as the
+    exact split points strictly inside the limits (ascending) and the depth of the panel each one starts, for
+    the precise engine to go on from rather than start over."""
+
+    reason: str
+    cuts: tuple[tuple[Fraction, int], ...] = ()
+
+
 class _Compiler:
     def __init__(self, formula: Formula, values: Mapping[str, ParameterValue]) -> None:
         self.formula = formula
@@ -223,7 +233,7 @@ def run(
     want_mesh: bool,
     rule: str,
     points: int,
-) -> FastOutcome | str:
+) -> FastOutcome | Declined:
     """Refine on [a, b] (exact enclosures of the limits, a < b); a FastOutcome, or why it declined."""
     if not trusted():
         return _declined("unavailable")
@@ -235,7 +245,7 @@ def run(
     bounds = (fraction_down(a[0]), fraction_up(a[1]), fraction_down(b[0]), fraction_up(b[1]))
     if not all(math.isfinite(v) for v in bounds):
         return _declined("limits")
-    status, low, high, nodes, panels, counts, mesh, _models = _native.integrate(
+    status, low, high, nodes, panels, counts, mesh, _models, left_ends = _native.integrate(
         compiled.code,
         compiled.constants,
         compiled.stack,
@@ -250,7 +260,7 @@ def run(
     )
     ended = Status(status)
     if ended < 0:
-        return _declined(ended.label, nodes)
+        return _declined(ended.label, nodes, _cuts(left_ends, bounds[1], bounds[2]))
     names = {**BOUND_NAMES, GAUSS_BOUND: _gauss.name(points)}
     used = {names[order]: count for order, count in enumerate(counts) if count}
     reports: tuple[PanelReport, ...] = ()
@@ -287,8 +297,23 @@ def value_range(compiled: Compiled, a: float, b: float) -> tuple[float, float] |
     return (low, high) if math.isfinite(low) and math.isfinite(high) else None
 
 
-def _declined(reason: str, nodes: int = 0) -> str:
-    """Count and log why a request goes to the arbitrary-precision engine; the reason is returned."""
+def _declined(reason: str, nodes: int = 0, cuts: tuple[tuple[Fraction, int], ...] = ()) -> Declined:
+    """Count and log why a request goes to the arbitrary-precision engine."""
     _DECLINES[reason] += 1
-    log.debug("compiled engine declined", extra={"reason": reason, "nodes": nodes})
-    return reason
+    log.debug("compiled engine declined", extra={"reason": reason, "nodes": nodes, "cuts": len(cuts)})
+    return Declined(reason, cuts)
+
+
+def _cuts(
+    left_ends: list[tuple[float, float, int]] | None, a_high: float, b_low: float
+) -> tuple[tuple[Fraction, int], ...]:
+    """The split points of a mesh the engine hands over: its panels' left ends that are floats strictly inside
+    [a_high, b_low] (a cut that is an interval, rare, merges its two panels), ascending, each with the depth of
+    the panel it starts (depth only bounds further bisection; the panel from the lower limit starts at 0)."""
+    if not left_ends:
+        return ()
+    cuts: dict[float, int] = {}
+    for low, high, depth in left_ends:
+        if low == high and a_high < low < b_low:
+            cuts[low] = depth
+    return tuple((Fraction(x), cuts[x]) for x in sorted(cuts))

@@ -74,14 +74,14 @@ def check_one(data: bytes) -> None:
         _fast.run(compiled, (Fraction(0),) * 2, (Fraction(1),) * 2, 1e-6, None, 801, None, False, rule, points)
         for rule, points in (("simpson", 5), ("auto", 5), ("auto", 10))  # auto: the Gauss–Legendre panels too
     ]
-    if all(isinstance(outcome, str) for outcome in outcomes):
+    if all(isinstance(outcome, _fast.Declined) for outcome in outcomes):
         return
     try:
         precise = integrate(formula, 0, 1, 1e-6, max_nodes=801, deadline_seconds=2, arithmetic=MpmathArithmetic)
     except QuadcertError:
         return
     for outcome in outcomes:
-        if not isinstance(outcome, str) and not _meet(outcome.enclosure, precise.enclosure):
+        if not isinstance(outcome, _fast.Declined) and not _meet(outcome.enclosure, precise.enclosure):
             raise AssertionError(f"disjoint certificates for {text!r}: {outcome.enclosure} vs {precise.enclosure}")
 
 

@@ -210,6 +210,7 @@ def segment(
         return Segment(0.0, 0.0, "tolerance_met", 0, 0, (), {}, settings.precision_bits or 53)
     native = settings.arithmetic is None and settings.precision_bits is None and _fast.AVAILABLE
     points = _gauss.points_for(tolerance)  # the Gauss–Legendre panels' nodes, for the rules that use them
+    cuts: tuple[tuple[Fraction, int], ...] = ()
     if native:
         fast = _try_fast(
             formula,
@@ -225,7 +226,7 @@ def segment(
             settings.rule,
             points,
         )
-        if fast is not None:
+        if isinstance(fast, tuple):
             compiled, low, high = fast
             return Segment(
                 low,
@@ -237,6 +238,8 @@ def segment(
                 compiled.bounds_used,
                 53,
             )
+        if fast is not None:  # where float64's resolution stopped it, the precise engine starts from its mesh
+            cuts = fast.cuts
     prec = settings.precision_bits or min(max(choose_precision(tolerance), precision_floor), 4096)
     arithmetic = settings.arithmetic or default_arithmetic()
     if settings.arithmetic is None and _spread.spread_used(formula, (), values):
@@ -263,6 +266,7 @@ def segment(
             formula,
             settings.rule,
             points,
+            cuts,
         )
         attempts += 1
         if outcome[1] != "resolution_limit" or attempts >= 3 or prec * 2 > 4096:
@@ -307,8 +311,9 @@ def _try_fast(
     include_mesh: bool,
     rule: str,
     points: int,
-) -> tuple[_fast.FastOutcome, float, float] | None:
-    """The compiled float64 engine's answer when it is a usable one; None hands over to the precise engine."""
+) -> tuple[_fast.FastOutcome, float, float] | _fast.Declined | None:
+    """The compiled float64 engine's answer when it is a usable one; otherwise the precise engine takes over,
+    from the mesh the compiled one hands it (Declined) or from scratch (None)."""
     if _same(lower, upper):
         return None
     compiled = _fast.compile_formula(formula, values)
@@ -322,8 +327,8 @@ def _try_fast(
     else:
         return None
     outcome = _fast.run(compiled, a, b, tolerance, relative, max_nodes, deadline, include_mesh, rule, points)
-    if isinstance(outcome, str):
-        return None
+    if isinstance(outcome, _fast.Declined):
+        return outcome
     if sign < 0:
         mesh = tuple(
             PanelReport(r.lower, r.upper, (-r.contribution[1], -r.contribution[0]), r.bound) for r in outcome.mesh
@@ -367,6 +372,7 @@ def _run(
     formula: Formula,
     rule: str,
     points: int,
+    cuts: tuple[tuple[Fraction, int], ...] = (),
 ) -> tuple[object, str, int, int, tuple[PanelReport, ...], dict[str, int], Fraction]:
     if same_text:
         return ar.zero, "tolerance_met", 0, 0, (), {}, Fraction(0)
@@ -391,7 +397,7 @@ def _run(
         rule=rule,
         points=points,
     )
-    outcome = refiner.run(a, b, target)
+    outcome = refiner.run(a, b, target, cuts)
     enclosure = outcome.enclosure if sign > 0 else ar.neg(outcome.enclosure)
     return (
         enclosure,

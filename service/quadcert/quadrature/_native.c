@@ -620,8 +620,23 @@ static PyObject *native_integrate(PyObject *self, PyObject *args) {
             }
         }
     }
-    result = Py_BuildValue("(iddLn(LLLLLL)Nn)", status, total.lo, total.hi, r.nodes, r.heap_size, counts[0],
-                           counts[1], counts[2], counts[3], counts[4], counts[5], mesh, r.model_count);
+    /* where float64's resolution stopped the run, the mesh it built is handed to the precise engine: each
+       live panel's left end (an interval, a point where it is a float) and depth */
+    PyObject *left_ends = Py_None;
+    Py_INCREF(left_ends);
+    if (status == DECLINE_RESOLUTION || status == DECLINE_STALLED) {
+        Py_DECREF(left_ends);
+        left_ends = PyList_New(r.heap_size);
+        if (!left_ends) { Py_DECREF(mesh); goto done; }
+        for (Py_ssize_t i = 0; i < r.heap_size; i++) {
+            panel *pn = &r.panels[r.heap[i]];
+            PyObject *row = Py_BuildValue("(ddi)", pn->p.lo, pn->p.hi, pn->depth);
+            if (!row) { Py_DECREF(mesh); Py_DECREF(left_ends); goto done; }
+            PyList_SET_ITEM(left_ends, i, row);
+        }
+    }
+    result = Py_BuildValue("(iddLn(LLLLLL)NnN)", status, total.lo, total.hi, r.nodes, r.heap_size, counts[0],
+                           counts[1], counts[2], counts[3], counts[4], counts[5], mesh, r.model_count, left_ends);
 done:
     PyBuffer_Release(&code);
     release_machine(&vm);

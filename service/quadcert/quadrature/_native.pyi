@@ -30,9 +30,10 @@ def integrate(
     tuple[int, int, int, int, int, int],
     list[tuple[float, float, float, float, int]] | None,
     int,
+    list[tuple[float, float, int]] | None,
 ]:
     """(status, low, high, nodes, panels, panels per bound order, mesh rows (p, q, low, high, order), Taylor models
-    built)."""
+    built, and where float64's resolution stopped the run each live panel's left end (low, high) and depth)."""
 
 def taylor(
     code: bytes, constants: tuple[tuple[float, float], ...], stack: int, low: float, high: float, order: int, /

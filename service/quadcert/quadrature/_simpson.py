@@ -269,9 +269,12 @@ class Refiner:
         )
 
     # -- the loop ----------------------------------------------------------------------------
-    def run(self, a: Any, b: Any, target: Callable[[float, float], float]) -> Outcome:
-        """Refine until ``error_bound(total) <= target(low, high)`` of the summed enclosure."""
-        first = self.panel(a, b, self.value_at(a), self.value_at(b), 0)
+    def run(
+        self, a: Any, b: Any, target: Callable[[float, float], float], cuts: tuple[tuple[Fraction, int], ...] = ()
+    ) -> Outcome:
+        """Refine until ``error_bound(total) <= target(low, high)`` of the summed enclosure; from one panel, or
+        from the panels between ``cuts`` (exact points inside the limits with the depth of the panel each starts:
+        a mesh the compiled engine built before float64's resolution stopped it)."""
         heap: list[tuple[float, int, _Panel]] = []
         counter = 0
         unresolved = 0
@@ -304,7 +307,8 @@ class Refiner:
                 centre_sum.remove(panel.centre)
             return panel
 
-        push(first)
+        for panel in self._first_panels(a, b, cuts):
+            push(panel)
         stop = "tolerance_met"
         while True:
             if not unresolved:
@@ -351,6 +355,15 @@ class Refiner:
             name = self.names[panel.order]
             self.bounds_used[name] = self.bounds_used.get(name, 0) + 1
         return Outcome(self.total(panels), panels, self.nodes(), stop, spread_sum.exact())
+
+    def _first_panels(self, a: Any, b: Any, cuts: tuple[tuple[Fraction, int], ...]) -> list[_Panel]:
+        """[a, b] as one panel, or split at the cuts that lie strictly between the limits' enclosures."""
+        a_high, b_low = self.ar.bounds_exact(a)[1], self.ar.bounds_exact(b)[0]
+        inside = [(x, depth) for x, depth in cuts if a_high < x < b_low]
+        ends = [a, *(self.ar.exact(x) for x, _ in inside), b]
+        depths = [0, *(min(depth, MAX_DEPTH) for _, depth in inside)]
+        values = [self.value_at(end) for end in ends]
+        return [self.panel(ends[i], ends[i + 1], values[i], values[i + 1], depths[i]) for i in range(len(depths))]
 
     def nodes(self) -> int:
         """Evaluations so far: the shared Simpson nodes and every Gauss–Legendre panel's own."""
