@@ -114,8 +114,8 @@ static void settle(panel *pn, iv enclosure, int order, double rounding) {
    factor affects rigor: a model's enclosure is as valid as the series', these only choose the cheaper. */
 #define MODEL_SHARE 0.25   /* the model's remainder may take this share of a panel's enclosure width */
 #define MODEL_REACH 16.0   /* a new model must keep it this many times smaller on the panel it is built on */
-#define MODEL_WORTH 64.0   /* and is built only on a panel this many times wider than the goal (the two
-                              series cost a dozen panels' own: a panel near the goal has few descendants) */
+#define MODEL_WORTH 64.0   /* and is built only on a panel this many times wider than the goal (its two
+                              series cost some twenty panels' own: a panel near the goal has few descendants) */
 
 /* The share of Simpson's fourth-order bound over the panel that the model's remainder makes up, and the
    enclosure (through *out); a share above 1 (or NaN) when the model does not reach. */
