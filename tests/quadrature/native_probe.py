@@ -75,7 +75,7 @@ def _run(formula: str, a: float, b: float, tolerance: float, rule: str, may_tigh
         _fast._gauss_table(_gauss_points(tolerance)) if rule != "simpson" else (),
         may_tighten,
     )
-    return _fast.Status(outcome[0]).label, outcome[-1]
+    return _fast.Status(outcome[0]).label, outcome[7]
 
 
 def model_fourth(

@@ -412,6 +412,27 @@ def test_handed_cuts_outside_the_limits_are_ignored() -> None:
     assert HP.mpf(low) <= exact <= HP.mpf(high)
 
 
+def test_a_handed_mesh_yields_to_the_node_budget_and_the_deadline() -> None:
+    """The precise engine certifies handed panels only while the budget and the deadline allow; the rest of the
+    interval is one panel, so the enclosure still covers it. Reference: ∫₀¹ eˣ dx = e − 1 (closed form)."""
+    import time
+    from fractions import Fraction
+
+    from quadcert.arithmetic import MpmathArithmetic as Reference
+    from quadcert.quadrature._simpson import Refiner
+
+    ar = Reference(120)
+    cuts = tuple((Fraction(i, 1000), 10) for i in range(1, 1000))
+    exact = HP.e - 1
+    for max_nodes, deadline in ((101, None), (10**6, time.monotonic() - 1)):
+        refiner = Refiner(Program(parse("exp(x)"), ar), ar, max_nodes=max_nodes, deadline=deadline, points=5)
+        outcome = refiner.run(ar.exact(Fraction(0)), ar.exact(Fraction(1)), lambda lo, hi: 1e-15, cuts)
+        assert outcome.stop_reason in ("node_budget", "deadline")
+        assert outcome.nodes <= max(max_nodes, 5) and len(outcome.panels) < 60
+        low, high = ar.bounds(outcome.enclosure)
+        assert HP.mpf(low) <= exact <= HP.mpf(high)
+
+
 @pytest.mark.parametrize(
     "formula, a, b",
     [

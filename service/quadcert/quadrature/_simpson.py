@@ -357,13 +357,24 @@ class Refiner:
         return Outcome(self.total(panels), panels, self.nodes(), stop, spread_sum.exact())
 
     def _first_panels(self, a: Any, b: Any, cuts: tuple[tuple[Fraction, int], ...]) -> list[_Panel]:
-        """[a, b] as one panel, or split at the cuts that lie strictly between the limits' enclosures."""
+        """[a, b] as one panel, or split at the cuts that lie strictly between the limits' enclosures, as many
+        as the node budget and the deadline allow (the rest of [a, b] is then one panel, so the panels always
+        cover it: a mesh of thousands of cuts costs as many certificates before the loop's own checks)."""
         a_high, b_low = self.ar.bounds_exact(a)[1], self.ar.bounds_exact(b)[0]
-        inside = [(x, depth) for x, depth in cuts if a_high < x < b_low]
-        ends = [a, *(self.ar.exact(x) for x, _ in inside), b]
-        depths = [0, *(min(depth, MAX_DEPTH) for _, depth in inside)]
-        values = [self.value_at(end) for end in ends]
-        return [self.panel(ends[i], ends[i + 1], values[i], values[i + 1], depths[i]) for i in range(len(depths))]
+        panels = []
+        start, f_start, depth = a, self.value_at(a), 0
+        f_end = self.value_at(b)
+        for x, next_depth in cuts:
+            if not a_high < x < b_low:
+                continue
+            if self.nodes() + 4 > self.max_nodes or (self.deadline is not None and time.monotonic() > self.deadline):
+                break
+            end = self.ar.exact(x)
+            f_cut = self.value_at(end)
+            panels.append(self.panel(start, end, f_start, f_cut, depth))
+            start, f_start, depth = end, f_cut, min(next_depth, MAX_DEPTH)
+        panels.append(self.panel(start, b, f_start, f_end, depth))
+        return panels
 
     def nodes(self) -> int:
         """Evaluations so far: the shared Simpson nodes and every Gauss–Legendre panel's own."""
