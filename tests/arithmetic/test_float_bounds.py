@@ -125,3 +125,15 @@ def test_special_raw_values() -> None:
     assert raw_up(libmp.finf) == math.inf and raw_down(libmp.fninf) == -math.inf
     with pytest.raises(ArithmeticError):
         raw_down(libmp.fnan)
+
+
+def test_the_spelled_out_raw_values_are_libmps_own() -> None:
+    """_interval.py spells out libmp's zero, one and infinities so that it loads without mpmath: they must be
+    libmp's own values (reference: mpmath.libmp)."""
+    from mpmath import libmp
+
+    from quadcert.arithmetic import _interval
+
+    assert (_interval.ZERO, _interval.ONE) == (libmp.fzero, libmp.fone)
+    assert (_interval._INF, _interval._NEG_INF) == (libmp.finf, libmp.fninf)
+    assert _interval.raw_up(libmp.finf) == float("inf") and _interval.raw_down(libmp.fninf) == float("-inf")

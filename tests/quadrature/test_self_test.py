@@ -73,3 +73,29 @@ def test_a_damaged_record_is_checked_again(tmp_path: Path, monkeypatch: pytest.M
     record.write_text("{not json")
     assert _self_test.passes(extension, _enclose()) is True
     assert '"trusted": true' in record.read_text()
+
+
+def test_a_compiled_answer_loads_neither_mpmath_nor_flint(tmp_path: Path) -> None:
+    """Cold start: importing the command line and answering an integral in the compiled engine loads neither
+    arbitrary-precision library (once this build's library check is remembered; the first process runs it,
+    with mpmath as its reference). A constant such as pi is folded by the reference backend, which then loads."""
+    import os
+    import subprocess
+    import sys
+
+    code = (
+        "import sys, quadcert.cli\n"
+        "before = [m for m in sys.modules if m.split('.')[0] in ('mpmath', 'flint')]\n"
+        "from quadcert import integrate\n"
+        "result = integrate('x*exp(-x^2/2) + 3', 0, 2, tolerance=1e-10)\n"
+        "after = [m for m in sys.modules if m.split('.')[0] in ('mpmath', 'flint')]\n"
+        "integrate('pi*x', 0, 1, tolerance=1e-10)\n"
+        "print(before, after, result.precision_bits, 'mpmath' in sys.modules)\n"
+    )
+    env = {**os.environ, "QUADCERT_CACHE_DIR": str(tmp_path)}
+    runs = [
+        subprocess.run([sys.executable, "-c", code], check=False, capture_output=True, text=True, timeout=120, env=env)
+        for _ in range(2)
+    ]
+    assert all(run.returncode == 0 for run in runs), runs[0].stderr + runs[1].stderr
+    assert runs[1].stdout.split() == ["[]", "[]", "53", "True"], runs[1].stdout

@@ -1,7 +1,9 @@
 """The interval value type: a pair of raw mpmath floats, lower <= upper.
 
 Kept thin on purpose: all arithmetic lives in the kernels, which take the
-precision as an argument, so nothing here depends on global state.
+precision as an argument, so nothing here depends on global state. Light to
+import: mpmath loads only where a raw float has to be read by it (a request the
+compiled engine answers uses the float conversions here and never loads it).
 """
 
 from __future__ import annotations
@@ -12,12 +14,13 @@ from decimal import ROUND_CEILING, ROUND_FLOOR, ROUND_HALF_EVEN, Context, Decima
 from fractions import Fraction
 from typing import Any, NamedTuple
 
-from mpmath import libmp
-
 Raw = tuple[Any, ...]  # mpmath's raw float: (sign, mantissa, exponent, bitcount)
 
-ZERO: Raw = libmp.fzero
-ONE: Raw = libmp.fone
+# libmp's special raw values, spelled out (tests/arithmetic check them against libmp's own)
+ZERO: Raw = (0, 0, 0, 0)
+ONE: Raw = (0, 1, 0, 1)
+_INF: Raw = (0, 0, -456, -2)
+_NEG_INF: Raw = (1, 0, -789, -3)
 
 
 class Interval(NamedTuple):
@@ -35,6 +38,8 @@ class Interval(NamedTuple):
         return self.lo == self.hi
 
     def contains(self, value: Raw) -> bool:
+        from mpmath import libmp
+
         return bool(libmp.mpf_le(self.lo, value) and libmp.mpf_le(value, self.hi))
 
     def floats(self) -> tuple[float, float]:
@@ -46,6 +51,8 @@ class Interval(NamedTuple):
         return raw_down(self.lo), raw_up(self.hi)
 
     def __repr__(self) -> str:
+        from mpmath import libmp
+
         lo, hi = (libmp.to_str(v, 20) for v in self)
         return f"Interval[{lo}, {hi}]"
 
@@ -142,17 +149,19 @@ def raw_up(value: Raw) -> float:
 def _raw_directed(value: Raw, up: bool) -> float:
     sign, mantissa, exponent, _ = value
     if mantissa == 0:
-        if value == libmp.fzero:
+        if value == ZERO:
             return 0.0
-        if value == libmp.finf:
+        if value == _INF:
             return math.inf
-        if value == libmp.fninf:
+        if value == _NEG_INF:
             return -math.inf
         raise ArithmeticError("NaN reached a bound: a kernel is wrong")
     return binary_directed(bool(sign), int(mantissa), int(exponent), up)
 
 
 def to_fraction(value: Raw) -> Fraction:
+    from mpmath import libmp
+
     return Fraction(*libmp.to_rational(value))
 
 

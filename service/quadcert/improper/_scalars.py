@@ -10,7 +10,7 @@ from __future__ import annotations
 import math
 from fractions import Fraction
 
-from ..arithmetic import Interval, MpmathArithmetic, fraction_down, fraction_up
+from ..arithmetic import Interval, fraction_down, fraction_up, reference
 
 PRECISION = 128
 #: the ε of L ≤ t^(−ε)/(e·ε) (near a point) and log y ≤ y^ε/(e·ε) (in a tail): small, so that a
@@ -26,7 +26,7 @@ class Scalars:
     """Enclosure arithmetic on envelope constants, at one explicit precision (no global state)."""
 
     def __init__(self, prec: int = PRECISION) -> None:
-        self.ar = MpmathArithmetic(prec)
+        self.ar = reference(prec)
 
     def num(self, value: Fraction | int) -> Interval:
         return self.ar.exact(Fraction(value))

@@ -13,7 +13,8 @@ from dataclasses import dataclass
 from fractions import Fraction
 from functools import partial
 
-from ..arithmetic import MpmathArithmetic, ParameterValue
+from ..arithmetic import ParameterValue
+from ..arithmetic import reference as reference_arithmetic
 from ..derivatives import Program
 from ..errors import QuadcertError
 from ..formula import Formula
@@ -91,7 +92,7 @@ def _enclosure(formula: Formula, values: Mapping[str, ParameterValue]) -> Callab
     compiled = _fast.compile_formula(formula, values) if _fast.AVAILABLE and _fast.trusted() else None
     if compiled is not None:
         return partial(_fast.value_range, compiled)
-    ar = MpmathArithmetic(53)
+    ar = reference_arithmetic(53)
     try:
         program = Program(formula, ar, values)
     except QuadcertError:

@@ -15,7 +15,7 @@ from dataclasses import replace
 from fractions import Fraction
 from typing import Any
 
-from ..arithmetic import MpmathArithmetic, ParameterValue, fraction_down, fraction_up
+from ..arithmetic import ParameterValue, fraction_down, fraction_up, reference
 from ..derivatives import Program
 from ..errors import ArithmeticFault, NotCertifiable
 from ..formula import Formula
@@ -62,9 +62,9 @@ class _Ends:
 
     def __init__(self, formula: Formula, values: Mapping[str, ParameterValue]) -> None:
         self.formula, self.values = formula, values
-        self.ar = MpmathArithmetic(128)
+        self.ar = reference(128)
         self.program = Program(formula, self.ar, values)
-        self.rough_ar = MpmathArithmetic(53)  # sizes that only steer the work
+        self.rough_ar = reference(53)  # sizes that only steer the work
         self.rough = Program(formula, self.rough_ar, values)
         self._numeric: dict[Formula, tuple[Fraction, Fraction]] = {}
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import math
 import re
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 from decimal import Decimal
 from fractions import Fraction
 from functools import lru_cache
@@ -103,12 +103,14 @@ def exact_limit(formula: Formula) -> Fraction | None:
 _LIMIT_RANGE = Fraction(1e300)
 
 
-def check_limit(formula: Formula, parameters: dict[str, ParameterValue], field: str, ar: Arithmetic[Any]) -> None:
+def check_limit(
+    formula: Formula, parameters: dict[str, ParameterValue], field: str, arithmetic: Callable[[], Arithmetic[Any]]
+) -> None:
     """Refuse a finite limit that does not evaluate, or lies beyond ±1e300, before any work is done. A plain
-    numeral is checked by its exact value; anything else is enclosed once with ``ar``."""
+    numeral is checked by its exact value; anything else is enclosed once with ``arithmetic()``."""
     value = exact_limit(formula)
     if value is None:
-        enclose_limit(formula, ar, parameters, field)
+        enclose_limit(formula, arithmetic(), parameters, field)
     elif abs(value) > _LIMIT_RANGE:
         raise _out_of_range(field)
 

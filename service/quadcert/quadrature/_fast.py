@@ -19,9 +19,10 @@ from collections import Counter
 from collections.abc import Mapping
 from dataclasses import dataclass
 from fractions import Fraction
-from functools import cache, lru_cache
+from functools import cache, cached_property, lru_cache
+from typing import Any
 
-from ..arithmetic import MpmathArithmetic, ParameterValue, Within, fraction_down, fraction_up
+from ..arithmetic import Arithmetic, ParameterValue, Within, fraction_down, fraction_up, reference
 from ..derivatives import Program
 from ..errors import ArithmeticFault
 from ..formula import Binary, Call, Constant, Formula, Negate, Node, Number, Parameter, Variable
@@ -93,13 +94,17 @@ class _Compiler:
     def __init__(self, formula: Formula, values: Mapping[str, ParameterValue]) -> None:
         self.formula = formula
         self.values = values
-        self.ar = MpmathArithmetic(_FOLD_PRECISION)
         self.code: list[int] = []
         self.constants: list[tuple[float, float]] = []
         self.depth = self.most = 0
         #: id(node) -> (node, does it involve the variable), computed once per node; the node is held so that a
         #: spelled-out tree built during compilation cannot hand its id to a later one
         self.dependent: dict[int, tuple[Node, bool]] = {}
+
+    @cached_property
+    def ar(self) -> Arithmetic[Any]:
+        """The arithmetic that folds constants, made on first use: plain numbers never need it."""
+        return reference(_FOLD_PRECISION)
 
     def emit(self, op: Op, arg: int = 0) -> None:
         self.code += [op, arg]

@@ -25,7 +25,7 @@ from fractions import Fraction
 from functools import lru_cache
 from typing import Any
 
-from ..arithmetic import Arithmetic, MpmathArithmetic
+from ..arithmetic import Arithmetic, reference
 
 #: the points per panel the service uses: 5 (degree 9, remainder in f^(10)) at looser tolerances, 10
 #: (degree 19, remainder in f^(20)) at TIGHT_TOLERANCE and below, where the higher order saves more panels
@@ -96,7 +96,7 @@ def rule(n: int, bits: int) -> tuple[tuple[Bounds, Bounds], ...]:
         found.append((low, high))
     if any(a[1] >= b[0] for a, b in itertools.pairwise(found)) or len(found) != n:
         raise ArithmeticError(f"the roots of P_{n} are not separated at {bits} bits")
-    ar = MpmathArithmetic(bits + 32)
+    ar = reference(bits + 32)
     weighted = []
     for low, high in found:
         node = ar.from_bounds(low, high)

@@ -9,7 +9,15 @@ from dataclasses import dataclass, replace
 from fractions import Fraction
 from typing import TYPE_CHECKING, Any
 
-from ..arithmetic import Arithmetic, MpmathArithmetic, ParameterValue, flint_context_claimed, fraction_down, fraction_up
+from ..arithmetic import (
+    Arithmetic,
+    ParameterValue,
+    flint_context_claimed,
+    fraction_down,
+    fraction_up,
+    is_reference,
+    reference,
+)
 from ..derivatives import Program
 from ..errors import EngineDefect, InvalidInput, NotCertifiable
 from ..formula import Formula
@@ -35,7 +43,7 @@ def default_arithmetic() -> ArithmeticFactory:
         from ..arithmetic._flint_backend import FlintArithmetic  # loaded here: the compiled engine never needs it
 
         return FlintArithmetic
-    return MpmathArithmetic
+    return reference
 
 
 def choose_precision(tolerance: float) -> int:
@@ -245,7 +253,7 @@ def segment(
     if settings.arithmetic is None and _spread.spread_used(formula, (), values):
         # a ball's radius is kept to 30 bits: with a parameter's spread in it, that rounding alone would
         # outgrow the discretisation part the stop rule reads; intervals keep both ends at full precision
-        arithmetic = MpmathArithmetic
+        arithmetic = reference
     attempts = 0
     while True:
         ar = arithmetic(prec)
@@ -354,7 +362,7 @@ def _exact_bounds(limit: Limit, values: dict[str, ParameterValue], field: str) -
     exact = exact_limit(limit)
     if exact is not None:
         return exact, exact
-    ref = MpmathArithmetic(_LIMIT_PRECISION)
+    ref = reference(_LIMIT_PRECISION)
     return ref.bounds_exact(enclose_limit(limit, ref, values, field))
 
 
@@ -386,7 +394,7 @@ def _run(
         enclosure = _spread.range_piece(program, ar, a, b, "between the limits")
         spread = Fraction(ar.width(enclosure)) if program.spread else Fraction(0)
         return enclosure, "tolerance_met", 0, 1, (), {"range": 1}, spread
-    fallback = None if isinstance(ar, MpmathArithmetic) else Program(formula, MpmathArithmetic(ar.prec), values)
+    fallback = None if is_reference(ar) else Program(formula, reference(ar.prec), values)
     refiner = Refiner(
         program,
         ar,

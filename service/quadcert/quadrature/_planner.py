@@ -15,7 +15,7 @@ import time
 from fractions import Fraction
 from typing import TYPE_CHECKING, Any
 
-from ..arithmetic import Arithmetic, MpmathArithmetic
+from ..arithmetic import Arithmetic, reference
 from ..derivatives import Program
 from ..errors import ArithmeticFault, InvalidInput, NotCertifiable
 from ._endpoints import enclose_limit
@@ -95,7 +95,7 @@ def _rule(
     return RulePlan(rule, n, nodes, ar.bounds(h)[0], order, float(bound), ar.bounds(achieved)[1], True)
 
 
-def plan_for(request: Request, *, arithmetic: ArithmeticFactory = MpmathArithmetic, precision_bits: int = 96) -> Plan:
+def plan_for(request: Request, *, arithmetic: ArithmeticFactory = reference, precision_bits: int = 96) -> Plan:
     """Uniform Simpson and trapezoid node counts that the global bounds guarantee for ``request.tolerance``."""
     started = time.perf_counter()
     tolerance, formula, values = request.tolerance, request.formula, dict(request.values)

@@ -14,9 +14,10 @@ from __future__ import annotations
 
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
+from functools import cache
 from typing import Any
 
-from ..arithmetic import Arithmetic, MpmathArithmetic, ParameterValue, value_text
+from ..arithmetic import Arithmetic, ParameterValue, reference, value_text
 from ..formula import Formula, parse
 from . import _inputs
 from ._check import decide
@@ -26,8 +27,13 @@ from ._planner import plan_for
 from ._result import CheckResult, IntegralResult, Plan
 
 ArithmeticFactory = Callable[[int], Arithmetic[Any]]
-#: enough to tell whether a limit evaluates and lies within ±1e300 (the engine encloses it again, tighter)
-_CHECK_LIMITS = MpmathArithmetic(64)
+
+
+@cache
+def _limit_checker() -> Arithmetic[Any]:
+    """Enough to tell whether a limit evaluates and lies within ±1e300 (the engine encloses it again, tighter);
+    made on first use, since a plain numeral never needs it."""
+    return reference(64)
 
 
 @dataclass(frozen=True)
@@ -74,7 +80,7 @@ class Request:
         upper = parse_limit(upper_limit, "upper_limit", names)
         for limit, field_name in ((lower, "lower_limit"), (upper, "upper_limit")):
             if not infinite_side(limit):  # a finite limit must evaluate, within ±1e300: refused here, not later
-                check_limit(limit, values, field_name, _CHECK_LIMITS)
+                check_limit(limit, values, field_name, _limit_checker)
         return cls(formula, lower, upper, checked_tolerance, relative, budget, values, _inputs.check_rule(rule))
 
     def canonical(self) -> dict[str, Any]:
@@ -113,7 +119,7 @@ class Request:
         """Whether ``claimed_value`` is provably within this request's tolerance of the integral."""
         return decide(self, claimed_value, deadline_seconds=deadline_seconds, **options)
 
-    def plan(self, *, arithmetic: ArithmeticFactory = MpmathArithmetic, precision_bits: int = 96) -> Plan:
+    def plan(self, *, arithmetic: ArithmeticFactory = reference, precision_bits: int = 96) -> Plan:
         """Uniform node counts that the global derivative bounds guarantee for this tolerance."""
         return plan_for(self, arithmetic=arithmetic, precision_bits=precision_bits)
 
@@ -234,7 +240,7 @@ def plan(
     *,
     variable: str = "x",
     parameters: Mapping[str, object] | None = None,
-    arithmetic: ArithmeticFactory = MpmathArithmetic,
+    arithmetic: ArithmeticFactory = reference,
     precision_bits: int = 96,
 ) -> Plan:
     """Uniform Simpson and trapezoid node counts that the global bounds guarantee.

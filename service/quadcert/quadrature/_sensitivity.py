@@ -13,7 +13,7 @@ from dataclasses import replace
 from fractions import Fraction
 from typing import TYPE_CHECKING, Any
 
-from ..arithmetic import MpmathArithmetic, Within, centre_of, fraction_down, fraction_up
+from ..arithmetic import Within, centre_of, fraction_down, fraction_up, reference
 from ..derivatives import Program
 from ..errors import ArithmeticFault, NotCertifiable
 from ..formula import Formula, parameters_used
@@ -68,7 +68,7 @@ def _limit_term(request: Request, limit: Formula, name: str) -> tuple[Fraction, 
     """f(limit)·∂limit/∂p over the box, exactly bounded; zero for a limit that does not move with p."""
     if infinite_side(limit) or name not in parameters_used(limit.root):
         return Fraction(0), Fraction(0)
-    ar = MpmathArithmetic(_PRECISION)
+    ar = reference(_PRECISION)
     values = dict(request.values)
     where: Any = enclose_limit(limit, ar, values, "limit")
     try:

@@ -14,7 +14,7 @@ from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
 
-from ..arithmetic import MpmathArithmetic, ParameterValue, Within, centre_of, fraction_down, fraction_up
+from ..arithmetic import ParameterValue, Within, centre_of, fraction_down, fraction_up, reference
 from ..derivatives import Program
 from ..errors import ArithmeticFault, NotCertifiable
 from ..formula import Formula, Negate, Number, parameters_used
@@ -50,7 +50,7 @@ def fixed_limit(
     """
     if infinite_side(limit) or not any(isinstance(values.get(n), Within) for n in parameters_used(limit.root)):
         return limit, None
-    ar = MpmathArithmetic(_PRECISION)
+    ar = reference(_PRECISION)
     centre_low, centre_high = ar.bounds_exact(enclose_limit(limit, ar, centre_of(values), field))
     point = simplest_between(centre_low, centre_high)
     box = enclose_limit(limit, ar, values, field)
