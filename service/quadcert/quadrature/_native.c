@@ -100,11 +100,11 @@ static iv simpson_sum(refiner *r, const panel *pn, iv width) {
     return iv_div(r->vm, iv_mul(width, iv_add(iv_add(pn->fp, pn->fq), iv_scale(pn->fm, 4.0))), point(6.0));
 }
 
-/* the certified panel's fields from its enclosure, the best of its bounds and its rule sum's rounding */
-static void settle(panel *pn, iv enclosure, int order, double rounding) {
+/* the certified panel's fields from its enclosure and the best of its bounds (pn->rounding already holds
+   that bound's rule sum's width) */
+static void settle(panel *pn, iv enclosure, int order) {
     pn->enclosure = enclosure;
     pn->order = order;
-    pn->rounding = rounding;
     pn->width = iv_width(enclosure);
     pn->centre = 0.5 * enclosure.lo + 0.5 * enclosure.hi;
     pn->resolved = 1;
@@ -144,7 +144,7 @@ static void certify(refiner *r, panel *pn) {
     if (r->rule == RULE_SIMPSON && pn->model >= 0) {
         iv enclosure;
         if (by_model(r, &r->models[pn->model], pn, width, simpson, &enclosure) <= MODEL_SHARE) {
-            settle(pn, enclosure, SIMPSON_ORDER, pn->rounding);
+            settle(pn, enclosure, SIMPSON_ORDER);
             return;
         }
         pn->model = -1;   /* out of its reach: the panel's own series, and perhaps a nearer model */
@@ -217,7 +217,8 @@ static void certify_directly(refiner *r, panel *pn, iv width, iv simpson) {
         enclosure = mk(greater(enclosure.lo, candidates[i].lo), lesser(enclosure.hi, candidates[i].hi));
     }
     if (r->vm->fault || !finite_iv(enclosure)) return;
-    settle(pn, enclosure, best_order, best_order == GAUSS_BOUND ? iv_width(gauss_sum) : pn->rounding);
+    if (best_order == GAUSS_BOUND) pn->rounding = iv_width(gauss_sum);
+    settle(pn, enclosure, best_order);
 }
 
 static int grow(refiner *r) {
@@ -821,7 +822,4 @@ static PyMethodDef methods[] = {
 static struct PyModuleDef module = {PyModuleDef_HEAD_INIT, "_native", "Compiled float64 interval engine.", -1,
                                     methods, NULL, NULL, NULL, NULL};
 
-PyMODINIT_FUNC PyInit__native(void) {
-    fill_inverses();
-    return PyModule_Create(&module);
-}
+PyMODINIT_FUNC PyInit__native(void) { return PyModule_Create(&module); }

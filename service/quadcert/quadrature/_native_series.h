@@ -10,21 +10,8 @@
 /* ---- Taylor series over an interval (the recurrences of derivatives/_series.py) ---------- */
 
 static const double WHOLE[TERMS] = {0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 15, 16, 17, 18, 19, 20};
-/* 1/k rounded down and up, k = 1..ORDER (exact where k is a power of two): filled once, at module import */
-static double INVERSE_DN[TERMS], INVERSE_UP[TERMS];
-
-static void fill_inverses(void) {
-    for (int k = 1; k < TERMS; k++) {
-        INVERSE_DN[k] = div_dn(1.0, (double)k);
-        INVERSE_UP[k] = div_up(1.0, (double)k);
-    }
-}
-
-/* a / k for an integer 1 <= k <= ORDER: each end times the rounded reciprocal that moves it outward */
-static inline iv over(iv a, int k) {
-    return mk(mul_dn(a.lo, a.lo >= 0 ? INVERSE_DN[k] : INVERSE_UP[k]),
-              mul_up(a.hi, a.hi >= 0 ? INVERSE_UP[k] : INVERSE_DN[k]));
-}
+/* a / k for an integer k >= 1: each end divided and rounded outward (exact where it can be) */
+static inline iv over(iv a, int k) { return mk(div_dn(a.lo, (double)k), div_up(a.hi, (double)k)); }
 
 /* 1 + the index of a series' last term that is not an exact 0 (1 for a constant, 2 for a x + b): the
    convolutions skip the exact zeros past it, whose products are exact zeros */
